@@ -1,0 +1,65 @@
+// The unity-feedback loop r -> e = r - y -> C(s) -> u -> G(s) (with Pade delay) -> y.
+#pragma once
+
+#include <vector>
+
+#include "polewright/model/plant.hpp"
+#include "polewright/model/state_space.hpp"
+
+namespace pw {
+
+// Closed loop from the reference r to the plant output y and the control effort u.
+struct ClosedLoop {
+  Mat A;
+  Vec B;
+  RowVec Cy;
+  double Dy = 0.0;
+  RowVec Cu;
+  double Du = 0.0;
+  bool well_posed = true;  // false when 1 + Dc Dg = 0 (the algebraic loop has no solution)
+  int states() const { return static_cast<int>(A.rows()); }
+};
+
+// The open-loop pieces of one loop, realised once and reused.
+struct LoopParts {
+  StateSpace compensator;  // C(s)
+  StateSpace plant;        // G(s) with the Pade approximant of its delay in series
+  Zpk loop_rational;       // C G Pade as zeros/poles/gain (root locus)
+  Zpk loop_exact;          // C G without the delay (frequency response multiplies e^(-jwT))
+  double delay_s = 0.0;
+};
+
+LoopParts make_loop_parts(const Zpk& compensator, const Plant& plant, int pade_order);
+
+// Closed loop with the compensator scaled by gain_scale (1 = nominal).
+ClosedLoop close_loop(const StateSpace& compensator, const StateSpace& plant, double gain_scale = 1.0);
+
+// One closed-loop pole with its damping, natural frequency and share of the y step response.
+struct PoleInfo {
+  Complex pole;
+  double damping = 1.0;         // zeta = -Re p / |p| (1 for p = 0)
+  double natural_frequency = 0; // |p|
+  double share = 1.0;           // |c_i| / sum |c_j|, y(t) = y(inf) + sum c_i e^(p_i t)
+  double residue = 0.0;         // |c_i|
+  bool matters = true;          // share >= the residue threshold (or residues unreliable)
+};
+
+struct PoleAnalysis {
+  std::vector<PoleInfo> poles;  // sorted by real part, descending (slowest first)
+  bool stable = false;
+  bool residues_reliable = true;  // false for (nearly) defective eigenvector bases
+  double eigvec_rcond = 1.0;
+};
+
+// Eigen-decomposition of the closed loop and the modal residues of the y step response.
+PoleAnalysis analyze_poles(const ClosedLoop& loop, double residue_share_threshold);
+
+// Just the eigenvalues (balanced), for cheap stability screening.
+CVec closed_loop_eigenvalues(const ClosedLoop& loop);
+
+// y(inf) = Dy - Cy A^-1 B for a stable loop.
+double closed_loop_dc_gain(const ClosedLoop& loop);
+
+double damping_of(Complex p);
+
+}  // namespace pw

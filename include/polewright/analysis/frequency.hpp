@@ -1,0 +1,54 @@
+// Loop frequency response L(jw) = C(jw) G(jw) e^(-jwT) with the exact delay, and the margins.
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "polewright/model/zpk.hpp"
+
+namespace pw {
+
+struct FrequencyOptions {
+  // Logarithmic grid density; extra points are always added around lightly damped roots and, with
+  // a dead time, at a linear spacing of 0.5 / T up to 200 / T.
+  int points_per_decade = 60;
+  // Grid limits; 0 picks them from the roots (two decades beyond the outermost, widened until the
+  // crossovers are bracketed).
+  double w_min = 0.0;
+  double w_max = 0.0;
+
+  bool IsValid(std::string* error) const;
+};
+
+// L(jw) for the rational part `loop` and dead time `delay_s`.
+Complex loop_response(const Zpk& loop, double delay_s, double w);
+
+std::vector<double> frequency_grid(const Zpk& loop, double delay_s, const FrequencyOptions& options);
+
+struct FrequencyMetrics {
+  std::vector<double> gain_crossovers_rad_s;   // |L| = 1, ascending
+  std::vector<double> phase_margins_deg;       // one per gain crossover
+  std::vector<double> phase_crossovers_rad_s;  // angle L = -180 mod 360, ascending (0 = the DC limit)
+  std::vector<double> critical_gains;          // 1 / |L| at each phase crossover
+  std::optional<double> phase_margin_deg;      // smallest over gain crossovers
+  std::optional<double> phase_margin_at_rad_s;
+  std::optional<double> crossover_rad_s;       // highest gain crossover
+  std::optional<double> gain_increase_db;      // nearest critical gain above 1
+  std::optional<double> gain_reduction_db;     // nearest critical gain below 1 (positive dB)
+  std::optional<double> gain_margin_db;        // smaller of the two
+  std::optional<double> gain_margin_at_rad_s;
+  std::optional<double> bandwidth_rad_s;       // |T| 3 dB below |T(0)|
+  std::optional<double> peak_sensitivity;      // max |S|
+  std::optional<double> peak_sensitivity_at_rad_s;
+  std::optional<double> peak_complementary;    // max |T|
+  double grid_min_rad_s = 0.0;
+  double grid_max_rad_s = 0.0;
+};
+
+FrequencyMetrics frequency_metrics(const Zpk& loop, double delay_s, const FrequencyOptions& options);
+
+// 180 + angle wrapped into (-180, 180].
+double wrap_degrees(double deg);
+
+}  // namespace pw

@@ -1,0 +1,21 @@
+// The check report as JSON and as a readable text table.
+#pragma once
+
+#include <string>
+
+#include <nlohmann/json.hpp>
+
+#include "polewright/jobs/check.hpp"
+
+namespace pw {
+
+extern const char* const kToolVersion;
+
+nlohmann::json region_json(const Region& r);
+nlohmann::json loop_evaluation_json(const LoopEvaluation& e);
+nlohmann::json locus_json(const Locus& l);
+nlohmann::json check_report_json(const CheckReport& r);
+
+std::string check_report_text(const CheckReport& r);
+
+}  // namespace pw

@@ -1,0 +1,75 @@
+// One loop (compensator + plant) evaluated against the requirements, and the worst case over the
+// plant variants.
+#pragma once
+
+#include <array>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "polewright/analysis/analysis_options.hpp"
+#include "polewright/analysis/closed_loop.hpp"
+#include "polewright/analysis/frequency.hpp"
+#include "polewright/analysis/steady_state.hpp"
+#include "polewright/analysis/step.hpp"
+#include "polewright/requirements/region.hpp"
+#include "polewright/requirements/requirement_set.hpp"
+
+namespace pw {
+
+// Interval of loop-gain scale factors around 1 over which the closed loop stays stable and the
+// poles that matter stay inside the region, searched within [kGainScanMin, kGainScanMax].
+constexpr double kGainScanMin = 0.01;
+constexpr double kGainScanMax = 100.0;
+
+struct GainToleranceResult {
+  std::optional<double> lo, hi;  // nullopt when the nominal loop is not inside the region
+  bool lo_at_limit = false, hi_at_limit = false;
+  double tolerance_pct = 0.0;    // 100 min(hi - 1, 1 - lo), 0 when empty
+};
+
+GainToleranceResult gain_tolerance(const LoopParts& parts, const Region& region, double residue_share,
+                                   double step_ratio = 1.05);
+
+struct LoopEvaluation {
+  std::string plant_name;
+  bool well_posed = true;
+  bool stable = false;
+  PoleAnalysis poles;
+  std::optional<StepMetrics> step;
+  FrequencyMetrics frequency;
+  SteadyState steady_state;
+  GainToleranceResult gain;
+  bool region_ok = false;                          // every pole that matters inside the region
+  std::optional<Complex> dominant_pole;            // slowest-decaying pole that matters
+  std::array<MetricValue, kMetricCount> values{};  // indexed by MetricId
+};
+
+struct EvaluationNeeds {
+  bool everything = true;  // false: only what the requirements use (search screening)
+};
+
+LoopEvaluation evaluate_loop(const Zpk& compensator, const Plant& plant, const RequirementSet& req,
+                             const Region& region, const AnalysisOptions& options, const EvaluationNeeds& needs = {});
+
+struct RequirementOutcome {
+  Requirement requirement;
+  MetricValue worst;      // worst value over the plants
+  int worst_plant = 0;    // index into the plants
+  bool met = false;
+  double violation = 0.0; // normalised (see requirement_violation)
+};
+
+struct Evaluation {
+  std::vector<LoopEvaluation> plants;      // nominal first, then the variants
+  std::vector<RequirementOutcome> outcomes;
+  bool all_stable = false;
+  bool all_met = false;
+  double total_violation = 0.0;
+  int worst_plant = 0;                     // plant with the largest violation sum
+};
+
+Evaluation evaluate_all(const Zpk& compensator, const std::vector<Plant>& plants, const RequirementSet& req,
+                        const Region& region, const AnalysisOptions& options, const EvaluationNeeds& needs = {});
+
+}  // namespace pw

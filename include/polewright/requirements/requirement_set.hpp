@@ -1,0 +1,46 @@
+// Parsed requirements: a flat list of bounds on named metrics plus their side settings.
+#pragma once
+
+#include <optional>
+#include <vector>
+
+#include "polewright/analysis/steady_state.hpp"
+#include "polewright/requirements/metric.hpp"
+
+namespace pw {
+
+enum class Sense { AtMost, AtLeast };
+
+struct Requirement {
+  MetricId metric;
+  Sense sense;
+  double limit;
+};
+
+struct RequirementSet {
+  std::vector<Requirement> items;     // in table order, min before max
+  double settling_band = 0.02;        // fraction of the final value
+  TestSignal error_signal = TestSignal::Step;
+
+  bool has(MetricId id) const;
+  std::optional<double> limit(MetricId id, Sense sense) const;
+};
+
+// A metric's value: a number, +infinity (an unbounded margin, an unbounded error) or missing (the
+// figure does not exist, for example the overshoot of an unstable loop).
+struct MetricValue {
+  std::optional<double> value;
+  bool infinite = false;
+  bool known() const { return value.has_value() || infinite; }
+};
+
+// Signed margin to the limit in the metric's unit: positive when met.
+double requirement_margin(const Requirement& r, double value);
+
+bool requirement_met(const Requirement& r, const MetricValue& v);
+
+// Normalised violation: 0 when met, else shortfall / |limit|, capped at 1000; 1000 for a missing
+// value or an infinity on the wrong side.
+double requirement_violation(const Requirement& r, const MetricValue& v);
+
+}  // namespace pw

@@ -1,0 +1,60 @@
+// A parsed, validated spec file.
+#pragma once
+
+#include <optional>
+#include <stdexcept>
+#include <string>
+#include <vector>
+
+#include <nlohmann/json.hpp>
+
+#include "polewright/analysis/analysis_options.hpp"
+#include "polewright/model/plant.hpp"
+#include "polewright/requirements/requirement_set.hpp"
+
+namespace pw {
+
+// Bad input: `path` is a JSON path ("$.plant.denominator[0]"); what() is the one-line message.
+class SpecError : public std::runtime_error {
+ public:
+  SpecError(std::string path, const std::string& message)
+      : std::runtime_error(path + ": " + message), path_(std::move(path)) {}
+  const std::string& path() const { return path_; }
+
+ private:
+  std::string path_;
+};
+
+enum class IntegratorChoice { Off, On, Auto };
+enum class Objective { LeastEffort, Fastest, MostRobust, Simplest };
+
+struct StageSettings {
+  int lead = 0;
+  int lag = 0;
+  int notch = 0;
+  IntegratorChoice integrator = IntegratorChoice::Off;
+  std::optional<std::pair<double, double>> frequency_range_rad_s;
+};
+
+struct SearchSettings {
+  unsigned long long seed = 1;
+  int keep = 5;
+  Objective objective = Objective::LeastEffort;
+  int threads = 0;  // 0 = all cores
+  long long max_evaluations = 200000;
+  double time_limit_s = 30.0;
+};
+
+struct Spec {
+  std::string name;
+  std::vector<Plant> plants;  // plants[0] is the nominal plant, then the variants
+  RequirementSet requirements;
+  StageSettings stages;
+  std::optional<Zpk> current;
+  SearchSettings search;
+  AnalysisOptions analysis;
+};
+
+const char* objective_name(Objective o);
+
+}  // namespace pw

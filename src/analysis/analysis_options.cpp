@@ -1,0 +1,28 @@
+#include "polewright/analysis/analysis_options.hpp"
+
+#include "polewright/model/types.hpp"
+
+namespace pw {
+
+bool AnalysisOptions::IsValid(std::string* error) const {
+  if (pade_order < 1 || pade_order > kMaxPadeOrder) {
+    if (error) *error = "pade_order must be within 1..12";
+    return false;
+  }
+  if (!(residue_share > 0.0 && residue_share < 1.0)) {
+    if (error) *error = "residue_share must be within (0, 1)";
+    return false;
+  }
+  return step.IsValid(error) && frequency.IsValid(error);
+}
+
+AnalysisOptions AnalysisOptions::Screening(const AnalysisOptions& base) {
+  AnalysisOptions o = base;
+  o.step.adaptive_samples = false;
+  o.step.exact_refinement = false;
+  o.step.keep_trace = false;
+  o.frequency.points_per_decade = 30;
+  return o;
+}
+
+}  // namespace pw

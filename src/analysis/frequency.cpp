@@ -1,0 +1,246 @@
+#include "polewright/analysis/frequency.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <functional>
+
+namespace pw {
+
+bool FrequencyOptions::IsValid(std::string* error) const {
+  auto fail = [&](const char* msg) {
+    if (error) *error = msg;
+    return false;
+  };
+  if (points_per_decade < 5 || points_per_decade > 10000) return fail("points_per_decade must be within 5..10000");
+  if (w_min < 0.0 || w_max < 0.0) return fail("grid limits must be >= 0");
+  if (w_min > 0.0 && w_max > 0.0 && !(w_min < w_max)) return fail("w_min must be below w_max");
+  return true;
+}
+
+Complex loop_response(const Zpk& loop, double delay_s, double w) {
+  const Complex s(0.0, w);
+  Complex v = loop.evaluate(s);
+  if (delay_s > 0.0) v *= std::polar(1.0, -w * delay_s);
+  return v;
+}
+
+double wrap_degrees(double deg) {
+  double d = std::fmod(deg, 360.0);
+  if (d <= -180.0) d += 360.0;
+  if (d > 180.0) d -= 360.0;
+  return d;
+}
+
+std::vector<double> frequency_grid(const Zpk& loop, double delay_s, const FrequencyOptions& opt) {
+  double lo = INFINITY, hi = 0.0;
+  for (const Roots* set : {&loop.zeros, &loop.poles})
+    for (const Complex& r : *set) {
+      const double m = std::abs(r);
+      if (m > 0.0) {
+        lo = std::min(lo, m);
+        hi = std::max(hi, m);
+      }
+    }
+  if (delay_s > 0.0) {
+    lo = std::min(lo, 1.0 / delay_s);
+    hi = std::max(hi, 1.0 / delay_s);
+  }
+  const int rel = loop.relative_degree();
+  if (!std::isfinite(lo)) {
+    const double g = std::abs(loop.gain);
+    lo = hi = (rel > 0 && g > 0.0) ? std::pow(g, 1.0 / rel) : 1.0;
+  }
+  lo /= 100.0;
+  hi *= 100.0;
+  const int type = zpk_integrators(loop);
+  for (int i = 0; i < 6 && type > 0 && std::abs(loop_response(loop, delay_s, lo)) < 1.0; ++i) lo /= 10.0;
+  for (int i = 0; i < 6 && rel > 0 && std::abs(loop_response(loop, delay_s, hi)) > 1.0; ++i) hi *= 10.0;
+  if (opt.w_min > 0.0) lo = opt.w_min;
+  if (opt.w_max > 0.0) hi = opt.w_max;
+
+  std::vector<double> w;
+  const double decades = std::log10(hi / lo);
+  const int n = std::max(2, static_cast<int>(std::ceil(decades * opt.points_per_decade)) + 1);
+  w.reserve(static_cast<size_t>(n) + 64);
+  for (int i = 0; i < n; ++i) w.push_back(lo * std::pow(10.0, decades * i / (n - 1)));
+  static const double offsets[] = {-3, -2, -1.5, -1, -0.6, -0.3, 0, 0.3, 0.6, 1, 1.5, 2, 3};
+  for (const Roots* set : {&loop.zeros, &loop.poles})
+    for (const Complex& r : *set) {
+      if (r.imag() <= 0.0) continue;
+      const double wn = std::abs(r), zeta = -r.real() / wn;
+      if (std::abs(zeta) >= 0.3) continue;
+      const double width = std::max(std::abs(zeta), 1e-6);
+      for (double o : offsets) {
+        const double x = wn * (1.0 + width * o);
+        if (x > lo && x < hi) w.push_back(x);
+      }
+    }
+  if (delay_s > 0.0) {
+    const double step = 0.5 / delay_s, top = std::min(hi, 200.0 / delay_s);
+    for (double x = step; x < top; x += step)
+      if (x > lo) w.push_back(x);
+  }
+  std::sort(w.begin(), w.end());
+  w.erase(std::unique(w.begin(), w.end()), w.end());
+  return w;
+}
+
+namespace {
+
+// Root of f on [a, b] (f(a), f(b) of opposite signs), bisecting in log frequency.
+double refine_log(const std::function<double(double)>& f, double a, double b) {
+  double fa = f(a);
+  double la = std::log(a), lb = std::log(b);
+  for (int it = 0; it < 80 && (lb - la) > 1e-15; ++it) {
+    const double lm = 0.5 * (la + lb);
+    const double fm = f(std::exp(lm));
+    if (fm == 0.0) return std::exp(lm);
+    if ((fm > 0.0) == (fa > 0.0)) {
+      la = lm;
+      fa = fm;
+    } else {
+      lb = lm;
+    }
+  }
+  return std::exp(0.5 * (la + lb));
+}
+
+// Golden-section maximum of f over [a, b] in log frequency.
+std::pair<double, double> maximise_log(const std::function<double(double)>& f, double a, double b) {
+  const double g = 0.5 * (std::sqrt(5.0) - 1.0);
+  double la = std::log(a), lb = std::log(b);
+  double lc = lb - g * (lb - la), ld = la + g * (lb - la);
+  double fc = f(std::exp(lc)), fd = f(std::exp(ld));
+  for (int it = 0; it < 100 && (lb - la) > 1e-13; ++it) {
+    if (fc > fd) {
+      lb = ld; ld = lc; fd = fc;
+      lc = lb - g * (lb - la); fc = f(std::exp(lc));
+    } else {
+      la = lc; lc = ld; fc = fd;
+      ld = la + g * (lb - la); fd = f(std::exp(ld));
+    }
+  }
+  const double w = std::exp(0.5 * (la + lb));
+  return {w, f(w)};
+}
+
+}  // namespace
+
+FrequencyMetrics frequency_metrics(const Zpk& loop, double delay_s, const FrequencyOptions& opt) {
+  FrequencyMetrics m;
+  const std::vector<double> w = frequency_grid(loop, delay_s, opt);
+  m.grid_min_rad_s = w.front();
+  m.grid_max_rad_s = w.back();
+  std::vector<Complex> L(w.size());
+  for (size_t i = 0; i < w.size(); ++i) L[i] = loop_response(loop, delay_s, w[i]);
+
+  auto logmag = [&](double x) { return std::log(std::abs(loop_response(loop, delay_s, x))); };
+  auto imag_part = [&](double x) { return loop_response(loop, delay_s, x).imag(); };
+
+  const int type = zpk_integrators(loop);
+  if (type == 0) {
+    const double L0 = zpk_low_frequency_gain(loop);
+    if (L0 < 0.0) {
+      m.phase_crossovers_rad_s.push_back(0.0);
+      m.critical_gains.push_back(1.0 / -L0);
+    }
+  }
+  for (size_t i = 0; i + 1 < w.size(); ++i) {
+    const double g0 = std::abs(L[i]) - 1.0, g1 = std::abs(L[i + 1]) - 1.0;
+    if ((g0 < 0.0) != (g1 < 0.0)) {
+      const double wc = refine_log(logmag, w[i], w[i + 1]);
+      const Complex Lc = loop_response(loop, delay_s, wc);
+      m.gain_crossovers_rad_s.push_back(wc);
+      m.phase_margins_deg.push_back(wrap_degrees(180.0 + std::arg(Lc) * 180.0 / M_PI));
+    }
+    const double h0 = L[i].imag(), h1 = L[i + 1].imag();
+    if ((h0 < 0.0) != (h1 < 0.0) && (L[i].real() < 0.0 || L[i + 1].real() < 0.0)) {
+      const double wp = refine_log(imag_part, w[i], w[i + 1]);
+      const Complex Lp = loop_response(loop, delay_s, wp);
+      if (Lp.real() < 0.0) {
+        m.phase_crossovers_rad_s.push_back(wp);
+        m.critical_gains.push_back(1.0 / std::abs(Lp));
+      }
+    }
+  }
+  if (loop.relative_degree() == 0 && loop.gain != 0.0 && (delay_s > 0.0 || loop.gain < 0.0)) {
+    // Biproper loop: the high-frequency limit |L| -> |gain| is a boundary as well.
+    m.phase_crossovers_rad_s.push_back(INFINITY);
+    m.critical_gains.push_back(1.0 / std::abs(loop.gain));
+  }
+
+  for (size_t i = 0; i < m.phase_margins_deg.size(); ++i) {
+    if (!m.phase_margin_deg || m.phase_margins_deg[i] < *m.phase_margin_deg) {
+      m.phase_margin_deg = m.phase_margins_deg[i];
+      m.phase_margin_at_rad_s = m.gain_crossovers_rad_s[i];
+    }
+  }
+  if (!m.gain_crossovers_rad_s.empty()) m.crossover_rad_s = m.gain_crossovers_rad_s.back();
+
+  std::optional<double> up, down;
+  std::optional<double> up_w, down_w;
+  for (size_t i = 0; i < m.critical_gains.size(); ++i) {
+    const double k = m.critical_gains[i];
+    if (k >= 1.0 && (!up || k < *up)) { up = k; up_w = m.phase_crossovers_rad_s[i]; }
+    if (k < 1.0 && (!down || k > *down)) { down = k; down_w = m.phase_crossovers_rad_s[i]; }
+  }
+  if (up) m.gain_increase_db = 20.0 * std::log10(*up);
+  if (down) m.gain_reduction_db = -20.0 * std::log10(*down);
+  if (m.gain_increase_db && (!m.gain_reduction_db || *m.gain_increase_db <= *m.gain_reduction_db)) {
+    m.gain_margin_db = m.gain_increase_db;
+    if (std::isfinite(*up_w)) m.gain_margin_at_rad_s = up_w;
+  } else if (m.gain_reduction_db) {
+    m.gain_margin_db = m.gain_reduction_db;
+    if (std::isfinite(*down_w)) m.gain_margin_at_rad_s = down_w;
+  }
+
+  // Closed-loop bandwidth.
+  double T0 = 0.0;
+  if (type > 0) T0 = 1.0;
+  else if (type == 0) {
+    const double L0 = zpk_low_frequency_gain(loop);
+    T0 = std::abs(L0 / (1.0 + L0));
+  }
+  if (T0 > 0.0 && std::isfinite(T0)) {
+    const double level = T0 / std::sqrt(2.0);
+    auto tmag = [&](double x) {
+      const Complex Lx = loop_response(loop, delay_s, x);
+      return std::log(std::abs(Lx / (1.0 + Lx))) - std::log(level);
+    };
+    for (size_t i = 0; i + 1 < w.size(); ++i) {
+      const double a = std::abs(L[i] / (1.0 + L[i])), b = std::abs(L[i + 1] / (1.0 + L[i + 1]));
+      if (a >= level && b < level) {
+        m.bandwidth_rad_s = refine_log(tmag, w[i], w[i + 1]);
+        break;
+      }
+      if (a < level) break;  // below the level already at the grid start: not a low-pass loop
+    }
+  }
+
+  // Sensitivity peaks.
+  size_t is = 0, it = 0;
+  for (size_t i = 0; i < w.size(); ++i) {
+    if (std::abs(1.0 + L[i]) < std::abs(1.0 + L[is])) is = i;
+    if (std::abs(L[i] / (1.0 + L[i])) > std::abs(L[it] / (1.0 + L[it]))) it = i;
+  }
+  auto smag = [&](double x) { return 1.0 / std::abs(1.0 + loop_response(loop, delay_s, x)); };
+  auto tpk = [&](double x) {
+    const Complex Lx = loop_response(loop, delay_s, x);
+    return std::abs(Lx / (1.0 + Lx));
+  };
+  if (is > 0 && is + 1 < w.size()) {
+    const auto pk = maximise_log(smag, w[is - 1], w[is + 1]);
+    m.peak_sensitivity = std::max(pk.second, smag(w[is]));
+    m.peak_sensitivity_at_rad_s = pk.second >= smag(w[is]) ? pk.first : w[is];
+  } else {
+    m.peak_sensitivity = smag(w[is]);
+    m.peak_sensitivity_at_rad_s = w[is];
+  }
+  if (it > 0 && it + 1 < w.size()) m.peak_complementary = std::max(maximise_log(tpk, w[it - 1], w[it + 1]).second, tpk(w[it]));
+  else m.peak_complementary = tpk(w[it]);
+  for (auto* o : {&m.peak_sensitivity, &m.peak_complementary})
+    if (*o && !std::isfinite(**o)) o->reset();
+  return m;
+}
+
+}  // namespace pw

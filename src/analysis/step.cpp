@@ -1,0 +1,300 @@
+#include "polewright/analysis/step.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <string>
+
+#include <unsupported/Eigen/MatrixFunctions>
+
+namespace pw {
+
+bool StepOptions::IsValid(std::string* error) const {
+  auto fail = [&](const char* msg) {
+    if (error) *error = msg;
+    return false;
+  };
+  if (!(horizon_s >= 0.0) || !std::isfinite(horizon_s)) return fail("horizon_s must be >= 0 and finite");
+  if (samples < 100 || samples > max_samples) return fail("samples must be within 100..max_samples");
+  if (!(band > 0.0 && band < 1.0)) return fail("band must be within (0, 1)");
+  return true;
+}
+
+namespace {
+
+// z_{k+1} = E z_k with z = [x; 1]: exact for a constant input between samples.
+Mat augmented_map(const ClosedLoop& L, double tau) {
+  const int n = L.states();
+  Mat M = Mat::Zero(n + 1, n + 1);
+  M.topLeftCorner(n, n) = L.A * tau;
+  M.topRightCorner(n, 1) = L.B * tau;
+  Mat E = M.exp();
+  return E;
+}
+
+RowVec output_row(const RowVec& C, double D) {
+  RowVec r(C.size() + 1);
+  r.head(C.size()) = C;
+  r(C.size()) = D;
+  return r;
+}
+
+struct Simulation {
+  double dt = 0.0;
+  std::vector<double> y, u;
+};
+
+// Runs N samples; captures z at the requested indices (sorted ascending).
+void simulate(const ClosedLoop& L, const Mat& E, int N, Simulation& sim, const std::vector<int>& capture,
+              std::vector<Vec>& captured) {
+  const int n = L.states();
+  const RowVec cy = output_row(L.Cy, L.Dy);
+  const RowVec cu = output_row(L.Cu, L.Du);
+  Vec z = Vec::Zero(n + 1);
+  z(n) = 1.0;
+  Vec next(n + 1);
+  sim.y.resize(static_cast<size_t>(N));
+  sim.u.resize(static_cast<size_t>(N));
+  captured.assign(capture.size(), Vec());
+  size_t ci = 0;
+  for (int k = 0; k < N; ++k) {
+    sim.y[static_cast<size_t>(k)] = cy.dot(z);
+    sim.u[static_cast<size_t>(k)] = cu.dot(z);
+    while (ci < capture.size() && capture[ci] == k) captured[ci++] = z;
+    next.noalias() = E * z;
+    z.swap(next);
+  }
+}
+
+// Finds tau in [0, dt] with out(E(tau) z0) = level, given a sign change over the interval.
+double exact_crossing(const ClosedLoop& L, const Vec& z0, const RowVec& out, double dt, double level) {
+  double a = 0.0, b = dt;
+  double fa = out.dot(z0) - level;
+  for (int it = 0; it < 48 && (b - a) > 1e-14 * dt; ++it) {
+    const double m = 0.5 * (a + b);
+    const double fm = out.dot(augmented_map(L, m) * z0) - level;
+    if ((fm > 0.0) == (fa > 0.0)) {
+      a = m;
+      fa = fm;
+    } else {
+      b = m;
+    }
+  }
+  return 0.5 * (a + b);
+}
+
+// Golden-section maximum of sign * out(E(tau) z0) over tau in [0, span].
+std::pair<double, double> exact_peak(const ClosedLoop& L, const Vec& z0, const RowVec& out, double span,
+                                     double sign) {
+  const double g = 0.5 * (std::sqrt(5.0) - 1.0);
+  auto f = [&](double t) { return sign * out.dot(augmented_map(L, t) * z0); };
+  double a = 0.0, b = span;
+  double c = b - g * (b - a), d = a + g * (b - a);
+  double fc = f(c), fd = f(d);
+  for (int it = 0; it < 60 && (b - a) > 1e-13 * span; ++it) {
+    if (fc > fd) {
+      b = d; d = c; fd = fc;
+      c = b - g * (b - a); fc = f(c);
+    } else {
+      a = c; c = d; fc = fd;
+      d = a + g * (b - a); fd = f(d);
+    }
+  }
+  const double t = 0.5 * (a + b);
+  return {t, f(t)};
+}
+
+double linear_crossing(double y0, double y1, double level) {
+  const double d = y1 - y0;
+  return d != 0.0 ? std::clamp((level - y0) / d, 0.0, 1.0) : 0.0;
+}
+
+// Vertex of the parabola through three equally spaced samples: offset in samples and value.
+std::pair<double, double> parabola_peak(double ym, double y0, double yp) {
+  const double den = ym - 2.0 * y0 + yp;
+  if (den >= 0.0) return {0.0, y0};
+  const double off = std::clamp(0.5 * (ym - yp) / den, -1.0, 1.0);
+  return {off, y0 - 0.25 * (ym - yp) * off};
+}
+
+int adaptive_count(const PoleAnalysis& poles, double horizon, const StepOptions& opt) {
+  if (!opt.adaptive_samples) return opt.samples;
+  double h = horizon / (opt.samples - 1);
+  for (const PoleInfo& p : poles.poles) {
+    if (!p.matters) continue;
+    if (std::abs(p.pole.imag()) > 0.0) h = std::min(h, 2.0 * M_PI / std::abs(p.pole.imag()) / 20.0);
+    if (p.pole.real() < 0.0) h = std::min(h, 1.0 / -p.pole.real() / 5.0);
+  }
+  const double n = std::ceil(horizon / h) + 1.0;
+  return static_cast<int>(std::clamp(n, static_cast<double>(opt.samples), static_cast<double>(opt.max_samples)));
+}
+
+}  // namespace
+
+double choose_step_horizon(const PoleAnalysis& poles, double final_value, double band, double min_horizon_s) {
+  double slow_all = INFINITY, slow_matter = INFINITY, total = 0.0;
+  for (const PoleInfo& p : poles.poles) {
+    const double decay = -p.pole.real();
+    if (decay <= 0.0) continue;
+    slow_all = std::min(slow_all, decay);
+    if (p.matters) slow_matter = std::min(slow_matter, decay);
+    total += p.residue;
+  }
+  if (!std::isfinite(slow_all)) return std::max(1.0, 1.5 * min_horizon_s);
+  if (!std::isfinite(slow_matter)) slow_matter = slow_all;
+  double t = 10.0 / slow_matter;
+  if (poles.residues_reliable) {
+    const double target = 0.1 * band * std::max(std::abs(final_value), 1e-3 * total);
+    auto envelope = [&](double tt) {
+      double e = 0.0;
+      for (const PoleInfo& p : poles.poles) e += p.residue * std::exp(p.pole.real() * tt);
+      return e;
+    };
+    double hi = 60.0 / slow_all;
+    if (envelope(hi) <= target) {
+      double lo = 0.0;
+      for (int it = 0; it < 60; ++it) {
+        const double m = 0.5 * (lo + hi);
+        (envelope(m) > target ? lo : hi) = m;
+      }
+      t = std::max(t, hi);
+    } else {
+      t = std::max(t, hi);
+    }
+  } else {
+    t = std::max(t, 20.0 / slow_all);
+  }
+  return std::max(t, 1.5 * min_horizon_s);
+}
+
+StepMetrics step_response(const ClosedLoop& L, const PoleAnalysis& poles, const StepOptions& opt,
+                          double min_horizon_s) {
+  StepMetrics m;
+  const double yf = closed_loop_dc_gain(L);
+  m.final_value = yf;
+  m.horizon_s = opt.horizon_s > 0.0 ? opt.horizon_s : choose_step_horizon(poles, yf, opt.band, min_horizon_s);
+  const int N = adaptive_count(poles, m.horizon_s, opt);
+  m.samples = N;
+  const double dt = m.horizon_s / (N - 1);
+  const Mat E = augmented_map(L, dt);
+
+  Simulation sim;
+  std::vector<Vec> none;
+  simulate(L, E, N, sim, {}, none);
+  const std::vector<double>& y = sim.y;
+  const std::vector<double>& u = sim.u;
+
+  const double sgn = yf >= 0.0 ? 1.0 : -1.0;
+  const double F = std::abs(yf);
+  const double band = opt.band * F;
+
+  // Sample-level events.
+  size_t kpeak = 0, kumax = 0;
+  double undershoot = 0.0;
+  for (size_t k = 0; k < y.size(); ++k) {
+    if (sgn * y[k] > sgn * y[kpeak]) kpeak = k;
+    if (std::abs(u[k]) > std::abs(u[kumax])) kumax = k;
+    undershoot = std::max(undershoot, -sgn * y[k]);
+  }
+  auto first_reach = [&](double frac) -> long {
+    for (size_t k = 0; k < y.size(); ++k)
+      if (sgn * y[k] >= frac * F) return static_cast<long>(k);
+    return -1;
+  };
+  const long k10 = first_reach(0.1), k90 = first_reach(0.9);
+  long klast = -1;  // last sample outside the band
+  for (size_t k = y.size(); k-- > 0;)
+    if (std::abs(y[k] - yf) > band) {
+      klast = static_cast<long>(k);
+      break;
+    }
+
+  const RowVec cy = output_row(L.Cy, L.Dy);
+  const RowVec cu = output_row(L.Cu, L.Du);
+  const bool interior_peak = kpeak > 0 && kpeak + 1 < y.size();
+  const bool interior_u = kumax > 0 && kumax + 1 < u.size();
+
+  // Capture states for exact refinement.
+  std::vector<int> want;
+  if (opt.exact_refinement) {
+    if (interior_peak) want.push_back(static_cast<int>(kpeak) - 1);
+    if (interior_u) want.push_back(static_cast<int>(kumax) - 1);
+    if (k10 > 0) want.push_back(static_cast<int>(k10) - 1);
+    if (k90 > 0) want.push_back(static_cast<int>(k90) - 1);
+    if (klast >= 0 && klast + 1 < static_cast<long>(y.size())) want.push_back(static_cast<int>(klast));
+    std::sort(want.begin(), want.end());
+    want.erase(std::unique(want.begin(), want.end()), want.end());
+  }
+  std::vector<Vec> states;
+  if (!want.empty()) {
+    Simulation again;
+    simulate(L, E, *std::max_element(want.begin(), want.end()) + 1, again, want, states);
+  }
+  auto state_at = [&](long k) -> const Vec& {
+    const size_t i = static_cast<size_t>(std::lower_bound(want.begin(), want.end(), static_cast<int>(k)) - want.begin());
+    return states[i];
+  };
+
+  // Peak of y and overshoot.
+  double peak_val = sgn * y[kpeak], peak_t = dt * static_cast<double>(kpeak);
+  if (interior_peak) {
+    if (opt.exact_refinement) {
+      const auto pk = exact_peak(L, state_at(static_cast<long>(kpeak) - 1), cy, 2.0 * dt, sgn);
+      peak_t = dt * (static_cast<double>(kpeak) - 1.0) + pk.first;
+      peak_val = std::max(peak_val, pk.second);
+    } else {
+      const auto pk = parabola_peak(sgn * y[kpeak - 1], sgn * y[kpeak], sgn * y[kpeak + 1]);
+      peak_t = dt * (static_cast<double>(kpeak) + pk.first);
+      peak_val = pk.second;
+    }
+  }
+  if (F > 0.0) {
+    const double os = 100.0 * (peak_val - F) / F;
+    m.overshoot_pct = std::max(0.0, os);
+    if (os > 0.0 && interior_peak) m.peak_time_s = peak_t;
+    m.undershoot_pct = 100.0 * undershoot / F;
+  }
+
+  // Rise time.
+  auto crossing_time = [&](long k, double frac) -> double {
+    if (k <= 0) return 0.0;
+    const double level = sgn * frac * F;
+    if (opt.exact_refinement) return dt * (k - 1) + exact_crossing(L, state_at(k - 1), cy, dt, level);
+    return dt * (static_cast<double>(k - 1) +
+                 linear_crossing(y[static_cast<size_t>(k - 1)], y[static_cast<size_t>(k)], level));
+  };
+  if (F > 0.0 && k10 >= 0 && k90 >= 0) m.rise_time_s = crossing_time(k90, 0.9) - crossing_time(k10, 0.1);
+
+  // Settling time: last exit from the band.
+  if (F > 0.0) {
+    if (klast < 0) {
+      m.settling_time_s = 0.0;
+    } else if (klast + 1 < static_cast<long>(y.size())) {
+      const size_t k = static_cast<size_t>(klast);
+      const double level = yf + (y[k] > yf ? band : -band);
+      const double tau = opt.exact_refinement ? exact_crossing(L, state_at(klast), cy, dt, level)
+                                              : dt * linear_crossing(y[k], y[k + 1], level);
+      m.settling_time_s = dt * static_cast<double>(k) + tau;
+    }
+  }
+
+  // Peak effort.
+  double umax = std::abs(u[kumax]);
+  if (interior_u) {
+    const double s = u[kumax] >= 0.0 ? 1.0 : -1.0;
+    if (opt.exact_refinement) {
+      umax = std::max(umax, exact_peak(L, state_at(static_cast<long>(kumax) - 1), cu, 2.0 * dt, s).second);
+    } else {
+      umax = std::max(umax, parabola_peak(s * u[kumax - 1], s * u[kumax], s * u[kumax + 1]).second);
+    }
+  }
+  m.peak_effort = umax;
+
+  if (opt.keep_trace) {
+    m.trace.dt = dt;
+    m.trace.y = y;
+    m.trace.u = u;
+  }
+  return m;
+}
+
+}  // namespace pw

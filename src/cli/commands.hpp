@@ -1,0 +1,31 @@
+// Subcommand registration and the shared exit-code handling of the CLI.
+#pragma once
+
+#include <functional>
+#include <string>
+
+#include <CLI/CLI.hpp>
+
+#include "polewright/outputs/check_output.hpp"
+
+namespace pw::cli {
+
+constexpr int kExitMet = 0;
+constexpr int kExitNotMet = 1;
+constexpr int kExitBadInput = 2;
+constexpr int kExitInternal = 3;
+
+void register_validate(CLI::App& app);
+void register_check(CLI::App& app);
+
+// Sets the action of the subcommand that was parsed.
+void select(std::function<int()> action);
+int run_selected();
+
+// Runs `body` and maps exceptions to exit codes with one line on stderr naming the file.
+int guarded(const std::string& file, const std::function<int()>& body);
+
+// Writes to `path` atomically, or to stdout when path is "-".
+void emit(const std::string& path, const std::string& content);
+
+}  // namespace pw::cli

@@ -1,0 +1,97 @@
+#include <cmath>
+
+#include "polewright/outputs/check_output.hpp"
+#include "polewright/outputs/json_values.hpp"
+#include "polewright/outputs/text_table.hpp"
+
+namespace pw {
+
+namespace {
+
+std::string with_unit(const std::string& v, const char* unit) {
+  return (*unit && v != "-") ? v + " " + unit : v;
+}
+
+std::string pole_text(Complex p) {
+  if (p.imag() == 0.0) return fmt_number(p.real(), 6);
+  return fmt_number(p.real(), 6) + (p.imag() > 0 ? " + j" : " - j") + fmt_number(std::abs(p.imag()), 6);
+}
+
+}  // namespace
+
+std::string check_report_text(const CheckReport& r) {
+  const Evaluation& ev = r.evaluation;
+  std::string out;
+  out += "polewright check" + (r.spec_name.empty() ? std::string() : ": " + r.spec_name) + "\n";
+  out += "compensator  C(s) = " + zpk_to_string(r.compensator) + "\n";
+  out += "plants       " + std::to_string(r.plants.size()) + " (nominal";
+  if (r.plants.size() > 1) out += " + " + std::to_string(r.plants.size() - 1) + " variants";
+  out += ")\n\n";
+
+  TextTable t({"requirement", "limit", "worst value", "margin", "met", "worst plant"});
+  int missed = 0;
+  for (const RequirementOutcome& o : ev.outcomes) {
+    const MetricInfo& info = metric_info(o.requirement.metric);
+    const std::string limit = std::string(o.requirement.sense == Sense::AtMost ? "<= " : ">= ") +
+                              with_unit(fmt_number(o.requirement.limit), info.unit);
+    std::string value = o.worst.infinite ? "unbounded" : with_unit(fmt_number(o.worst.value), info.unit);
+    std::string margin = "-";
+    if (o.worst.value) margin = with_unit(fmt_number(requirement_margin(o.requirement, *o.worst.value)), info.unit);
+    if (!o.met) ++missed;
+    t.add({info.key, limit, value, margin, o.met ? "yes" : "NO", r.plants[static_cast<size_t>(o.worst_plant)].name});
+  }
+  out += t.render();
+
+  out += "\nallowed region for the poles that matter\n";
+  if (r.region.derivations.empty()) out += "  (no requirement bounds the region)\n";
+  for (const std::string& d : r.region.derivations) out += "  " + d + "\n";
+
+  for (size_t i = 0; i < ev.plants.size(); ++i) {
+    const LoopEvaluation& e = ev.plants[i];
+    out += "\nclosed-loop poles, " + e.plant_name + (e.stable ? "" : "  ** UNSTABLE **") + "\n";
+    if (!e.well_posed) {
+      out += "  the loop is not well posed: 1 + Dc Dg = 0\n";
+      continue;
+    }
+    TextTable p({"pole", "damping", "wn (rad/s)", "step share", "matters", "in region"});
+    for (const PoleInfo& pi : e.poles.poles) {
+      if (pi.pole.imag() < 0.0) continue;
+      p.add({pole_text(pi.pole), fmt_number(pi.damping), fmt_number(pi.natural_frequency),
+             fmt_number(100.0 * pi.share, 3) + " %", pi.matters ? "yes" : "no (dipole)",
+             r.region.contains(pi.pole) ? "yes" : "no"});
+    }
+    out += p.render();
+    if (!e.poles.residues_reliable) out += "  note: repeated or nearly repeated poles: step shares are not reliable, every pole counts\n";
+    if (e.gain.lo)
+      out += "  gain interval keeping the poles that matter in the region: x" + fmt_number(*e.gain.lo) + " .. x" +
+             fmt_number(*e.gain.hi) + (e.gain.hi_at_limit ? " (scan limit)" : "") + "\n";
+    else
+      out += "  gain interval: none (the nominal loop already has a pole that matters outside the region)\n";
+  }
+
+  const Locus& l = r.locus;
+  out += "\nroot locus of the nominal loop (loop gain scaled by k; k = 1 is the design)\n";
+  if (l.asymptote_centroid) {
+    out += "  asymptotes: centroid " + fmt_number(*l.asymptote_centroid) + ", angles";
+    for (double a : l.asymptote_angles_deg) out += " " + fmt_number(a) + " deg";
+    out += "\n";
+  }
+  for (const LocusLandmark& b : l.breakaways)
+    out += "  real-axis break point s = " + fmt_number(b.s.real(), 6) + " at k = " + fmt_number(b.gain) + "\n";
+  for (const LocusLandmark& c : l.axis_crossings)
+    out += "  imaginary-axis crossing s = j" + fmt_number(c.s.imag(), 6) + " at k = " + fmt_number(c.gain) + "\n";
+  out += "  stable for k in:";
+  if (l.stable_intervals.empty()) out += " (no gain)";
+  for (const GainInterval& g : l.stable_intervals)
+    out += " (" + fmt_number(g.lo) + ", " + (g.hi ? fmt_number(*g.hi) : std::string("inf")) + ")";
+  out += "\n";
+
+  out += "\nverdict: ";
+  if (ev.all_met) out += "MET: every requirement holds for every plant\n";
+  else if (!ev.all_stable) out += "NOT MET: the closed loop is unstable for at least one plant\n";
+  else out += "NOT MET: " + std::to_string(missed) + " of " + std::to_string(ev.outcomes.size()) + " requirement bounds missed\n";
+  out += "\ncaution: " + std::string(kCautions) + "\n";
+  return out;
+}
+
+}  // namespace pw

@@ -1,0 +1,42 @@
+#include "polewright/outputs/json_values.hpp"
+
+#include <cmath>
+
+namespace pw {
+
+const char* const kCautions =
+    "Results rest on the model. Verify on the real plant, first at reduced gain, with limits, "
+    "interlocks and emergency stops in place. Defer to local codes, machinery-safety standards and "
+    "licensed engineering practice.";
+
+nlohmann::json json_number(double v) { return std::isfinite(v) ? nlohmann::json(v) : nlohmann::json(nullptr); }
+
+nlohmann::json json_number(const std::optional<double>& v) { return v ? json_number(*v) : nlohmann::json(nullptr); }
+
+nlohmann::json json_number(const MetricValue& v) { return json_number(v.value); }
+
+nlohmann::json json_complex(Complex c) { return {{"re", json_number(c.real())}, {"im", json_number(c.imag())}}; }
+
+nlohmann::json json_zpk(const Zpk& z) {
+  nlohmann::json j;
+  j["gain"] = json_number(z.gain);
+  // Roots in the spec's own encoding: a real root as a number, a conjugate pair once as
+  // {"re", "im"} with im > 0, so the zeros/poles/gain part reads back as a compensator object.
+  auto roots = [](const Roots& rs) {
+    nlohmann::json a = nlohmann::json::array();
+    for (const Complex& r : rs) {
+      if (r.imag() < 0.0) continue;
+      a.push_back(r.imag() == 0.0 ? json_number(r.real()) : json_complex(r));
+    }
+    return a;
+  };
+  j["zeros"] = roots(z.zeros);
+  j["poles"] = roots(z.poles);
+  j["numerator"] = nlohmann::json::array();
+  for (double c : zpk_numerator(z)) j["numerator"].push_back(json_number(c));
+  j["denominator"] = nlohmann::json::array();
+  for (double c : zpk_denominator(z)) j["denominator"].push_back(json_number(c));
+  return j;
+}
+
+}  // namespace pw

@@ -1,0 +1,54 @@
+#include <cmath>
+
+#include "polewright/requirements/evaluate.hpp"
+
+namespace pw {
+
+namespace {
+
+bool inside(const LoopParts& parts, double k, const Region& region, double share) {
+  const ClosedLoop cl = close_loop(parts.compensator, parts.plant, k);
+  if (!cl.well_posed) return false;
+  const PoleAnalysis pa = analyze_poles(cl, share);
+  if (!pa.stable) return false;
+  for (const PoleInfo& p : pa.poles)
+    if (p.matters && !region.contains(p.pole)) return false;
+  return true;
+}
+
+// Walks from 1 towards `limit` by `ratio` steps, then bisects the first change in log gain.
+double edge(const LoopParts& parts, const Region& region, double share, double limit, double ratio, bool& at_limit) {
+  const bool up = limit > 1.0;
+  double good = 1.0;
+  for (;;) {
+    double next = up ? good * ratio : good / ratio;
+    if (up ? next >= limit : next <= limit) next = limit;
+    if (!inside(parts, next, region, share)) {
+      double a = std::log(good), b = std::log(next);
+      for (int it = 0; it < 40; ++it) {
+        const double m = 0.5 * (a + b);
+        (inside(parts, std::exp(m), region, share) ? a : b) = m;
+      }
+      at_limit = false;
+      return std::exp(a);
+    }
+    good = next;
+    if (good == limit) {
+      at_limit = true;
+      return limit;
+    }
+  }
+}
+
+}  // namespace
+
+GainToleranceResult gain_tolerance(const LoopParts& parts, const Region& region, double share, double ratio) {
+  GainToleranceResult g;
+  if (!inside(parts, 1.0, region, share)) return g;
+  g.hi = edge(parts, region, share, kGainScanMax, ratio, g.hi_at_limit);
+  g.lo = edge(parts, region, share, kGainScanMin, ratio, g.lo_at_limit);
+  g.tolerance_pct = 100.0 * std::min(*g.hi - 1.0, 1.0 - *g.lo);
+  return g;
+}
+
+}  // namespace pw

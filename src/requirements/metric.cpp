@@ -1,0 +1,27 @@
+#include "polewright/requirements/metric.hpp"
+
+namespace pw {
+
+const std::array<MetricInfo, kMetricCount>& metric_table() {
+  static const std::array<MetricInfo, kMetricCount> table = {{
+      {MetricId::Overshoot, "overshoot_pct", "overshoot", "%", BoundKind::MaxOnly, true},
+      {MetricId::SettlingTime, "settling_time_s", "settling time", "s", BoundKind::MaxOnly, true},
+      {MetricId::RiseTime, "rise_time_s", "rise time 10-90 %", "s", BoundKind::MaxOnly, true},
+      {MetricId::SteadyStateError, "steady_state_error", "steady-state error", "", BoundKind::MaxOnly, false},
+      {MetricId::PhaseMargin, "phase_margin_deg", "phase margin", "deg", BoundKind::MinOnly, false},
+      {MetricId::GainMargin, "gain_margin_db", "gain margin", "dB", BoundKind::MinOnly, false},
+      {MetricId::Crossover, "crossover_rad_s", "gain crossover", "rad/s", BoundKind::MinOrMax, false},
+      {MetricId::Bandwidth, "bandwidth_rad_s", "closed-loop bandwidth", "rad/s", BoundKind::MinOrMax, false},
+      {MetricId::PeakEffort, "peak_effort", "peak control effort", "", BoundKind::MaxOnly, true},
+      {MetricId::PeakSensitivity, "peak_sensitivity", "peak |S|", "", BoundKind::MaxOnly, false},
+      {MetricId::GainTolerance, "gain_tolerance_pct", "gain tolerance", "%", BoundKind::MinOnly, false},
+      {MetricId::DampingRatio, "damping_ratio", "damping ratio", "", BoundKind::MinOnly, false},
+      {MetricId::NaturalFrequency, "natural_frequency_rad_s", "dominant natural frequency", "rad/s",
+       BoundKind::MinOrMax, false},
+  }};
+  return table;
+}
+
+const MetricInfo& metric_info(MetricId id) { return metric_table()[static_cast<size_t>(id)]; }
+
+}  // namespace pw

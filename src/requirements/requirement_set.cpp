@@ -1,0 +1,38 @@
+#include "polewright/requirements/requirement_set.hpp"
+
+#include <cmath>
+
+namespace pw {
+
+bool RequirementSet::has(MetricId id) const {
+  for (const Requirement& r : items)
+    if (r.metric == id) return true;
+  return false;
+}
+
+std::optional<double> RequirementSet::limit(MetricId id, Sense sense) const {
+  for (const Requirement& r : items)
+    if (r.metric == id && r.sense == sense) return r.limit;
+  return std::nullopt;
+}
+
+double requirement_margin(const Requirement& r, double value) {
+  return r.sense == Sense::AtMost ? r.limit - value : value - r.limit;
+}
+
+bool requirement_met(const Requirement& r, const MetricValue& v) {
+  if (v.infinite) return r.sense == Sense::AtLeast;
+  return v.value && requirement_margin(r, *v.value) >= 0.0;
+}
+
+double requirement_violation(const Requirement& r, const MetricValue& v) {
+  constexpr double kCap = 1e3;
+  if (v.infinite) return r.sense == Sense::AtLeast ? 0.0 : kCap;
+  if (!v.value || !std::isfinite(*v.value)) return kCap;
+  const double m = requirement_margin(r, *v.value);
+  if (m >= 0.0) return 0.0;
+  const double scale = std::abs(r.limit) > 0.0 ? std::abs(r.limit) : 1.0;
+  return std::min(-m / scale, kCap);
+}
+
+}  // namespace pw

@@ -1,0 +1,252 @@
+#include "polewright/requirements/spec_parse.hpp"
+
+#include <cmath>
+#include <map>
+
+#include "json_reader.hpp"
+
+namespace pw {
+
+using detail::describe;
+using detail::index_path;
+using detail::json;
+using detail::key_path;
+using detail::member;
+using detail::read_integer;
+using detail::read_number;
+
+const char* objective_name(Objective o) {
+  switch (o) {
+    case Objective::LeastEffort: return "least_effort";
+    case Objective::Fastest: return "fastest";
+    case Objective::MostRobust: return "most_robust";
+    case Objective::Simplest: return "simplest";
+  }
+  return "least_effort";
+}
+
+const std::vector<std::string>& known_keys(const std::string& kind) {
+  static const std::map<std::string, std::vector<std::string>> table = {
+      {"spec", {"$schema", "name", "plant", "requirements", "stages", "current", "search", "analysis"}},
+      {"plant", {"numerator", "denominator", "zeros", "poles", "gain", "delay_s", "variants"}},
+      {"plant_core", {"numerator", "denominator", "zeros", "poles", "gain", "delay_s"}},
+      {"variant", {"numerator", "denominator", "zeros", "poles", "gain", "delay_s", "name"}},
+      {"compensator", {"numerator", "denominator", "zeros", "poles", "gain"}},
+      {"requirements",
+       {"overshoot_pct", "settling_time_s", "rise_time_s", "steady_state_error", "phase_margin_deg", "gain_margin_db",
+        "crossover_rad_s", "bandwidth_rad_s", "peak_effort", "peak_sensitivity", "gain_tolerance_pct", "damping_ratio",
+        "natural_frequency_rad_s"}},
+      {"stages", {"lead", "lag", "notch", "integrator", "frequency_range_rad_s"}},
+      {"search", {"seed", "keep", "objective", "threads", "max_evaluations", "time_limit_s"}},
+      {"analysis", {"pade_order", "samples", "horizon_s", "residue_share_pct"}},
+      {"settling_time_s", {"max", "band_pct"}},
+      {"steady_state_error", {"max", "input"}},
+      {"max_only", {"max"}},
+      {"min_only", {"min"}},
+      {"min_or_max", {"min", "max"}},
+  };
+  static const std::vector<std::string> none;
+  auto it = table.find(kind);
+  return it == table.end() ? none : it->second;
+}
+
+namespace {
+
+// Per-requirement value rules: the open or closed interval a limit must lie in.
+struct LimitRule {
+  double lo;
+  bool lo_open;
+  double hi;  // INFINITY for none
+  bool hi_open;
+};
+
+LimitRule rule_for(MetricId id) {
+  switch (id) {
+    case MetricId::Overshoot: return {0.0, true, 100.0, true};
+    case MetricId::SteadyStateError: return {0.0, false, INFINITY, true};
+    case MetricId::PhaseMargin: return {0.0, true, 180.0, true};
+    case MetricId::PeakSensitivity: return {1.0, false, INFINITY, true};
+    case MetricId::GainTolerance: return {0.0, true, 100.0, true};
+    case MetricId::DampingRatio: return {0.0, true, 1.0, false};
+    default: return {0.0, true, INFINITY, true};
+  }
+}
+
+std::string rule_text(const LimitRule& r) {
+  auto num = [](double v) {
+    char b[32];
+    std::snprintf(b, sizeof b, "%g", v);
+    return std::string(b);
+  };
+  std::string s = r.lo_open ? "> " + num(r.lo) : ">= " + num(r.lo);
+  if (std::isfinite(r.hi)) s += r.hi_open ? " and < " + num(r.hi) : " and <= " + num(r.hi);
+  return s;
+}
+
+double read_limit(const json& j, const std::string& path, MetricId id) {
+  const double v = read_number(j, path);
+  const LimitRule r = rule_for(id);
+  const bool lo_ok = r.lo_open ? v > r.lo : v >= r.lo;
+  const bool hi_ok = r.hi_open ? v < r.hi : v <= r.hi;
+  if (!lo_ok || !hi_ok) throw SpecError(path, "must be " + rule_text(r) + " (got " + describe(j) + ")");
+  return v;
+}
+
+RequirementSet parse_requirements(const json& j, const std::string& path) {
+  detail::expect_object(j, path, known_keys("requirements"));
+  RequirementSet set;
+  for (const MetricInfo& info : metric_table()) {
+    const json* r = member(j, info.key);
+    if (!r) continue;
+    const std::string rp = key_path(path, info.key);
+    const char* kind = info.bounds == BoundKind::MaxOnly ? "max_only" : (info.bounds == BoundKind::MinOnly ? "min_only" : "min_or_max");
+    if (info.id == MetricId::SettlingTime) kind = "settling_time_s";
+    if (info.id == MetricId::SteadyStateError) kind = "steady_state_error";
+    detail::expect_object(*r, rp, known_keys(kind));
+    const json* mn = member(*r, "min");
+    const json* mx = member(*r, "max");
+    if (!mn && !mx)
+      throw SpecError(rp, info.bounds == BoundKind::MinOnly ? "needs a \"min\"" : (info.bounds == BoundKind::MaxOnly ? "needs a \"max\"" : "needs a \"min\" or a \"max\""));
+    std::optional<double> lo, hi;
+    if (mn) lo = read_limit(*mn, key_path(rp, "min"), info.id);
+    if (mx) hi = read_limit(*mx, key_path(rp, "max"), info.id);
+    if (lo && hi && !(*lo < *hi)) throw SpecError(key_path(rp, "min"), "must be below max");
+    if (lo) set.items.push_back({info.id, Sense::AtLeast, *lo});
+    if (hi) set.items.push_back({info.id, Sense::AtMost, *hi});
+    if (info.id == MetricId::SettlingTime) {
+      if (const json* b = member(*r, "band_pct")) {
+        const double band = read_number(*b, key_path(rp, "band_pct"));
+        if (!(band > 0.0 && band < 100.0))
+          throw SpecError(key_path(rp, "band_pct"), "must be > 0 and < 100 (got " + describe(*b) + ")");
+        set.settling_band = band / 100.0;
+      }
+    }
+    if (info.id == MetricId::SteadyStateError) {
+      if (const json* in = member(*r, "input")) {
+        const std::string ip = key_path(rp, "input");
+        if (!in->is_string()) throw SpecError(ip, "must be \"step\", \"ramp\" or \"parabola\"");
+        const std::string s = in->get<std::string>();
+        if (s == "step") set.error_signal = TestSignal::Step;
+        else if (s == "ramp") set.error_signal = TestSignal::Ramp;
+        else if (s == "parabola") set.error_signal = TestSignal::Parabola;
+        else throw SpecError(ip, "must be \"step\", \"ramp\" or \"parabola\" (got " + describe(*in) + ")");
+      }
+    }
+  }
+  return set;
+}
+
+StageSettings parse_stages(const json& j, const std::string& path) {
+  detail::expect_object(j, path, known_keys("stages"));
+  StageSettings s;
+  if (const json* v = member(j, "lead")) s.lead = static_cast<int>(read_integer(*v, key_path(path, "lead"), 0, 4));
+  if (const json* v = member(j, "lag")) s.lag = static_cast<int>(read_integer(*v, key_path(path, "lag"), 0, 4));
+  if (const json* v = member(j, "notch")) s.notch = static_cast<int>(read_integer(*v, key_path(path, "notch"), 0, 4));
+  if (const json* v = member(j, "integrator")) {
+    const std::string ip = key_path(path, "integrator");
+    if (v->is_boolean()) s.integrator = v->get<bool>() ? IntegratorChoice::On : IntegratorChoice::Off;
+    else if (v->is_string() && v->get<std::string>() == "auto") s.integrator = IntegratorChoice::Auto;
+    else throw SpecError(ip, "must be \"auto\", true or false (got " + describe(*v) + ")");
+  }
+  if (const json* v = member(j, "frequency_range_rad_s")) {
+    const std::string fp = key_path(path, "frequency_range_rad_s");
+    if (!v->is_array() || v->size() != 2) throw SpecError(fp, "must be [lo, hi] (got " + describe(*v) + ")");
+    const double lo = read_number((*v)[0], index_path(fp, 0), 1e9);
+    const double hi = read_number((*v)[1], index_path(fp, 1), 1e9);
+    if (!(lo > 0.0)) throw SpecError(index_path(fp, 0), "must be > 0");
+    if (!(hi > lo)) throw SpecError(index_path(fp, 1), "must be above lo (an empty or inverted range)");
+    s.frequency_range_rad_s = std::make_pair(lo, hi);
+  }
+  if (s.notch > 0 && !s.frequency_range_rad_s)
+    throw SpecError(key_path(path, "frequency_range_rad_s"), "is needed: a notch needs a frequency range to go in");
+  return s;
+}
+
+SearchSettings parse_search(const json& j, const std::string& path) {
+  detail::expect_object(j, path, known_keys("search"));
+  SearchSettings s;
+  if (const json* v = member(j, "seed")) s.seed = static_cast<unsigned long long>(read_integer(*v, key_path(path, "seed"), 0, 9007199254740991LL));
+  if (const json* v = member(j, "keep")) s.keep = static_cast<int>(read_integer(*v, key_path(path, "keep"), 1, 100));
+  if (const json* v = member(j, "threads")) s.threads = static_cast<int>(read_integer(*v, key_path(path, "threads"), 0, 1024));
+  if (const json* v = member(j, "max_evaluations"))
+    s.max_evaluations = read_integer(*v, key_path(path, "max_evaluations"), 1, 1000000000000LL);
+  if (const json* v = member(j, "time_limit_s")) {
+    s.time_limit_s = read_number(*v, key_path(path, "time_limit_s"), 1e7);
+    if (!(s.time_limit_s > 0.0)) throw SpecError(key_path(path, "time_limit_s"), "must be > 0");
+  }
+  if (const json* v = member(j, "objective")) {
+    const std::string op = key_path(path, "objective");
+    const std::string name = v->is_string() ? v->get<std::string>() : "";
+    bool found = false;
+    for (Objective o : {Objective::LeastEffort, Objective::Fastest, Objective::MostRobust, Objective::Simplest})
+      if (name == objective_name(o)) { s.objective = o; found = true; }
+    if (!found) throw SpecError(op, "must be least_effort, fastest, most_robust or simplest (got " + describe(*v) + ")");
+  }
+  return s;
+}
+
+AnalysisOptions parse_analysis(const json& j, const std::string& path) {
+  detail::expect_object(j, path, known_keys("analysis"));
+  AnalysisOptions a;
+  if (const json* v = member(j, "pade_order")) a.pade_order = static_cast<int>(read_integer(*v, key_path(path, "pade_order"), 1, kMaxPadeOrder));
+  if (const json* v = member(j, "samples")) a.step.samples = static_cast<int>(read_integer(*v, key_path(path, "samples"), 100, 100000));
+  if (const json* v = member(j, "horizon_s")) {
+    a.step.horizon_s = read_number(*v, key_path(path, "horizon_s"), 1e9);
+    if (!(a.step.horizon_s > 0.0)) throw SpecError(key_path(path, "horizon_s"), "must be > 0");
+  }
+  if (const json* v = member(j, "residue_share_pct")) {
+    const double p = read_number(*v, key_path(path, "residue_share_pct"));
+    if (!(p > 0.0 && p < 100.0)) throw SpecError(key_path(path, "residue_share_pct"), "must be > 0 and < 100");
+    a.residue_share = p / 100.0;
+  }
+  return a;
+}
+
+std::vector<Plant> parse_plants(const json& j, const std::string& path) {
+  detail::expect_object(j, path, known_keys("plant"));
+  json core = j;
+  core.erase("variants");
+  std::vector<Plant> plants = {parse_plant_object(core, path, false)};
+  if (const json* vs = member(j, "variants")) {
+    const std::string vp = key_path(path, "variants");
+    if (!vs->is_array()) throw SpecError(vp, "must be an array of plant objects");
+    for (size_t i = 0; i < vs->size(); ++i) {
+      const std::string ip = index_path(vp, i);
+      const json& v = (*vs)[i];
+      detail::expect_object(v, ip, known_keys("variant"));
+      json merged = core;
+      for (auto it = v.begin(); it != v.end(); ++it) merged[it.key()] = it.value();
+      Plant p = parse_plant_object(merged, ip, true);
+      if (!member(v, "name")) p.name = "variant " + std::to_string(i + 1);
+      plants.push_back(p);
+    }
+  }
+  return plants;
+}
+
+}  // namespace
+
+Spec parse_spec(const json& doc) {
+  detail::expect_object(doc, "$", known_keys("spec"));
+  Spec s;
+  if (const json* v = member(doc, "$schema"))
+    if (!v->is_string()) throw SpecError("$.$schema", "must be a string");
+  if (const json* v = member(doc, "name")) {
+    if (!v->is_string()) throw SpecError("$.name", "must be a string");
+    s.name = v->get<std::string>();
+  }
+  const json* plant = member(doc, "plant");
+  if (!plant) throw SpecError("$.plant", "is missing: a spec needs a plant");
+  s.plants = parse_plants(*plant, "$.plant");
+  const json* req = member(doc, "requirements");
+  if (!req) throw SpecError("$.requirements", "is missing: a spec needs requirements (an empty object checks nothing)");
+  s.requirements = parse_requirements(*req, "$.requirements");
+  if (const json* v = member(doc, "stages")) s.stages = parse_stages(*v, "$.stages");
+  if (const json* v = member(doc, "current")) s.current = parse_compensator(*v, "$.current");
+  if (const json* v = member(doc, "search")) s.search = parse_search(*v, "$.search");
+  if (const json* v = member(doc, "analysis")) s.analysis = parse_analysis(*v, "$.analysis");
+  s.analysis.step.band = s.requirements.settling_band;
+  return s;
+}
+
+}  // namespace pw
