@@ -90,6 +90,8 @@ namespace {
 // Root of f on [a, b] (f(a), f(b) of opposite signs), bisecting in log frequency.
 double refine_log(const std::function<double(double)>& f, double a, double b) {
   double fa = f(a);
+  if (fa == 0.0) return a;
+  if (f(b) == 0.0) return b;
   double la = std::log(a), lb = std::log(b);
   for (int it = 0; it < 80 && (lb - la) > 1e-15; ++it) {
     const double lm = 0.5 * (la + lb);

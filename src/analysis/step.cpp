@@ -82,11 +82,21 @@ double exact_crossing(const ClosedLoop& L, const Vec& z0, const RowVec& out, dou
   return 0.5 * (a + b);
 }
 
-// Golden-section maximum of sign * out(E(tau) z0) over tau in [0, span].
+// Largest sign * out(E(tau) z0) over tau in [0, span]: the zero of the exact time derivative
+// (out A x + out B) when it changes sign over the bracket, else golden-section search.
 std::pair<double, double> exact_peak(const ClosedLoop& L, const Vec& z0, const RowVec& out, double span,
                                      double sign) {
-  const double g = 0.5 * (std::sqrt(5.0) - 1.0);
+  const int n = L.states();
   auto f = [&](double t) { return sign * out.dot(augmented_map(L, t) * z0); };
+  RowVec deriv(n + 1);
+  deriv.head(n) = out.head(n) * L.A;
+  deriv(n) = out.head(n).dot(L.B);
+  const double d0 = sign * deriv.dot(z0), d1 = sign * deriv.dot(augmented_map(L, span) * z0);
+  if (d0 > 0.0 && d1 < 0.0) {
+    const double t = exact_crossing(L, z0, deriv, span, 0.0);
+    return {t, f(t)};
+  }
+  const double g = 0.5 * (std::sqrt(5.0) - 1.0);
   double a = 0.0, b = span;
   double c = b - g * (b - a), d = a + g * (b - a);
   double fc = f(c), fd = f(d);

@@ -1,0 +1,83 @@
+#include <catch2/catch.hpp>
+
+#include <cmath>
+
+#include "polewright/analysis/closed_loop.hpp"
+
+using namespace pw;
+
+namespace {
+Zpk make(double k, Roots z, Roots p) {
+  Zpk o;
+  o.gain = k;
+  o.zeros = std::move(z);
+  o.poles = std::move(p);
+  return o;
+}
+}  // namespace
+
+TEST_CASE("standard second-order loop: closed-loop poles -zeta wn +- j wn sqrt(1 - zeta^2)", "[analysis][closed_loop]") {
+  // wn^2 / (s (s + 2 zeta wn)), wn = 5, zeta = 0.5 -> -2.5 +- j4.330 (closed form, any control text).
+  Plant g;
+  g.tf = make(25, {}, {Complex(0, 0), Complex(-5, 0)});
+  const LoopParts parts = make_loop_parts(make(1, {}, {}), g, 6);
+  const ClosedLoop cl = close_loop(parts.compensator, parts.plant);
+  const PoleAnalysis pa = analyze_poles(cl, 0.02);
+  REQUIRE(pa.poles.size() == 2);
+  CHECK(pa.stable);
+  CHECK(pa.poles[0].pole.real() == Approx(-2.5));
+  CHECK(std::abs(pa.poles[0].pole.imag()) == Approx(2.5 * std::sqrt(3.0)));
+  CHECK(pa.poles[0].damping == Approx(0.5));
+  CHECK(pa.poles[0].natural_frequency == Approx(5.0));
+  CHECK(closed_loop_dc_gain(cl) == Approx(1.0));
+  CHECK(closed_loop_eigenvalues(cl).size() == 2);
+}
+
+TEST_CASE("Routh-Hurwitz limit of K/(s(s+1)(s+2)) is K = 6", "[analysis][closed_loop]") {
+  // Characteristic s^3 + 3 s^2 + 2 s + K: stable for 0 < K < 6 (Routh array by hand).
+  Plant g;
+  g.tf = make(1, {}, {Complex(0, 0), Complex(-1, 0), Complex(-2, 0)});
+  for (double K : {0.5, 5.9, 6.1, 9.0}) {
+    const LoopParts parts = make_loop_parts(make(K, {}, {}), g, 6);
+    const PoleAnalysis pa = analyze_poles(close_loop(parts.compensator, parts.plant), 0.02);
+    CHECK(pa.stable == (K < 6.0));
+  }
+}
+
+TEST_CASE("biproper compensator on a biproper plant: the algebraic loop is solved", "[analysis][closed_loop]") {
+  // C = 2 (s + 1)/(s + 3), G = (s + 2)/(s + 5): T = CG / (1 + CG); T(0) = (2/3 * 2/5) / (1 + 4/15) = 4/19.
+  Plant g;
+  g.tf = make(1, {Complex(-2, 0)}, {Complex(-5, 0)});
+  const LoopParts parts = make_loop_parts(make(2, {Complex(-1, 0)}, {Complex(-3, 0)}), g, 6);
+  const ClosedLoop cl = close_loop(parts.compensator, parts.plant);
+  CHECK(cl.well_posed);
+  CHECK(closed_loop_dc_gain(cl) == Approx(4.0 / 19.0));
+  // u(0+) = C(inf) / (1 + C(inf) G(inf)) = 2 / 3.
+  CHECK(cl.Du == Approx(2.0 / 3.0));
+  // Ill-posed: C(inf) G(inf) = -1.
+  const LoopParts bad = make_loop_parts(make(-1, {Complex(-1, 0)}, {Complex(-3, 0)}), g, 6);
+  CHECK_FALSE(close_loop(bad.compensator, bad.plant).well_posed);
+}
+
+TEST_CASE("lag dipole: the slow pole near the lag zero has a tiny step share", "[analysis][closed_loop]") {
+  // Field notes: a lag stage leaves a slow closed-loop pole almost on its zero with a tiny residue.
+  Plant g;
+  g.tf = make(10, {}, {Complex(0, 0), Complex(-4, 0)});
+  const LoopParts parts = make_loop_parts(make(4, {Complex(-0.2, 0)}, {Complex(-0.02, 0)}), g, 6);
+  const PoleAnalysis pa = analyze_poles(close_loop(parts.compensator, parts.plant), 0.02);
+  REQUIRE(pa.residues_reliable);
+  const PoleInfo& slow = pa.poles.front();  // slowest first
+  CHECK(slow.pole.real() == Approx(-0.2035).epsilon(1e-3));  // numpy/scipy fixture: -0.2035
+  CHECK(slow.share < 0.02);
+  CHECK_FALSE(slow.matters);
+  double total = 0;
+  for (const PoleInfo& p : pa.poles) total += p.share;
+  CHECK(total == Approx(1.0));
+}
+
+TEST_CASE("damping_of", "[analysis][closed_loop]") {
+  CHECK(damping_of(Complex(-1, 0)) == 1.0);
+  CHECK(damping_of(Complex(0, 0)) == 1.0);
+  CHECK(damping_of(Complex(-1, 1)) == Approx(std::sqrt(0.5)));
+  CHECK(damping_of(Complex(1, 1)) < 0.0);
+}

@@ -1,0 +1,35 @@
+#include <catch2/catch.hpp>
+
+#include <algorithm>
+
+#include "polewright/analysis/eigen.hpp"
+
+using namespace pw;
+
+TEST_CASE("balance is a similarity transform that evens row and column norms", "[analysis][eigen]") {
+  Mat A(3, 3);
+  A << 1, 1e6, 0, 1e-6, 2, 1e4, 0, 1e-4, 3;
+  Mat B = A;
+  Vec d;
+  balance(B, d);
+  const Mat back = d.asDiagonal() * B * d.cwiseInverse().asDiagonal();
+  CHECK((back - A).norm() <= 1e-9 * A.norm());
+  CHECK(B.cwiseAbs().maxCoeff() < 1e3);
+}
+
+TEST_CASE("eigenvalues of a badly scaled matrix and eigenvectors of the original", "[analysis][eigen]") {
+  // Companion of (s + 1)(s + 100)(s + 1e4): eigenvalues -1, -100, -1e4 exactly.
+  Mat A(3, 3);
+  A << -(1 + 100 + 1e4), -(100 + 1e4 + 1e6), -1e6, 1, 0, 0, 0, 1, 0;
+  CVec ev = eigenvalues_balanced(A);
+  std::vector<double> re;
+  for (int i = 0; i < 3; ++i) re.push_back(ev(i).real());
+  std::sort(re.begin(), re.end());
+  CHECK(re[0] == Approx(-1e4).epsilon(1e-12));
+  CHECK(re[1] == Approx(-100).epsilon(1e-12));
+  CHECK(re[2] == Approx(-1).epsilon(1e-12));
+  const EigenDecomposition ed = eigen_decompose(A);
+  REQUIRE(ed.ok);
+  const CMat r = A.cast<Complex>() * ed.vectors - ed.vectors * ed.values.asDiagonal();
+  CHECK(r.norm() <= 1e-8 * A.norm() * ed.vectors.norm());
+}

@@ -1,0 +1,97 @@
+#include <catch2/catch.hpp>
+
+#include <cmath>
+
+#include "polewright/analysis/step.hpp"
+
+using namespace pw;
+
+namespace {
+ClosedLoop loop_of(double k, Roots plant_poles, Roots comp_zeros = {}, Roots comp_poles = {}) {
+  Zpk c, g;
+  c.gain = k;
+  c.zeros = std::move(comp_zeros);
+  c.poles = std::move(comp_poles);
+  g.poles = std::move(plant_poles);
+  Plant p;
+  p.tf = g;
+  const LoopParts parts = make_loop_parts(c, p, 6);
+  return close_loop(parts.compensator, parts.plant);
+}
+}  // namespace
+
+TEST_CASE("first-order closed loop: rise ln 9 tau, 2 % settling ln 50 tau", "[analysis][step]") {
+  // L = 1/s -> T = 1/(s + 1): y = 1 - e^-t, so t10 = ln(10/9), t90 = ln 10, settling = ln 50.
+  const ClosedLoop cl = loop_of(1, {Complex(0, 0)});
+  const PoleAnalysis pa = analyze_poles(cl, 0.02);
+  StepOptions o;
+  const StepMetrics m = step_response(cl, pa, o);
+  REQUIRE(m.rise_time_s);
+  CHECK(*m.rise_time_s == Approx(std::log(9.0)).epsilon(1e-9));
+  CHECK(*m.settling_time_s == Approx(std::log(50.0)).epsilon(1e-9));
+  CHECK(*m.overshoot_pct == 0.0);
+  CHECK_FALSE(m.peak_time_s);
+  CHECK(m.final_value == Approx(1.0));
+  CHECK(*m.peak_effort == Approx(1.0));  // u = e^-t, largest at t = 0+
+}
+
+TEST_CASE("second-order overshoot exp(-zeta pi / sqrt(1 - zeta^2)) and peak time pi / wd", "[analysis][step]") {
+  // 25/(s(s+5)): zeta = 0.5, wn = 5 -> OS 16.303 %, Tp = pi / 4.3301 = 0.72552 s (closed form).
+  const ClosedLoop cl = loop_of(25, {Complex(0, 0), Complex(-5, 0)});
+  const PoleAnalysis pa = analyze_poles(cl, 0.02);
+  for (bool exact : {true, false}) {
+    StepOptions o;
+    o.exact_refinement = exact;
+    const StepMetrics m = step_response(cl, pa, o);
+    const double os = 100.0 * std::exp(-0.5 * M_PI / std::sqrt(0.75));
+    CHECK(*m.overshoot_pct == Approx(os).epsilon(exact ? 1e-9 : 1e-3));
+    CHECK(*m.peak_time_s == Approx(M_PI / (5.0 * std::sqrt(0.75))).epsilon(exact ? 1e-9 : 1e-3));
+  }
+}
+
+TEST_CASE("fixed horizon and samples are honoured; trace kept on request", "[analysis][step]") {
+  const ClosedLoop cl = loop_of(25, {Complex(0, 0), Complex(-5, 0)});
+  const PoleAnalysis pa = analyze_poles(cl, 0.02);
+  StepOptions o;
+  o.horizon_s = 3.0;
+  o.samples = 1000;
+  o.adaptive_samples = false;
+  o.keep_trace = true;
+  const StepMetrics m = step_response(cl, pa, o);
+  CHECK(m.samples == 1000);
+  CHECK(m.trace.y.size() == 1000);
+  CHECK(m.trace.dt == Approx(3.0 / 999.0));
+  // Exact ZOH samples: y(t) at t = 1 s from the closed form of the underdamped step.
+  const double wd = 5.0 * std::sqrt(0.75), phi = std::acos(0.5);
+  const size_t k = 333;
+  const double t = k * m.trace.dt;
+  const double y = 1.0 - std::exp(-2.5 * t) / std::sqrt(0.75) * std::sin(wd * t + phi);
+  CHECK(m.trace.y[k] == Approx(y).epsilon(1e-12));
+}
+
+TEST_CASE("horizon covers the slow lag dipole and unsettled responses give no settling time", "[analysis][step]") {
+  const ClosedLoop cl = loop_of(4 * 10, {Complex(0, 0), Complex(-4, 0)}, {Complex(-0.2, 0)}, {Complex(-0.02, 0)});
+  const PoleAnalysis pa = analyze_poles(cl, 0.02);
+  const double h = choose_step_horizon(pa, 1.0, 0.02, 0.0);
+  // At the horizon the whole remaining transient is inside a tenth of the band.
+  double envelope = 0.0;
+  for (const PoleInfo& p : pa.poles) envelope += p.residue * std::exp(p.pole.real() * h);
+  CHECK(envelope <= 0.1 * 0.02 * 1.0 * (1 + 1e-9));
+  CHECK(choose_step_horizon(pa, 1.0, 0.02, 40.0) >= 60.0);  // at least 1.5 x a requested minimum
+  // A far longer horizon does not change the settling time: nothing was cut off.
+  StepOptions longer;
+  longer.horizon_s = 4 * h;
+  const StepMetrics a = step_response(cl, pa, StepOptions{}), b = step_response(cl, pa, longer);
+  REQUIRE(a.settling_time_s);
+  CHECK(*a.settling_time_s == Approx(*b.settling_time_s).epsilon(1e-9));
+  StepOptions o;
+  o.horizon_s = 0.5;  // far too short to settle
+  const StepMetrics m = step_response(cl, pa, o);
+  CHECK_FALSE(m.settling_time_s);
+  std::string err;
+  StepOptions bad;
+  bad.samples = 10;
+  CHECK_FALSE(bad.IsValid(&err));
+  CHECK(!err.empty());
+  CHECK(o.IsValid(&err));
+}
