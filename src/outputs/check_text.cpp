@@ -56,9 +56,10 @@ std::string check_report_text(const CheckReport& r) {
     TextTable p({"pole", "damping", "wn (rad/s)", "step share", "matters", "in region"});
     for (const PoleInfo& pi : e.poles.poles) {
       if (pi.pole.imag() < 0.0) continue;
-      p.add({pole_text(pi.pole), fmt_number(pi.damping), fmt_number(pi.natural_frequency),
-             fmt_number(100.0 * pi.share, 3) + " %", pi.matters ? "yes" : "no (dipole)",
-             r.region.contains(pi.pole) ? "yes" : "no"});
+      const bool dominant = e.dominant_pole && *e.dominant_pole == pi.pole;
+      const bool inside = dominant ? r.region.contains(pi.pole) : r.region.contains_shape(pi.pole);
+      p.add({pole_text(pi.pole) + (dominant ? "  (dominant)" : ""), fmt_number(pi.damping), fmt_number(pi.natural_frequency),
+             fmt_number(100.0 * pi.share, 3) + " %", pi.matters ? "yes" : "no (dipole)", inside ? "yes" : "no"});
     }
     out += p.render();
     if (!e.poles.residues_reliable) out += "  note: repeated or nearly repeated poles: step shares are not reliable, every pole counts\n";
@@ -83,7 +84,7 @@ std::string check_report_text(const CheckReport& r) {
   out += "  stable for k in:";
   if (l.stable_intervals.empty()) out += " (no gain)";
   for (const GainInterval& g : l.stable_intervals)
-    out += " (" + fmt_number(g.lo) + ", " + (g.hi ? fmt_number(*g.hi) : std::string("inf")) + ")";
+    out += " (" + fmt_number(g.lo) + ", " + (g.hi ? fmt_number(*g.hi) : std::string("no upper limit")) + ")";
   out += "\n";
 
   out += "\nverdict: ";

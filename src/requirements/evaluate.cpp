@@ -39,11 +39,10 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
   e.stable = e.poles.stable;
 
   // Region and the dominant pole (the slowest-decaying pole that matters).
-  e.region_ok = e.stable;
+  e.region_ok = e.stable && region_holds(region, e.poles.poles);
   double min_damping = INFINITY;
   for (const PoleInfo& p : e.poles.poles) {
     if (!p.matters) continue;
-    if (!region.contains(p.pole)) e.region_ok = false;
     min_damping = std::min(min_damping, p.damping);
     if (!e.dominant_pole || p.pole.real() > e.dominant_pole->real()) e.dominant_pole = p.pole;
   }

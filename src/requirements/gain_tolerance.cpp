@@ -11,9 +11,7 @@ bool inside(const LoopParts& parts, double k, const Region& region, double share
   if (!cl.well_posed) return false;
   const PoleAnalysis pa = analyze_poles(cl, share);
   if (!pa.stable) return false;
-  for (const PoleInfo& p : pa.poles)
-    if (p.matters && !region.contains(p.pole)) return false;
-  return true;
+  return region_holds(region, pa.poles);
 }
 
 // Walks from 1 towards `limit` by `ratio` steps, then bisects the first change in log gain.

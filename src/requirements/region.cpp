@@ -14,11 +14,15 @@ std::string fmt(const char* pattern, double a, double b = 0.0, double c = 0.0) {
 }
 }  // namespace
 
-bool Region::contains(Complex p) const {
+bool Region::contains_shape(Complex p) const {
   const double wn = std::abs(p);
   const double zeta = wn > 0.0 ? -p.real() / wn : 1.0;
-  if (zeta < min_damping) return false;
-  if (-p.real() < min_decay) return false;
+  return zeta >= min_damping && -p.real() >= min_decay;
+}
+
+bool Region::contains(Complex p) const {
+  if (!contains_shape(p)) return false;
+  const double wn = std::abs(p);
   if (wn < min_frequency) return false;
   if (max_frequency > 0.0 && wn > max_frequency) return false;
   return true;
@@ -32,6 +36,16 @@ double damping_from_overshoot(double os) {
 double bandwidth_ratio(double zeta) {
   const double z2 = zeta * zeta;
   return std::sqrt(1.0 - 2.0 * z2 + std::sqrt(4.0 * z2 * z2 - 4.0 * z2 + 2.0));
+}
+
+bool region_holds(const Region& region, const std::vector<PoleInfo>& poles) {
+  const PoleInfo* dominant = nullptr;
+  for (const PoleInfo& p : poles) {
+    if (!p.matters) continue;
+    if (!region.contains_shape(p.pole)) return false;
+    if (!dominant || p.pole.real() > dominant->pole.real()) dominant = &p;
+  }
+  return !dominant || region.contains(dominant->pole);
 }
 
 Region region_from_requirements(const RequirementSet& req) {

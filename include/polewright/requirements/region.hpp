@@ -7,6 +7,7 @@
 
 #include "polewright/requirements/requirement_set.hpp"
 #include "polewright/model/types.hpp"
+#include "polewright/analysis/closed_loop.hpp"
 
 namespace pw {
 
@@ -17,7 +18,10 @@ struct Region {
   double max_frequency = 0.0;   // |p| <= this (rad/s); 0 = unbounded
   std::vector<std::string> derivations;  // one line per bound: which requirement and formula
 
+  // Damping, decay and frequency bounds together.
   bool contains(Complex p) const;
+  // Damping and decay bounds only.
+  bool contains_shape(Complex p) const;
   bool bounded() const { return min_damping > 0.0 || min_decay > 0.0 || min_frequency > 0.0 || max_frequency > 0.0; }
 };
 
@@ -28,5 +32,11 @@ double damping_from_overshoot(double overshoot_fraction);
 double bandwidth_ratio(double zeta);
 
 Region region_from_requirements(const RequirementSet& req);
+
+// The region test of a closed loop: every pole that matters meets the damping and decay bounds,
+// and the dominant pole (the slowest-decaying pole that matters) also the frequency bounds. A
+// fast pole that matters (say one pulled near a lead zero) is no bottleneck for speed, so the
+// frequency bounds, which stand for speed and bandwidth of the dominant pair, are not put on it.
+bool region_holds(const Region& region, const std::vector<PoleInfo>& poles);
 
 }  // namespace pw

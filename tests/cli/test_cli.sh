@@ -1,0 +1,61 @@
+#!/usr/bin/env bash
+# Exit codes and one-line errors of the command line (documented in the README).
+set -u
+bin=$1; src=$2
+tmp=$(mktemp -d); trap 'rm -rf "$tmp"' EXIT
+pass=0; fail=0
+expect() {  # expect CODE DESCRIPTION -- command...
+  local want=$1 what=$2; shift 3
+  "$@" >"$tmp/out" 2>"$tmp/err"; local got=$?
+  if [ "$got" = "$want" ]; then pass=$((pass+1)); else fail=$((fail+1)); echo "FAIL: $what: exit $got, want $want"; cat "$tmp/err"; fi
+}
+one_line() {  # the last command's stderr is exactly one line naming $1
+  local n; n=$(wc -l <"$tmp/err")
+  if [ "$n" = 1 ] && grep -qF -- "$1" "$tmp/err"; then pass=$((pass+1)); else fail=$((fail+1)); echo "FAIL: stderr should be one line with '$1':"; cat "$tmp/err"; fi
+}
+
+expect 1 "wafer demo misses requirements" -- "$bin" check "$src/specs/wafer-stage.json"
+grep -q "verdict: NOT MET" "$tmp/out" && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: no verdict line"; }
+expect 1 "json to stdout" -- "$bin" check "$src/specs/wafer-stage.json" --json
+/usr/bin/python3 -c "import json,sys; d=json.load(open('$tmp/out')); sys.exit(d['status']!='not_met')" 2>/dev/null && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: --json is not JSON with status"; }
+expect 1 "-o writes a file" -- "$bin" check "$src/specs/wafer-stage.json" -o "$tmp/r.json"
+[ -s "$tmp/r.json" ] && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: -o wrote nothing"; }
+
+# A compensator that meets the wafer spec's requirements is not required here; a met loop:
+cat >"$tmp/met.json" <<'J'
+{ "plant": { "gain": 4, "poles": [0, -2] },
+  "requirements": { "damping_ratio": { "min": 0.48 }, "natural_frequency_rad_s": { "min": 3.9 } },
+  "current": { "gain": 4.68, "zeros": [-2.9], "poles": [-5.4] } }
+J
+expect 0 "met loop exits 0" -- "$bin" check "$tmp/met.json"
+
+printf '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": { "overshot_pct": { "max": 5 } }, "current": {"gain": 1} }' >"$tmp/typo.json"
+echo keep >"$tmp/existing.json"
+expect 2 "misspelled key" -- "$bin" check "$tmp/typo.json" -o "$tmp/existing.json"
+one_line '$.requirements.overshot_pct: unknown key (did you mean "overshoot_pct"?)'
+[ "$(cat "$tmp/existing.json")" = keep ] && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: output file touched on bad input"; }
+expect 2 "directory as spec" -- "$bin" check "$tmp"
+one_line "is a directory"
+expect 2 "missing file" -- "$bin" check "$tmp/nope.json"
+one_line "no such file"
+printf '{ "plant": ' >"$tmp/broken.json"
+expect 2 "broken json" -- "$bin" check "$tmp/broken.json"
+one_line "invalid JSON at line 1"
+printf '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": {} }' >"$tmp/nocur.json"
+expect 2 "no current compensator" -- "$bin" check "$tmp/nocur.json"
+one_line '$.current: is missing'
+expect 2 "unknown subcommand" -- "$bin" frobnicate
+expect 2 "missing argument" -- "$bin" check
+expect 0 "validate a demo" -- "$bin" validate "$src/specs/magnetic-bearing.json"
+expect 2 "validate a bad spec" -- "$bin" validate "$tmp/typo.json"
+one_line "did you mean"
+printf '{"gain": 2, "zeros": [-1], "poles": [-10]}' >"$tmp/comp.json"
+expect 1 "--compensator file replaces current (a weaker lead misses)" -- "$bin" check "$tmp/met.json" --compensator "$tmp/comp.json"
+printf '{"numerator": [4.68, 13.572], "denominator": [1, 5.4]}' >"$tmp/comp2.json"
+expect 0 "--compensator file in polynomial form" -- "$bin" check "$tmp/met.json" --compensator "$tmp/comp2.json"
+printf '{"gain": 2, "zeros": [-1, -2], "poles": [-10]}' >"$tmp/improper.json"
+expect 2 "improper compensator file" -- "$bin" check "$tmp/met.json" --compensator "$tmp/improper.json"
+one_line "improper compensator"
+
+echo "$pass passed, $fail failed"
+[ "$fail" = 0 ]

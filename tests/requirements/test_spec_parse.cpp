@@ -1,0 +1,118 @@
+#include <catch2/catch.hpp>
+
+#include <dirent.h>
+
+#include <set>
+
+#include "polewright/requirements/spec_parse.hpp"
+
+using namespace pw;
+using nlohmann::json;
+
+namespace {
+const char* kBase = R"({
+  "name": "test axis",
+  "plant": {"numerator": [1.2e5], "denominator": [1, 24, 0], "delay_s": 0.0005,
+            "variants": [{"denominator": [0.8, 24, 0]}, {"name": "heavy", "denominator": [1.3, 24, 0]}]},
+  "requirements": {"overshoot_pct": {"max": 10}, "settling_time_s": {"max": 0.08, "band_pct": 5},
+                   "steady_state_error": {"max": 0.01, "input": "ramp"},
+                   "natural_frequency_rad_s": {"min": 40, "max": 2000}},
+  "stages": {"lead": 2, "lag": 1, "notch": 1, "integrator": "auto", "frequency_range_rad_s": [0.1, 5000]},
+  "current": {"gain": 3.1, "zeros": [-40], "poles": [-400]},
+  "search": {"seed": 7, "keep": 3, "objective": "most_robust"},
+  "analysis": {"pade_order": 8, "samples": 500, "residue_share_pct": 5}
+})";
+
+std::string error_after(const std::function<void(json&)>& edit) {
+  json j = json::parse(kBase);
+  edit(j);
+  try {
+    parse_spec(j);
+  } catch (const SpecError& e) {
+    return e.what();
+  }
+  return "";
+}
+}  // namespace
+
+TEST_CASE("a full spec parses with every block", "[requirements][spec_parse]") {
+  const Spec s = parse_spec(json::parse(kBase));
+  CHECK(s.name == "test axis");
+  REQUIRE(s.plants.size() == 3);
+  CHECK(s.plants[1].name == "variant 1");
+  CHECK(s.plants[2].name == "heavy");
+  CHECK(s.plants[2].delay_s == 0.0005);  // inherited from the nominal plant
+  CHECK(s.plants[2].tf.gain == Approx(1.2e5 / 1.3));
+  CHECK(s.requirements.items.size() == 5);
+  CHECK(s.requirements.settling_band == 0.05);
+  CHECK(s.requirements.error_signal == TestSignal::Ramp);
+  CHECK(s.stages.lead == 2);
+  CHECK(s.stages.integrator == IntegratorChoice::Auto);
+  CHECK(s.current->zeros.size() == 1);
+  CHECK(s.search.seed == 7);
+  CHECK(s.search.objective == Objective::MostRobust);
+  CHECK(s.analysis.pade_order == 8);
+  CHECK(s.analysis.step.samples == 500);
+  CHECK(s.analysis.residue_share == Approx(0.05));
+  CHECK(std::string(objective_name(Objective::Simplest)) == "simplest");
+}
+
+TEST_CASE("bad specs: one line naming the field", "[requirements][spec_parse]") {
+  CHECK(error_after([](json& j) { j["requirments"] = j["requirements"]; }).find("$.requirments: unknown key (did you mean \"requirements\"?)") == 0);
+  CHECK(error_after([](json& j) { j.erase("plant"); }).find("$.plant: is missing") == 0);
+  CHECK(error_after([](json& j) { j["requirements"]["overshoot_pct"]["max"] = -3; }).find("$.requirements.overshoot_pct.max: must be > 0") == 0);
+  CHECK(error_after([](json& j) { j["requirements"]["overshoot_pct"] = json::object(); }).find("needs a \"max\"") != std::string::npos);
+  CHECK(error_after([](json& j) { j["requirements"]["natural_frequency_rad_s"]["min"] = 3000; }).find("must be below max") != std::string::npos);
+  CHECK(error_after([](json& j) { j["requirements"]["settling_time_s"]["band_pct"] = 100; }).find("band_pct") != std::string::npos);
+  CHECK(error_after([](json& j) { j["stages"].erase("frequency_range_rad_s"); }).find("a notch needs a frequency range") != std::string::npos);
+  CHECK(error_after([](json& j) { j["stages"]["frequency_range_rad_s"] = {10, 1}; }).find("$.stages.frequency_range_rad_s[1]") == 0);
+  CHECK(error_after([](json& j) { j["search"]["objective"] = "quickest"; }).find("$.search.objective") == 0);
+  CHECK(error_after([](json& j) { j["analysis"]["pade_order"] = 20; }).find("$.analysis.pade_order") == 0);
+  CHECK(error_after([](json& j) { j["plant"]["variants"][0]["poles"] = {-1, -2}; }).find("$.plant.variants[0]") == 0);
+  CHECK(error_after([](json& j) { j["plant"]["variants"][1]["variants"] = json::array(); }).find("$.plant.variants[1].variants: unknown key") == 0);
+  CHECK(error_after([](json&) {}).empty());
+}
+
+TEST_CASE("every demo spec in specs/ parses", "[requirements][spec_parse]") {
+  const std::string dir = std::string(POLEWRIGHT_SOURCE_DIR) + "/specs";
+  DIR* d = opendir(dir.c_str());
+  REQUIRE(d);
+  int count = 0;
+  while (dirent* e = readdir(d)) {
+    const std::string n = e->d_name;
+    if (n.size() < 5 || n.substr(n.size() - 5) != ".json" || n.find("schema") != std::string::npos) continue;
+    INFO(n);
+    const Spec s = parse_spec(read_json_file(dir + "/" + n));
+    CHECK(s.current.has_value());
+    ++count;
+  }
+  closedir(d);
+  CHECK(count >= 3);
+}
+
+TEST_CASE("parser keys agree with the JSON Schema's properties", "[requirements][spec_parse][schema]") {
+  const json schema = read_json_file(std::string(POLEWRIGHT_SOURCE_DIR) + "/specs/spec.schema.json");
+  auto keys_of = [](const json& obj) {
+    std::set<std::string> k;
+    for (auto it = obj.at("properties").begin(); it != obj.at("properties").end(); ++it) k.insert(it.key());
+    return k;
+  };
+  auto as_set = [](const std::vector<std::string>& v) { return std::set<std::string>(v.begin(), v.end()); };
+  const json& defs = schema.at("$defs");
+  CHECK(keys_of(schema) == as_set(known_keys("spec")));
+  CHECK(keys_of(defs.at("plant")) == as_set(known_keys("plant")));
+  CHECK(keys_of(defs.at("plant_variant")) == as_set(known_keys("variant")));
+  CHECK(keys_of(defs.at("compensator")) == as_set(known_keys("compensator")));
+  CHECK(keys_of(defs.at("requirements")) == as_set(known_keys("requirements")));
+  CHECK(keys_of(defs.at("stages")) == as_set(known_keys("stages")));
+  CHECK(keys_of(defs.at("search")) == as_set(known_keys("search")));
+  CHECK(keys_of(defs.at("analysis")) == as_set(known_keys("analysis")));
+  const json& req = defs.at("requirements").at("properties");
+  for (const MetricInfo& m : metric_table()) {
+    INFO(m.key);
+    std::string kind = m.bounds == BoundKind::MaxOnly ? "max_only" : (m.bounds == BoundKind::MinOnly ? "min_only" : "min_or_max");
+    if (m.id == MetricId::SettlingTime) kind = "settling_time_s";
+    if (m.id == MetricId::SteadyStateError) kind = "steady_state_error";
+    CHECK(keys_of(req.at(m.key)) == as_set(known_keys(kind)));
+  }
+}
