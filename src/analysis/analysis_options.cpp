@@ -21,7 +21,7 @@ AnalysisOptions AnalysisOptions::Screening(const AnalysisOptions& base) {
   o.step.adaptive_samples = false;
   o.step.exact_refinement = false;
   o.step.keep_trace = false;
-  o.frequency.points_per_decade = 30;
+  o.frequency.points_per_decade = 20;
   return o;
 }
 

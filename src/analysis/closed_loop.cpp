@@ -17,6 +17,8 @@ LoopParts make_loop_parts(const Zpk& compensator, const Plant& plant, int pade_o
   if (!pade.poles.empty()) parts.plant = series(realize(pade), parts.plant);
   parts.loop_exact = zpk_series(compensator, plant.tf);
   parts.loop_rational = zpk_series(parts.loop_exact, pade);
+  parts.compensator_tf = compensator;
+  parts.plant_rational = zpk_series(plant.tf, pade);
   return parts;
 }
 
@@ -64,42 +66,42 @@ double closed_loop_dc_gain(const ClosedLoop& loop) {
   return loop.Dy - loop.Cy.dot(x);
 }
 
-PoleAnalysis analyze_poles(const ClosedLoop& loop, double threshold) {
-  PoleAnalysis out;
-  const int n = loop.states();
-  if (n == 0) {
-    out.stable = true;
-    return out;
-  }
-  const EigenDecomposition ed = eigen_decompose(loop.A);
-  out.stable = true;
-  for (int i = 0; i < n; ++i) out.stable = out.stable && ed.values(i).real() < 0.0;
+namespace {
 
-  // c_i = (C v_i) (W B)_i / lambda_i with W = V^-1.
-  Eigen::PartialPivLU<CMat> lu(ed.vectors);
-  out.eigvec_rcond = ed.ok ? lu.rcond() : 0.0;
-  out.residues_reliable = ed.ok && out.eigvec_rcond > 1e-10;
-  CVec wb = lu.solve(loop.B.cast<Complex>());
-  CVec cv = (loop.Cy.cast<Complex>() * ed.vectors).transpose();
-  std::vector<double> res(static_cast<size_t>(n), 0.0);
-  double total = 0.0;
+// From residues cy, cu (in solver order) to the checked pole list.
+void finish_analysis(const ClosedLoop& loop, const CVec& values, const CVec& slope_terms, bool finite, double threshold,
+                     PoleAnalysis& out) {
+  const int n = static_cast<int>(values.size());
+  ModalStep& m = out.modal;
+  Complex sum_y(0.0, 0.0), sum_u(0.0, 0.0), slope(0.0, 0.0);
+  double total = 0.0, slope_scale = 0.0;
   for (int i = 0; i < n; ++i) {
-    const Complex lam = ed.values(i);
-    double r = std::abs(lam) > 0.0 ? std::abs(cv(i) * wb(i) / lam) : std::abs(cv(i) * wb(i));
-    if (!std::isfinite(r)) {
-      r = 0.0;
-      out.residues_reliable = false;
-    }
-    res[static_cast<size_t>(i)] = r;
-    total += r;
+    sum_y += m.cy(i);
+    sum_u += m.cu(i);
+    slope += slope_terms(i);
+    slope_scale += std::abs(slope_terms(i));
+    total += std::abs(m.cy(i));
+    finite = finite && std::isfinite(std::abs(m.cy(i))) && std::isfinite(std::abs(m.cu(i)));
   }
+  m.y_final = loop.Dy - sum_y.real();
+  m.u_final = loop.Du - sum_u.real();
+  // Two checks of the expansion: y_f from a direct solve of A x = B, and y'(0+) = Cy B.
+  const double yf_direct = out.stable ? closed_loop_dc_gain(loop) : m.y_final;
+  const double slope_direct = loop.Cy.dot(loop.B);
+  out.modal_error = std::max(std::abs(m.y_final - yf_direct) / (total + std::abs(yf_direct) + 1e-300),
+                             std::abs(slope - slope_direct) / (slope_scale + std::abs(slope_direct) + 1e-300));
+  if (!std::isfinite(out.modal_error)) out.modal_error = 1.0;
+  out.residues_reliable = finite && out.modal_error < 1e-7;
+  if (out.stable && out.residues_reliable) m.y_final = yf_direct;
+
+  out.poles.clear();
   for (int i = 0; i < n; ++i) {
     PoleInfo p;
-    p.pole = ed.values(i);
+    p.pole = values(i);
     p.natural_frequency = std::abs(p.pole);
     p.damping = damping_of(p.pole);
-    p.residue = res[static_cast<size_t>(i)];
-    p.share = total > 0.0 ? p.residue / total : 0.0;
+    p.residue = finite ? std::abs(m.cy(i)) : 0.0;
+    p.share = (finite && total > 0.0) ? p.residue / total : 0.0;
     p.matters = !out.residues_reliable || p.share >= threshold;
     out.poles.push_back(p);
   }
@@ -107,9 +109,94 @@ PoleAnalysis analyze_poles(const ClosedLoop& loop, double threshold) {
     if (a.pole.real() != b.pole.real()) return a.pole.real() > b.pole.real();
     return a.pole.imag() > b.pole.imag();
   });
-  // Exact conjugate symmetry for the report.
   for (PoleInfo& p : out.poles)
     if (std::abs(p.pole.imag()) <= 1e-12 * std::max(1.0, p.natural_frequency)) p.pole.imag(0.0);
+}
+
+bool all_stable(const CVec& v) {
+  for (int i = 0; i < v.size(); ++i)
+    if (!(v(i).real() < 0.0)) return false;
+  return true;
+}
+
+// gain * prod(s - zeros) / (lead * s * prod_{j != skip} (s - poles_j)), interleaved to stay in range.
+Complex residue_at(Complex s, double gain, const Roots& zeros, const Roots* zeros2, const CVec& poles, int skip,
+                   double lead) {
+  Complex acc(gain / lead, 0.0);
+  acc /= s;
+  size_t zi = 0, zj = 0;
+  for (int j = 0; j < poles.size(); ++j) {
+    if (zi < zeros.size()) acc *= (s - zeros[zi++]);
+    else if (zeros2 && zj < zeros2->size()) acc *= (s - (*zeros2)[zj++]);
+    if (j != skip) acc /= (s - poles(j));
+  }
+  for (; zi < zeros.size(); ++zi) acc *= (s - zeros[zi]);
+  if (zeros2)
+    for (; zj < zeros2->size(); ++zj) acc *= (s - (*zeros2)[zj]);
+  return acc;
+}
+
+}  // namespace
+
+PoleAnalysis analyze_poles(const ClosedLoop& loop, double threshold) {
+  PoleAnalysis out;
+  const int n = loop.states();
+  if (n == 0) {
+    out.stable = true;
+    out.modal.y_final = loop.Dy;
+    out.modal.u_final = loop.Du;
+    return out;
+  }
+  const EigenDecomposition ed = eigen_decompose(loop.A);
+  out.stable = all_stable(ed.values);
+  // c_i = (C v_i) (W B)_i / lambda_i with W = V^-1.
+  Eigen::PartialPivLU<CMat> lu(ed.vectors);
+  const CVec wb = lu.solve(loop.B.cast<Complex>());
+  const CVec cvy = (loop.Cy.cast<Complex>() * ed.vectors).transpose();
+  const CVec cvu = (loop.Cu.cast<Complex>() * ed.vectors).transpose();
+  ModalStep& m = out.modal;
+  m.lambda = ed.values;
+  m.cy = CVec(n);
+  m.cu = CVec(n);
+  CVec slope(n);
+  for (int i = 0; i < n; ++i) {
+    const Complex lam = ed.values(i);
+    const Complex inv = std::abs(lam) > 0.0 ? 1.0 / lam : Complex(0.0, 0.0);
+    m.cy(i) = cvy(i) * wb(i) * inv;
+    m.cu(i) = cvu(i) * wb(i) * inv;
+    slope(i) = cvy(i) * wb(i);
+  }
+  finish_analysis(loop, ed.values, slope, ed.ok, threshold, out);
+  return out;
+}
+
+PoleAnalysis analyze_poles(const ClosedLoop& loop, const LoopParts& parts, double k, double threshold) {
+  const int n = loop.states();
+  const Zpk& L = parts.loop_rational;
+  if (n == 0 || static_cast<int>(L.poles.size()) != n) return analyze_poles(loop, threshold);
+  PoleAnalysis out;
+  const CVec values = eigenvalues_balanced(loop.A);
+  out.stable = all_stable(values);
+  // Closed-loop denominator D + k N: monic unless the loop is biproper.
+  const double lead = L.relative_degree() == 0 ? 1.0 + k * L.gain : 1.0;
+  const Zpk& C = parts.compensator_tf;
+  const Zpk& G = parts.plant_rational;
+  ModalStep& m = out.modal;
+  m.lambda = values;
+  m.cy = CVec(n);
+  m.cu = CVec(n);
+  CVec slope(n);
+  bool finite = lead != 0.0;
+  for (int i = 0; i < n && finite; ++i) {
+    const Complex lam = values(i);
+    if (std::abs(lam) == 0.0) { finite = false; break; }
+    m.cy(i) = residue_at(lam, k * L.gain, L.zeros, nullptr, values, i, lead);
+    m.cu(i) = residue_at(lam, k * C.gain, C.zeros, &G.poles, values, i, lead);
+    slope(i) = m.cy(i) * lam;
+  }
+  if (!finite) return analyze_poles(loop, threshold);
+  finish_analysis(loop, values, slope, true, threshold, out);
+  if (!out.residues_reliable) return analyze_poles(loop, threshold);
   return out;
 }
 

@@ -41,7 +41,7 @@ CVec eigenvalues_balanced(const Mat& A_in) {
   Mat A = A_in;
   Vec d;
   balance(A, d);
-  Eigen::EigenSolver<Mat> es(A, false);
+  Eigen::EigenSolver<Eigen::MatrixXd> es(Eigen::MatrixXd(A), false);
   return es.eigenvalues();
 }
 
@@ -56,7 +56,7 @@ EigenDecomposition eigen_decompose(const Mat& A_in) {
   Mat A = A_in;
   Vec d;
   balance(A, d);
-  Eigen::EigenSolver<Mat> es(A, true);
+  Eigen::EigenSolver<Eigen::MatrixXd> es(Eigen::MatrixXd(A), true);
   out.ok = es.info() == Eigen::Success;
   out.values = es.eigenvalues();
   out.vectors = es.eigenvectors();

@@ -24,6 +24,60 @@ Complex loop_response(const Zpk& loop, double delay_s, double w) {
   return v;
 }
 
+LoopResponse::LoopResponse(const Zpk& loop, double delay_s) : gain_(loop.gain), delay_(delay_s) {
+  auto add = [](const Roots& roots, std::vector<Factor>& out) {
+    int up = 0, down = 0;
+    for (const Complex& r : roots) (r.imag() > 0.0 ? up : down) += r.imag() != 0.0;
+    const bool paired = up == down;
+    for (const Complex& r : roots) {
+      if (paired && r.imag() > 0.0) out.push_back({std::norm(r), -2.0 * r.real(), true});
+      else if (paired && r.imag() < 0.0) continue;
+      else if (r.imag() == 0.0) out.push_back({-r.real(), 0.0, false});
+      else out.push_back({std::nan(""), 0.0, false});  // unpaired complex root: not a real system
+    }
+  };
+  add(loop.zeros, num_);
+  add(loop.poles, den_);
+}
+
+Complex LoopResponse::operator()(double w) const {
+  auto product = [w](const std::vector<Factor>& fs, int& exponent) {
+    double re = 1.0, im = 0.0;
+    exponent = 0;
+    for (const Factor& f : fs) {
+      const double fr = f.quadratic ? f.c0 - w * w : f.c0;
+      const double fi = f.quadratic ? f.c1 * w : w;
+      const double r = re * fr - im * fi;
+      im = re * fi + im * fr;
+      re = r;
+      const double mag = std::abs(re) + std::abs(im);
+      if (mag > 1e100 || (mag < 1e-100 && mag > 0.0)) {
+        int e;
+        std::frexp(mag, &e);
+        re = std::ldexp(re, -e);
+        im = std::ldexp(im, -e);
+        exponent += e;
+      }
+    }
+    return Complex(re, im);
+  };
+  int en, ed;
+  const Complex n = product(num_, en), d = product(den_, ed);
+  const double dd = d.real() * d.real() + d.imag() * d.imag();
+  double re = (n.real() * d.real() + n.imag() * d.imag()) / dd;
+  double im = (n.imag() * d.real() - n.real() * d.imag()) / dd;
+  const double g = en == ed ? gain_ : std::ldexp(gain_, en - ed);
+  re *= g;
+  im *= g;
+  if (delay_ > 0.0) {
+    const double c = std::cos(w * delay_), s = std::sin(w * delay_);
+    const double r = re * c + im * s;
+    im = im * c - re * s;
+    re = r;
+  }
+  return Complex(re, im);
+}
+
 double wrap_degrees(double deg) {
   double d = std::fmod(deg, 360.0);
   if (d <= -180.0) d += 360.0;
@@ -53,8 +107,9 @@ std::vector<double> frequency_grid(const Zpk& loop, double delay_s, const Freque
   lo /= 100.0;
   hi *= 100.0;
   const int type = zpk_integrators(loop);
-  for (int i = 0; i < 6 && type > 0 && std::abs(loop_response(loop, delay_s, lo)) < 1.0; ++i) lo /= 10.0;
-  for (int i = 0; i < 6 && rel > 0 && std::abs(loop_response(loop, delay_s, hi)) > 1.0; ++i) hi *= 10.0;
+  const LoopResponse Lw(loop, delay_s);
+  for (int i = 0; i < 6 && type > 0 && std::abs(Lw(lo)) < 1.0; ++i) lo /= 10.0;
+  for (int i = 0; i < 6 && rel > 0 && std::abs(Lw(hi)) > 1.0; ++i) hi *= 10.0;
   if (opt.w_min > 0.0) lo = opt.w_min;
   if (opt.w_max > 0.0) hi = opt.w_max;
 
@@ -62,7 +117,10 @@ std::vector<double> frequency_grid(const Zpk& loop, double delay_s, const Freque
   const double decades = std::log10(hi / lo);
   const int n = std::max(2, static_cast<int>(std::ceil(decades * opt.points_per_decade)) + 1);
   w.reserve(static_cast<size_t>(n) + 64);
-  for (int i = 0; i < n; ++i) w.push_back(lo * std::pow(10.0, decades * i / (n - 1)));
+  const double ratio = std::pow(10.0, decades / (n - 1));
+  double x = lo;
+  for (int i = 0; i + 1 < n; ++i, x *= ratio) w.push_back(x);
+  w.push_back(hi);
   static const double offsets[] = {-3, -2, -1.5, -1, -0.6, -0.3, 0, 0.3, 0.6, 1, 1.5, 2, 3};
   for (const Roots* set : {&loop.zeros, &loop.poles})
     for (const Complex& r : *set) {
@@ -87,33 +145,43 @@ std::vector<double> frequency_grid(const Zpk& loop, double delay_s, const Freque
 
 namespace {
 
-// Root of f on [a, b] (f(a), f(b) of opposite signs), bisecting in log frequency.
-double refine_log(const std::function<double(double)>& f, double a, double b) {
-  double fa = f(a);
+// Root of f on [a, b] (f(a), f(b) of opposite signs) in log frequency: Illinois false position,
+// which keeps the bracket and converges superlinearly, to 1e-14 in log w.
+template <class F>
+double refine_log(const F& f, double a, double b) {
+  double fa = f(a), fb = f(b);
   if (fa == 0.0) return a;
-  if (f(b) == 0.0) return b;
+  if (fb == 0.0) return b;
   double la = std::log(a), lb = std::log(b);
-  for (int it = 0; it < 80 && (lb - la) > 1e-15; ++it) {
-    const double lm = 0.5 * (la + lb);
+  int side = 0;
+  for (int it = 0; it < 100 && (lb - la) > 1e-14; ++it) {
+    double lm = (la * fb - lb * fa) / (fb - fa);
+    if (!(lm > la && lm < lb)) lm = 0.5 * (la + lb);
     const double fm = f(std::exp(lm));
     if (fm == 0.0) return std::exp(lm);
     if ((fm > 0.0) == (fa > 0.0)) {
       la = lm;
       fa = fm;
+      if (side == -1) fb *= 0.5;
+      side = -1;
     } else {
       lb = lm;
+      fb = fm;
+      if (side == 1) fa *= 0.5;
+      side = 1;
     }
   }
   return std::exp(0.5 * (la + lb));
 }
 
 // Golden-section maximum of f over [a, b] in log frequency.
-std::pair<double, double> maximise_log(const std::function<double(double)>& f, double a, double b) {
+template <class F>
+std::pair<double, double> maximise_log(const F& f, double a, double b) {
   const double g = 0.5 * (std::sqrt(5.0) - 1.0);
   double la = std::log(a), lb = std::log(b);
   double lc = lb - g * (lb - la), ld = la + g * (lb - la);
   double fc = f(std::exp(lc)), fd = f(std::exp(ld));
-  for (int it = 0; it < 100 && (lb - la) > 1e-13; ++it) {
+  for (int it = 0; it < 100 && (lb - la) > 1e-5; ++it) {
     if (fc > fd) {
       lb = ld; ld = lc; fd = fc;
       lc = lb - g * (lb - la); fc = f(std::exp(lc));
@@ -133,11 +201,12 @@ FrequencyMetrics frequency_metrics(const Zpk& loop, double delay_s, const Freque
   const std::vector<double> w = frequency_grid(loop, delay_s, opt);
   m.grid_min_rad_s = w.front();
   m.grid_max_rad_s = w.back();
+  const LoopResponse Lw(loop, delay_s);
   std::vector<Complex> L(w.size());
-  for (size_t i = 0; i < w.size(); ++i) L[i] = loop_response(loop, delay_s, w[i]);
+  for (size_t i = 0; i < w.size(); ++i) L[i] = Lw(w[i]);
 
-  auto logmag = [&](double x) { return std::log(std::abs(loop_response(loop, delay_s, x))); };
-  auto imag_part = [&](double x) { return loop_response(loop, delay_s, x).imag(); };
+  auto logmag = [&](double x) { return 0.5 * std::log(std::norm(Lw(x))); };
+  auto imag_part = [&](double x) { return Lw(x).imag(); };
 
   const int type = zpk_integrators(loop);
   if (type == 0) {
@@ -148,17 +217,17 @@ FrequencyMetrics frequency_metrics(const Zpk& loop, double delay_s, const Freque
     }
   }
   for (size_t i = 0; i + 1 < w.size(); ++i) {
-    const double g0 = std::abs(L[i]) - 1.0, g1 = std::abs(L[i + 1]) - 1.0;
+    const double g0 = std::norm(L[i]) - 1.0, g1 = std::norm(L[i + 1]) - 1.0;
     if ((g0 < 0.0) != (g1 < 0.0)) {
       const double wc = refine_log(logmag, w[i], w[i + 1]);
-      const Complex Lc = loop_response(loop, delay_s, wc);
+      const Complex Lc = Lw(wc);
       m.gain_crossovers_rad_s.push_back(wc);
       m.phase_margins_deg.push_back(wrap_degrees(180.0 + std::arg(Lc) * 180.0 / M_PI));
     }
     const double h0 = L[i].imag(), h1 = L[i + 1].imag();
     if ((h0 < 0.0) != (h1 < 0.0) && (L[i].real() < 0.0 || L[i + 1].real() < 0.0)) {
       const double wp = refine_log(imag_part, w[i], w[i + 1]);
-      const Complex Lp = loop_response(loop, delay_s, wp);
+      const Complex Lp = Lw(wp);
       if (Lp.real() < 0.0) {
         m.phase_crossovers_rad_s.push_back(wp);
         m.critical_gains.push_back(1.0 / std::abs(Lp));
@@ -206,29 +275,32 @@ FrequencyMetrics frequency_metrics(const Zpk& loop, double delay_s, const Freque
   if (T0 > 0.0 && std::isfinite(T0)) {
     const double level = T0 / std::sqrt(2.0);
     auto tmag = [&](double x) {
-      const Complex Lx = loop_response(loop, delay_s, x);
-      return std::log(std::abs(Lx / (1.0 + Lx))) - std::log(level);
+      const Complex Lx = Lw(x);
+      return 0.5 * (std::log(std::norm(Lx)) - std::log(std::norm(1.0 + Lx))) - std::log(level);
     };
+    const double level2 = level * level;
     for (size_t i = 0; i + 1 < w.size(); ++i) {
-      const double a = std::abs(L[i] / (1.0 + L[i])), b = std::abs(L[i + 1] / (1.0 + L[i + 1]));
-      if (a >= level && b < level) {
+      const double a = std::norm(L[i]) / std::norm(1.0 + L[i]), b = std::norm(L[i + 1]) / std::norm(1.0 + L[i + 1]);
+      if (a >= level2 && b < level2) {
         m.bandwidth_rad_s = refine_log(tmag, w[i], w[i + 1]);
         break;
       }
-      if (a < level) break;  // below the level already at the grid start: not a low-pass loop
+      if (a < level2) break;  // below the level already at the grid start: not a low-pass loop
     }
   }
 
   // Sensitivity peaks.
   size_t is = 0, it = 0;
+  double best_s = INFINITY, best_t = -1.0;
   for (size_t i = 0; i < w.size(); ++i) {
-    if (std::abs(1.0 + L[i]) < std::abs(1.0 + L[is])) is = i;
-    if (std::abs(L[i] / (1.0 + L[i])) > std::abs(L[it] / (1.0 + L[it]))) it = i;
+    const double d = std::norm(1.0 + L[i]), t = std::norm(L[i]) / d;
+    if (d < best_s) { best_s = d; is = i; }
+    if (t > best_t) { best_t = t; it = i; }
   }
-  auto smag = [&](double x) { return 1.0 / std::abs(1.0 + loop_response(loop, delay_s, x)); };
+  auto smag = [&](double x) { return 1.0 / std::sqrt(std::norm(1.0 + Lw(x))); };
   auto tpk = [&](double x) {
-    const Complex Lx = loop_response(loop, delay_s, x);
-    return std::abs(Lx / (1.0 + Lx));
+    const Complex Lx = Lw(x);
+    return std::sqrt(std::norm(Lx) / std::norm(1.0 + Lx));
   };
   if (is > 0 && is + 1 < w.size()) {
     const auto pk = maximise_log(smag, w[is - 1], w[is + 1]);

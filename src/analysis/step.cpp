@@ -65,6 +65,100 @@ void simulate(const ClosedLoop& L, const Mat& E, int N, Simulation& sim, const s
   }
 }
 
+// Samples of y and u from the modal expansion: per step one complex multiply per conjugate pair,
+// exact at the sample times like the zero-order-hold map (the input is constant).
+struct ModeSet {
+  static constexpr int kMax = kMaxAug;
+  int count = 0;
+  double zr[kMax], zi[kMax], yr[kMax], yi[kMax], ur[kMax], ui[kMax];
+};
+
+// The sample loop with the mode count known at compile time, two modes per SSE2 register, so the
+// mode states stay in registers. P is the number of mode pairs (modes padded to an even count).
+typedef double v2d __attribute__((vector_size(16)));
+
+template <int P>
+void run_modes(const ModeSet& ms, double yf, double uf, int N, double* __restrict y, double* __restrict u) {
+  v2d pr[P], pi[P], zr[P], zi[P], yr[P], yi[P], ur[P], ui[P];
+  for (int j = 0; j < P; ++j) {
+    const int a = 2 * j, b = 2 * j + 1;
+    const bool hb = b < ms.count;
+    pr[j] = v2d{1.0, hb ? 1.0 : 0.0};
+    pi[j] = v2d{0.0, 0.0};
+    zr[j] = v2d{ms.zr[a], hb ? ms.zr[b] : 0.0};
+    zi[j] = v2d{ms.zi[a], hb ? ms.zi[b] : 0.0};
+    yr[j] = v2d{ms.yr[a], hb ? ms.yr[b] : 0.0};
+    yi[j] = v2d{ms.yi[a], hb ? ms.yi[b] : 0.0};
+    ur[j] = v2d{ms.ur[a], hb ? ms.ur[b] : 0.0};
+    ui[j] = v2d{ms.ui[a], hb ? ms.ui[b] : 0.0};
+  }
+  for (int k = 0; k < N; ++k) {
+    v2d yy = {0.0, 0.0}, uu = {0.0, 0.0};
+#pragma GCC unroll 16
+    for (int j = 0; j < P; ++j) {
+      yy += yr[j] * pr[j] - yi[j] * pi[j];
+      uu += ur[j] * pr[j] - ui[j] * pi[j];
+      const v2d r = pr[j] * zr[j] - pi[j] * zi[j];
+      pi[j] = pr[j] * zi[j] + pi[j] * zr[j];
+      pr[j] = r;
+    }
+    y[k] = yf + (yy[0] + yy[1]);
+    u[k] = uf + (uu[0] + uu[1]);
+  }
+}
+
+void run_modes_any(const ModeSet& ms, double yf, double uf, int N, double* __restrict y, double* __restrict u) {
+  std::vector<double> pr(static_cast<size_t>(ms.count), 1.0), pi(static_cast<size_t>(ms.count), 0.0);
+  for (int k = 0; k < N; ++k) {
+    double yy = yf, uu = uf;
+    for (int j = 0; j < ms.count; ++j) {
+      yy += ms.yr[j] * pr[j] - ms.yi[j] * pi[j];
+      uu += ms.ur[j] * pr[j] - ms.ui[j] * pi[j];
+      const double r = pr[j] * ms.zr[j] - pi[j] * ms.zi[j];
+      pi[j] = pr[j] * ms.zi[j] + pi[j] * ms.zr[j];
+      pr[j] = r;
+    }
+    y[k] = yy;
+    u[k] = uu;
+  }
+}
+
+void simulate_modal(const ModalStep& m, double dt, int N, Simulation& sim) {
+  ModeSet ms;
+  int up = 0, down = 0;
+  for (int i = 0; i < m.lambda.size(); ++i) {
+    up += m.lambda(i).imag() > 0.0;
+    down += m.lambda(i).imag() < 0.0;
+  }
+  const bool paired = up == down;
+  for (int i = 0; i < m.lambda.size(); ++i) {
+    const Complex lam = m.lambda(i);
+    if (paired && lam.imag() < 0.0) continue;
+    const double f = (paired && lam.imag() > 0.0) ? 2.0 : 1.0;
+    const Complex z = std::exp(lam * dt);
+    const int j = ms.count++;
+    ms.zr[j] = z.real();
+    ms.zi[j] = z.imag();
+    ms.yr[j] = f * m.cy(i).real();
+    ms.yi[j] = f * m.cy(i).imag();
+    ms.ur[j] = f * m.cu(i).real();
+    ms.ui[j] = f * m.cu(i).imag();
+  }
+  sim.y.resize(static_cast<size_t>(N));
+  sim.u.resize(static_cast<size_t>(N));
+  double* y = sim.y.data();
+  double* u = sim.u.data();
+  switch (ms.count) {
+    case 1: case 2: run_modes<1>(ms, m.y_final, m.u_final, N, y, u); break;
+    case 3: case 4: run_modes<2>(ms, m.y_final, m.u_final, N, y, u); break;
+    case 5: case 6: run_modes<3>(ms, m.y_final, m.u_final, N, y, u); break;
+    case 7: case 8: run_modes<4>(ms, m.y_final, m.u_final, N, y, u); break;
+    case 9: case 10: run_modes<5>(ms, m.y_final, m.u_final, N, y, u); break;
+    case 11: case 12: run_modes<6>(ms, m.y_final, m.u_final, N, y, u); break;
+    default: run_modes_any(ms, m.y_final, m.u_final, N, y, u); break;
+  }
+}
+
 // Finds tau in [0, dt] with out(E(tau) z0) = level, given a sign change over the interval.
 double exact_crossing(const ClosedLoop& L, const Vec& z0, const RowVec& out, double dt, double level) {
   double a = 0.0, b = dt;
@@ -179,17 +273,21 @@ double choose_step_horizon(const PoleAnalysis& poles, double final_value, double
 StepMetrics step_response(const ClosedLoop& L, const PoleAnalysis& poles, const StepOptions& opt,
                           double min_horizon_s) {
   StepMetrics m;
-  const double yf = closed_loop_dc_gain(L);
+  // Screening without exact refinement uses the modal expansion when it passed its checks.
+  const bool modal = !opt.exact_refinement && poles.residues_reliable;
+  const double yf = modal ? poles.modal.y_final : closed_loop_dc_gain(L);
   m.final_value = yf;
   m.horizon_s = opt.horizon_s > 0.0 ? opt.horizon_s : choose_step_horizon(poles, yf, opt.band, min_horizon_s);
   const int N = adaptive_count(poles, m.horizon_s, opt);
   m.samples = N;
   const double dt = m.horizon_s / (N - 1);
-  const Mat E = augmented_map(L, dt);
+  const Mat E = modal ? Mat() : augmented_map(L, dt);
 
-  Simulation sim;
+  // Sample buffers reused across calls on the same thread (no allocation on the hot path).
+  thread_local Simulation sim;
   std::vector<Vec> none;
-  simulate(L, E, N, sim, {}, none);
+  if (modal) simulate_modal(poles.modal, dt, N, sim);
+  else simulate(L, E, N, sim, {}, none);
   const std::vector<double>& y = sim.y;
   const std::vector<double>& u = sim.u;
 

@@ -7,14 +7,27 @@
 namespace pw {
 
 Complex Zpk::evaluate(Complex s) const {
-  // Interleave zeros and poles so the running product stays of moderate size.
-  Complex acc(gain, 0.0);
+  // Interleave zeros and poles so the running product stays of moderate size. Plain real
+  // arithmetic: std::complex multiply and divide go through the slow C99 Annex G helpers.
+  double ar = gain, ai = 0.0;
+  const double sr = s.real(), si = s.imag();
   const size_t n = std::max(zeros.size(), poles.size());
   for (size_t i = 0; i < n; ++i) {
-    if (i < zeros.size()) acc *= (s - zeros[i]);
-    if (i < poles.size()) acc /= (s - poles[i]);
+    if (i < zeros.size()) {
+      const double br = sr - zeros[i].real(), bi = si - zeros[i].imag();
+      const double r = ar * br - ai * bi;
+      ai = ar * bi + ai * br;
+      ar = r;
+    }
+    if (i < poles.size()) {
+      const double br = sr - poles[i].real(), bi = si - poles[i].imag();
+      const double d = br * br + bi * bi;
+      const double r = (ar * br + ai * bi) / d;
+      ai = (ai * br - ar * bi) / d;
+      ar = r;
+    }
   }
-  return acc;
+  return Complex(ar, ai);
 }
 
 Zpk zpk_from_polynomials(const Poly& numerator, const Poly& denominator) {

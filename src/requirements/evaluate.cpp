@@ -35,7 +35,7 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
   const ClosedLoop cl = close_loop(parts.compensator, parts.plant);
   e.well_posed = cl.well_posed;
   if (!cl.well_posed) return e;
-  e.poles = analyze_poles(cl, opt.residue_share);
+  e.poles = analyze_poles(cl, parts, 1.0, opt.residue_share);
   e.stable = e.poles.stable;
 
   // Region and the dominant pole (the slowest-decaying pole that matters).

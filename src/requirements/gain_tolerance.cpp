@@ -9,7 +9,7 @@ namespace {
 bool inside(const LoopParts& parts, double k, const Region& region, double share) {
   const ClosedLoop cl = close_loop(parts.compensator, parts.plant, k);
   if (!cl.well_posed) return false;
-  const PoleAnalysis pa = analyze_poles(cl, share);
+  const PoleAnalysis pa = analyze_poles(cl, parts, k, share);
   if (!pa.stable) return false;
   return region_holds(region, pa.poles);
 }

@@ -81,3 +81,27 @@ TEST_CASE("damping_of", "[analysis][closed_loop]") {
   CHECK(damping_of(Complex(-1, 1)) == Approx(std::sqrt(0.5)));
   CHECK(damping_of(Complex(1, 1)) < 0.0);
 }
+
+TEST_CASE("factored-residue analysis agrees with the eigenvector analysis", "[analysis][closed_loop]") {
+  // Two independent computations of the same modal step expansion: eigenvectors of the closed-loop
+  // state matrix, and N(l_i) / (d l_i prod (l_i - l_j)) from the factored loop.
+  Plant g;
+  g.tf = make(180000, {}, {Complex(0, 0), Complex(-8, 0), Complex(-1.2, 59.988), Complex(-1.2, -59.988)});
+  g.delay_s = 0.002;
+  const Zpk c = make(0.8, {Complex(-3, 0), Complex(-3, 59.92), Complex(-3, -59.92)},
+                     {Complex(-60, 0), Complex(-42, 42.8), Complex(-42, -42.8)});
+  const LoopParts parts = make_loop_parts(c, g, 6);
+  for (double k : {1.0, 0.5}) {
+    const ClosedLoop cl = close_loop(parts.compensator, parts.plant, k);
+    const PoleAnalysis a = analyze_poles(cl, 0.02), b = analyze_poles(cl, parts, k, 0.02);
+    REQUIRE(a.residues_reliable);
+    REQUIRE(b.residues_reliable);
+    CHECK(a.modal.y_final == Approx(b.modal.y_final).epsilon(1e-9));
+    CHECK(a.modal.u_final == Approx(b.modal.u_final).epsilon(1e-9).margin(1e-9));
+    REQUIRE(a.poles.size() == b.poles.size());
+    for (size_t i = 0; i < a.poles.size(); ++i) {
+      CHECK(std::abs(a.poles[i].pole - b.poles[i].pole) < 1e-9 * std::abs(a.poles[i].pole));
+      CHECK(a.poles[i].residue == Approx(b.poles[i].residue).epsilon(1e-6).margin(1e-12));
+    }
+  }
+}

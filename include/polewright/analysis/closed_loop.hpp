@@ -24,6 +24,8 @@ struct ClosedLoop {
 struct LoopParts {
   StateSpace compensator;  // C(s)
   StateSpace plant;        // G(s) with the Pade approximant of its delay in series
+  Zpk compensator_tf;      // C(s)
+  Zpk plant_rational;      // G(s) Pade(s)
   Zpk loop_rational;       // C G Pade as zeros/poles/gain (root locus)
   Zpk loop_exact;          // C G without the delay (frequency response multiplies e^(-jwT))
   double delay_s = 0.0;
@@ -44,15 +46,34 @@ struct PoleInfo {
   bool matters = true;          // share >= the residue threshold (or residues unreliable)
 };
 
+// The modal form of the unit-step response: y(t) = y_f + sum cy_i e^(l_i t), u likewise.
+struct ModalStep {
+  CVec lambda;  // eigenvalues in solver order (conjugate pairs adjacent)
+  CVec cy;      // residues of y
+  CVec cu;      // residues of u
+  double y_final = 0.0;
+  double u_final = 0.0;
+};
+
 struct PoleAnalysis {
   std::vector<PoleInfo> poles;  // sorted by real part, descending (slowest first)
   bool stable = false;
-  bool residues_reliable = true;  // false for (nearly) defective eigenvector bases
-  double eigvec_rcond = 1.0;
+  // False for (nearly) defective eigenvector bases: the modal expansion then fails its two
+  // consistency checks (y(0+) = Dy and y'(0+) = Cy B) and every pole counts as one that matters.
+  bool residues_reliable = true;
+  double modal_error = 0.0;  // relative mismatch of those checks
+  ModalStep modal;
 };
 
 // Eigen-decomposition of the closed loop and the modal residues of the y step response.
 PoleAnalysis analyze_poles(const ClosedLoop& loop, double residue_share_threshold);
+
+// The same for the loop `parts` closed with the compensator scaled by gain_scale, cheaper: the
+// eigenvalues alone, and the residues from the factored transfer functions,
+// c_i = N(l_i) / (d l_i prod_{j != i} (l_i - l_j)). When that expansion fails the consistency
+// checks it falls back to the eigenvector computation above.
+PoleAnalysis analyze_poles(const ClosedLoop& loop, const LoopParts& parts, double gain_scale,
+                           double residue_share_threshold);
 
 // Just the eigenvalues (balanced), for cheap stability screening.
 CVec closed_loop_eigenvalues(const ClosedLoop& loop);

@@ -24,6 +24,21 @@ struct FrequencyOptions {
 // L(jw) for the rational part `loop` and dead time `delay_s`.
 Complex loop_response(const Zpk& loop, double delay_s, double w);
 
+// The same, prepared once for many frequencies: conjugate pairs become real quadratics in w
+// (one complex multiply per pair), numerator and denominator are multiplied separately with
+// power-of-two rescaling so no order overflows, and one division ends each evaluation.
+class LoopResponse {
+ public:
+  LoopResponse(const Zpk& loop, double delay_s);
+  Complex operator()(double w) const;
+
+ private:
+  struct Factor { double c0, c1; bool quadratic; };  // (c0 - w^2) + j c1 w, or c0 + j w
+  std::vector<Factor> num_, den_;
+  double gain_;
+  double delay_;
+};
+
 std::vector<double> frequency_grid(const Zpk& loop, double delay_s, const FrequencyOptions& options);
 
 struct FrequencyMetrics {

@@ -22,7 +22,9 @@ constexpr int kMaxAug = kMaxStates + 2;
 using Mat = Eigen::Matrix<double, Eigen::Dynamic, Eigen::Dynamic, 0, kMaxAug, kMaxAug>;
 using Vec = Eigen::Matrix<double, Eigen::Dynamic, 1, 0, kMaxAug, 1>;
 using RowVec = Eigen::Matrix<double, 1, Eigen::Dynamic, Eigen::RowMajor, 1, kMaxAug>;
-using CMat = Eigen::Matrix<Complex, Eigen::Dynamic, Eigen::Dynamic, 0, kMaxAug, kMaxAug>;
-using CVec = Eigen::Matrix<Complex, Eigen::Dynamic, 1, 0, kMaxAug, 1>;
+// Complex matrices live on the heap: std::complex value-initialises, so a fixed-maximum complex
+// matrix would clear all of its 64 KiB storage at every construction.
+using CMat = Eigen::MatrixXcd;
+using CVec = Eigen::VectorXcd;
 
 }  // namespace pw
