@@ -4,17 +4,11 @@
 
 #include "polewright/analysis/closed_loop.hpp"
 
+#include "support/make_zpk.hpp"
+
 using namespace pw;
 
-namespace {
-Zpk make(double k, Roots z, Roots p) {
-  Zpk o;
-  o.gain = k;
-  o.zeros = std::move(z);
-  o.poles = std::move(p);
-  return o;
-}
-}  // namespace
+using pw::test::make;
 
 TEST_CASE("standard second-order loop: closed-loop poles -zeta wn +- j wn sqrt(1 - zeta^2)", "[analysis][closed_loop]") {
   // wn^2 / (s (s + 2 zeta wn)), wn = 5, zeta = 0.5 -> -2.5 +- j4.330 (closed form, any control text).

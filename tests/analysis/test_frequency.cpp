@@ -4,17 +4,11 @@
 
 #include "polewright/analysis/frequency.hpp"
 
+#include "support/make_zpk.hpp"
+
 using namespace pw;
 
-namespace {
-Zpk make(double k, Roots z, Roots p) {
-  Zpk o;
-  o.gain = k;
-  o.zeros = std::move(z);
-  o.poles = std::move(p);
-  return o;
-}
-}  // namespace
+using pw::test::make;
 
 TEST_CASE("standard loop: PM 51.8 deg and bandwidth 6.36 rad/s (closed-form second-order results)", "[analysis][frequency]") {
   // PM = atan(2 zeta / sqrt(sqrt(1 + 4 zeta^4) - 2 zeta^2)), wb = wn sqrt(1 - 2 zeta^2 + sqrt(4 zeta^4 - 4 zeta^2 + 2)).
