@@ -1,5 +1,7 @@
 #include "polewright/analysis/analysis_options.hpp"
 
+#include <algorithm>
+
 #include "polewright/model/types.hpp"
 
 namespace pw {
@@ -21,7 +23,9 @@ AnalysisOptions AnalysisOptions::Screening(const AnalysisOptions& base) {
   o.step.adaptive_samples = false;
   o.step.exact_refinement = false;
   o.step.keep_trace = false;
+  o.step.samples = std::min(o.step.samples, 1000);
   o.frequency.points_per_decade = 20;
+  o.frequency.delay_grid_floor = 0.05;
   return o;
 }
 

@@ -134,7 +134,18 @@ std::vector<double> frequency_grid(const Zpk& loop, double delay_s, const Freque
       }
     }
   if (delay_s > 0.0) {
-    const double step = 0.5 / delay_s, top = std::min(hi, 200.0 / delay_s);
+    const double step = 0.5 / delay_s;
+    double top = std::min(hi, 200.0 / delay_s);
+    if (opt.delay_grid_floor > 0.0) {
+      // The highest log-grid frequency with |L| above the floor (scanning down from the top).
+      double last = w.front();
+      for (size_t i = w.size(); i-- > 0;)
+        if (std::abs(Lw(w[i])) >= opt.delay_grid_floor) {
+          last = w[i];
+          break;
+        }
+      top = std::min(top, last * std::pow(10.0, 2.0 / opt.points_per_decade));
+    }
     for (double x = step; x < top; x += step)
       if (x > lo) w.push_back(x);
   }

@@ -12,6 +12,7 @@ int main(int argc, char** argv) {
   app.set_version_flag("--version", pw::kToolVersion);
   pw::cli::register_validate(app);
   pw::cli::register_check(app);
+  pw::cli::register_design(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::CallForHelp& e) {

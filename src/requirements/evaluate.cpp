@@ -52,9 +52,12 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
   if (e.dominant_pole) at(MetricId::NaturalFrequency).value = std::abs(*e.dominant_pole);
 
   const bool all = needs.everything;
+  if (!all && !e.stable) return e;  // screening: nothing more to learn from an unstable loop
   // Frequency response with the exact delay: robustness figures, computed for unstable loops too.
-  if (all || needs_any(req, {MetricId::PhaseMargin, MetricId::GainMargin, MetricId::Crossover, MetricId::Bandwidth,
-                             MetricId::PeakSensitivity})) {
+  const bool freq = all || needs.frequency ||
+                    needs_any(req, {MetricId::PhaseMargin, MetricId::GainMargin, MetricId::Crossover,
+                                    MetricId::Bandwidth, MetricId::PeakSensitivity});
+  if (freq) {
     e.frequency = frequency_metrics(parts.loop_exact, parts.delay_s, opt.frequency);
     const FrequencyMetrics& f = e.frequency;
     at(MetricId::PhaseMargin) = f.gain_crossovers_rad_s.empty() ? infinite() : number(f.phase_margin_deg);
@@ -68,7 +71,16 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
   e.steady_state = steady_state_error(parts.loop_exact, req.error_signal);
   at(MetricId::SteadyStateError) = e.steady_state.error ? number(e.steady_state.error) : infinite();
 
-  if (all || needs_any(req, {MetricId::Overshoot, MetricId::SettlingTime, MetricId::RiseTime, MetricId::PeakEffort})) {
+  bool step = all || needs.step ||
+              needs_any(req, {MetricId::Overshoot, MetricId::SettlingTime, MetricId::RiseTime, MetricId::PeakEffort});
+  if (!all && step) {
+    double fv = 0.0;
+    for (const Requirement& r : req.items)
+      if (!metric_info(r.metric).time_domain && r.metric != MetricId::GainTolerance)
+        fv += requirement_violation(r, v[static_cast<size_t>(r.metric)]);
+    step = fv <= needs.step_gate;
+  }
+  if (step) {
     StepOptions so = opt.step;
     so.band = req.settling_band;
     const double min_h = req.limit(MetricId::SettlingTime, Sense::AtMost).value_or(0.0);
@@ -78,8 +90,18 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
     at(MetricId::RiseTime) = number(e.step->rise_time_s);
     at(MetricId::PeakEffort) = number(e.step->peak_effort);
   }
-  if (all || req.has(MetricId::GainTolerance)) {
-    e.gain = gain_tolerance(parts, region, opt.residue_share, all ? 1.05 : 1.25);
+  bool tolerance = all || req.has(MetricId::GainTolerance);
+  if (!all && tolerance) {
+    // Screening: the gain scan only for loops that are near meeting everything else.
+    double other = 0.0;
+    for (const Requirement& r : req.items)
+      if (r.metric != MetricId::GainTolerance) other += requirement_violation(r, v[static_cast<size_t>(r.metric)]);
+    tolerance = other <= needs.step_gate;
+  }
+  if (tolerance) {
+    const auto t = req.limit(MetricId::GainTolerance, Sense::AtLeast);
+    e.gain = (!all && t) ? gain_tolerance_screen(parts, region, opt.residue_share, *t / 100.0)
+                         : gain_tolerance(parts, region, opt.residue_share);
     at(MetricId::GainTolerance).value = e.gain.tolerance_pct;
   }
   return e;

@@ -40,6 +40,24 @@ double edge(const LoopParts& parts, const Region& region, double share, double l
 
 }  // namespace
 
+GainToleranceResult gain_tolerance_screen(const LoopParts& parts, const Region& region, double share, double t) {
+  GainToleranceResult g;
+  if (!inside(parts, 1.0, region, share)) return g;
+  auto side = [&](double far) {
+    if (inside(parts, far, region, share)) return far;
+    double a = 0.0, b = std::log(far);
+    for (int it = 0; it < 8; ++it) {
+      const double m = 0.5 * (a + b);
+      (inside(parts, std::exp(m), region, share) ? a : b) = m;
+    }
+    return std::exp(a);
+  };
+  g.hi = side(1.0 + t);
+  g.lo = side(std::max(kGainScanMin, 1.0 - t));
+  g.tolerance_pct = 100.0 * std::min(*g.hi - 1.0, 1.0 - *g.lo);
+  return g;
+}
+
 GainToleranceResult gain_tolerance(const LoopParts& parts, const Region& region, double share, double ratio) {
   GainToleranceResult g;
   if (!inside(parts, 1.0, region, share)) return g;

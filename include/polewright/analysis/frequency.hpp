@@ -17,6 +17,10 @@ struct FrequencyOptions {
   // crossovers are bracketed).
   double w_min = 0.0;
   double w_max = 0.0;
+  // With a dead time, the linear grid stops where |L| has fallen below this floor on the
+  // logarithmic grid (phase crossovers there give gain margins above -20 log10(floor) dB).
+  // 0 keeps the whole linear grid; the search's screening uses 0.05 (26 dB).
+  double delay_grid_floor = 0.0;
 
   bool IsValid(std::string* error) const;
 };

@@ -28,8 +28,16 @@ struct GainToleranceResult {
   double tolerance_pct = 0.0;    // 100 min(hi - 1, 1 - lo), 0 when empty
 };
 
+// `step_ratio` is the outward step before bisecting the first change (40 bisections).
 GainToleranceResult gain_tolerance(const LoopParts& parts, const Region& region, double residue_share,
                                    double step_ratio = 1.05);
+
+// The search's screening version for a required tolerance t (fraction): it tests the scale factors
+// 1 - t and 1 + t and only bisects (8 steps) towards a side that fails, so a loop that holds the
+// requirement costs two pole analyses. The figure is then t itself (a lower bound); the
+// full-accuracy verification reports the real one.
+GainToleranceResult gain_tolerance_screen(const LoopParts& parts, const Region& region, double residue_share,
+                                          double required);
 
 struct LoopEvaluation {
   std::string plant_name;
@@ -47,6 +55,12 @@ struct LoopEvaluation {
 
 struct EvaluationNeeds {
   bool everything = true;  // false: only what the requirements use (search screening)
+  // With everything = false: unstable loops stop after their poles; the step is simulated when a
+  // requirement or `step` asks for it and the frequency-domain violations sum to at most
+  // `step_gate`; the frequency response is computed when a requirement or `frequency` asks.
+  bool step = false;
+  bool frequency = false;
+  double step_gate = 1.0;
 };
 
 LoopEvaluation evaluate_loop(const Zpk& compensator, const Plant& plant, const RequirementSet& req,

@@ -1,0 +1,21 @@
+// The design report as JSON (specs/result.schema.json) and as a readable ranked table.
+#pragma once
+
+#include <string>
+
+#include <nlohmann/json.hpp>
+
+#include "polewright/jobs/design.hpp"
+
+namespace pw {
+
+// The requirements in the spec's own format (so a result can be re-checked independently).
+nlohmann::json requirements_json(const RequirementSet& req);
+// A plant in the spec's zeros/poles/gain encoding, with its delay and name.
+nlohmann::json plant_json(const Plant& p);
+
+nlohmann::json candidate_json(const Candidate& c, const RequirementSet& req);
+nlohmann::json design_report_json(const DesignReport& r, bool include_timing = true);
+std::string design_report_text(const DesignReport& r);
+
+}  // namespace pw

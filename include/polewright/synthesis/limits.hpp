@@ -1,0 +1,32 @@
+// Limits the plant puts on any compensator (common-practice bounds, see the field notes), and
+// whether the requirements ask for more.
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "polewright/requirements/region.hpp"
+#include "polewright/requirements/spec.hpp"
+
+namespace pw {
+
+struct PlantLimit {
+  std::string kind;        // "rhp_zero", "unstable_pole", "dead_time", "integrators"
+  std::string plant;       // which plant
+  double at = 0.0;         // the zero, pole (rad/s) or dead time (s); the integrators needed
+  std::optional<double> max_crossover_rad_s;
+  std::optional<double> min_crossover_rad_s;
+  bool binding = false;    // the requirements ask for more than the limit allows
+  std::string requirement; // the requirement key that conflicts, when binding
+  std::string message;     // one readable sentence
+};
+
+// The crossover the requirements call for, from the region (dominant second-order model:
+// wc = wn sqrt(sqrt(1 + 4 zeta^4) - 2 zeta^2)) and any crossover or bandwidth bounds.
+double required_crossover(const Region& region, const RequirementSet& req);
+
+std::vector<PlantLimit> plant_limits(const std::vector<Plant>& plants, const RequirementSet& req, const Region& region,
+                                     const StageSettings& stages);
+
+}  // namespace pw

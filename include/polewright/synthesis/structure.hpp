@@ -1,0 +1,36 @@
+// Compensator structures: which stages, in a fixed order, simplest first.
+#pragma once
+
+#include <string>
+#include <vector>
+
+#include "polewright/requirements/spec.hpp"
+
+namespace pw {
+
+enum class StageKind { Integrator, Lead, Lag, Notch };
+
+const char* stage_name(StageKind k);
+
+struct Structure {
+  bool integrator = false;
+  int lead = 0;
+  int lag = 0;
+  int notch = 0;
+
+  // Stages in parameter order: integrator, leads, lags, notches.
+  std::vector<StageKind> stages() const;
+  std::vector<std::string> names() const;
+  int stage_count() const { return (integrator ? 1 : 0) + lead + lag + notch; }
+  int order() const { return (integrator ? 1 : 0) + lead + lag + 2 * notch; }
+  bool operator==(const Structure& o) const {
+    return integrator == o.integrator && lead == o.lead && lag == o.lag && notch == o.notch;
+  }
+};
+
+// Every combination the stage settings allow (up to the given counts; integrator on, off or both),
+// ordered simplest first: fewer stages, then lower order, then integrator off before on, then
+// lead before lag before notch. The pure gain comes first.
+std::vector<Structure> enumerate_structures(const StageSettings& s);
+
+}  // namespace pw

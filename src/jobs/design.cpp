@@ -1,0 +1,265 @@
+#include "polewright/jobs/design.hpp"
+
+#include <algorithm>
+#include <chrono>
+#include <cmath>
+#include <cstdio>
+#include <random>
+
+#include "polewright/synthesis/parallel.hpp"
+#include "polewright/synthesis/problem.hpp"
+#include "polewright/synthesis/seeds.hpp"
+
+namespace pw {
+
+bool DesignOptions::IsValid(std::string* error) const {
+  auto fail = [&](const char* m) {
+    if (error) *error = m;
+    return false;
+  };
+  if (keep < 1 || keep > 100) return fail("keep must be within 1..100");
+  if (threads < 0) return fail("threads must be >= 0");
+  if (max_evaluations < 1) return fail("max_evaluations must be >= 1");
+  if (!(time_limit_s > 0.0)) return fail("time_limit_s must be > 0");
+  if (global_points_base < 0 || global_points_per_dim < 0 || global_starts < 0) return fail("global search sizes must be >= 0");
+  if (!(diversity >= 0.0 && diversity < 1.0)) return fail("diversity must be within [0, 1)");
+  return local.IsValid(error);
+}
+
+DesignOptions DesignOptions::FromSpec(const Spec& spec) {
+  DesignOptions o;
+  o.keep = spec.search.keep;
+  o.seed = spec.search.seed;
+  o.threads = spec.search.threads;
+  o.objective = spec.search.objective;
+  o.max_evaluations = spec.search.max_evaluations;
+  o.time_limit_s = spec.search.time_limit_s;
+  return o;
+}
+
+std::string DesignSummary::FullReport() const {
+  char buf[512];
+  std::snprintf(buf, sizeof buf,
+                "search: %lld evaluations in %.3f s on %d thread(s), seed %llu; %d structure(s), %d local run(s)%s%s; "
+                "first verified design %s",
+                evaluations, seconds, threads, seed, structures_searched, local_runs,
+                budget_stop ? "; stopped by the evaluation budget" : "", time_stop ? "; stopped by the time limit" : "",
+                first_verified_s ? (std::to_string(*first_verified_s).substr(0, 6) + " s").c_str() : "none");
+  return buf;
+}
+
+namespace {
+
+using Clock = std::chrono::steady_clock;
+
+struct PoolEntry {
+  size_t structure = 0;
+  std::vector<double> x;
+  DesignScore score;
+  std::string origin;
+};
+
+struct StructureSetup {
+  Structure structure;
+  std::shared_ptr<DesignProblem> problem;
+  std::vector<Seed> starts;
+  long long global_evaluations = 0;
+};
+
+bool better(const DesignScore& a, const DesignScore& b) {
+  if (a.feasible != b.feasible) return a.feasible;
+  if (a.feasible) return a.objective < b.objective;
+  return a.violation < b.violation;
+}
+
+// Distance in the unit cube (max norm), for the diversity rule.
+double unit_distance(const ParamSpace& ps, const std::vector<double>& a, const std::vector<double>& b) {
+  double d = 0.0;
+  for (size_t i = 0; i < a.size(); ++i) {
+    const double span = ps.upper[i] - ps.lower[i];
+    if (span > 0.0) d = std::max(d, std::abs(a[i] - b[i]) / span);
+  }
+  return d;
+}
+
+StructureSetup prepare(const Structure& s, size_t index, const Spec& spec, const Region& region,
+                       std::pair<double, double> range, const AnalysisOptions& screening, const DesignOptions& o) {
+  const Plant& nominal = spec.plants.front();
+  const double sign = feedback_sign(nominal);
+  // Seeds with wide gain bounds first, then bounds three decades either side of their gains.
+  ParamSpace wide = make_param_space(s, range, -12.0, 12.0, sign);
+  std::vector<Seed> seeds = published_seeds(wide, nominal, region, spec.requirements);
+  double glo = INFINITY, ghi = -INFINITY;
+  for (const Seed& sd : seeds) {
+    glo = std::min(glo, sd.x[0]);
+    ghi = std::max(ghi, sd.x[0]);
+  }
+  if (!std::isfinite(glo)) glo = ghi = 0.0;
+  ParamSpace ps = make_param_space(s, range, glo - 3.0, ghi + 3.0, sign);
+  StructureSetup st;
+  st.structure = s;
+  st.problem = std::make_shared<DesignProblem>(spec.plants, spec.requirements, region, screening, o.objective, ps);
+  for (Seed& sd : seeds) st.starts.push_back(sd);
+  // Low-discrepancy screening points, shifted by a rotation drawn from the seed and structure.
+  std::mt19937_64 rng(o.seed * 0x9E3779B97F4A7C15ULL + index);
+  std::uniform_real_distribution<double> U(0.0, 1.0);
+  std::vector<double> shift(static_cast<size_t>(ps.dim()));
+  for (double& v : shift) v = U(rng);
+  const int n = o.global_points_base + o.global_points_per_dim * ps.dim();
+  std::vector<PoolEntry> global(static_cast<size_t>(n));
+  for (int i = 0; i < n; ++i) {
+    global[static_cast<size_t>(i)].x = from_unit(ps, halton_point(i, ps.dim(), shift));
+    global[static_cast<size_t>(i)].score = st.problem->score(global[static_cast<size_t>(i)].x);
+    global[static_cast<size_t>(i)].origin = "low-discrepancy start " + std::to_string(i);
+  }
+  st.global_evaluations = n;
+  std::stable_sort(global.begin(), global.end(), [](const PoolEntry& a, const PoolEntry& b) { return better(a.score, b.score); });
+  for (int i = 0; i < std::min(o.global_starts, n); ++i)
+    st.starts.push_back({global[static_cast<size_t>(i)].x, global[static_cast<size_t>(i)].origin});
+  return st;
+}
+
+Candidate verify(const PoolEntry& e, const std::vector<StructureSetup>& setups, const Spec& spec, const Region& region,
+                 Objective objective) {
+  const StructureSetup& st = setups[e.structure];
+  Candidate c;
+  c.structure = st.structure;
+  c.parameters = e.x;
+  c.origin = e.origin;
+  c.compensator = params_to_zpk(st.problem->space(), e.x);
+  c.verification = evaluate_all(c.compensator, spec.plants, spec.requirements, region, spec.analysis);
+  c.worst = worst_metrics(c.verification.plants, spec.requirements);
+  c.meets = c.verification.all_met;
+  c.violation = c.verification.total_violation;
+  c.objective = objective_value(objective, c.worst, c.compensator.gain);
+  return c;
+}
+
+}  // namespace
+
+DesignReport run_design(const Spec& spec, const DesignOptions& o) {
+  const auto t0 = Clock::now();
+  auto elapsed = [&] { return std::chrono::duration<double>(Clock::now() - t0).count(); };
+  DesignReport rep;
+  rep.spec_name = spec.name;
+  rep.plants = spec.plants;
+  rep.requirements = spec.requirements;
+  rep.analysis = spec.analysis;
+  rep.objective = o.objective;
+  rep.region = region_from_requirements(spec.requirements);
+  rep.frequency_range = spec.stages.frequency_range_rad_s ? *spec.stages.frequency_range_rad_s
+                                                          : default_frequency_range(spec.plants, rep.region);
+  rep.limits = plant_limits(spec.plants, spec.requirements, rep.region, spec.stages);
+  rep.summary.seed = o.seed;
+  rep.summary.threads = resolve_threads(o.threads);
+  const int threads = rep.summary.threads;
+
+  AnalysisOptions screening = AnalysisOptions::Screening(spec.analysis);
+  const std::vector<Structure> structures = enumerate_structures(spec.stages);
+  std::vector<StructureSetup> setups;
+  std::vector<PoolEntry> pool;
+  size_t next = 0;
+  int levels_after_full = -1;
+  while (next < structures.size()) {
+    // One level: every structure with the same number of stages.
+    const int level = structures[next].stage_count();
+    std::vector<size_t> members;
+    while (next < structures.size() && structures[next].stage_count() == level) members.push_back(next++);
+    std::vector<StructureSetup> level_setups(members.size());
+    parallel_for(members.size(), threads, [&](size_t i) {
+      level_setups[i] = prepare(structures[members[i]], members[i], spec, rep.region, rep.frequency_range, screening, o);
+    });
+    struct Task { size_t setup; size_t start; };
+    std::vector<Task> tasks;
+    const size_t base = setups.size();
+    for (size_t i = 0; i < level_setups.size(); ++i) {
+      rep.summary.evaluations += level_setups[i].global_evaluations;
+      for (size_t j = 0; j < level_setups[i].starts.size(); ++j) tasks.push_back({base + i, j});
+      setups.push_back(std::move(level_setups[i]));
+    }
+    std::vector<LocalResult> results(tasks.size());
+    parallel_for(tasks.size(), threads, [&](size_t i) {
+      const StructureSetup& st = setups[tasks[i].setup];
+      results[i] = local_search(*st.problem, st.starts[tasks[i].start].x, o.local);
+    });
+    for (size_t i = 0; i < tasks.size(); ++i) {
+      rep.summary.evaluations += results[i].evaluations;
+      pool.push_back({tasks[i].setup, results[i].x, results[i].score, setups[tasks[i].setup].starts[tasks[i].start].origin});
+    }
+    rep.summary.structures_searched += static_cast<int>(members.size());
+    rep.summary.local_runs += static_cast<int>(tasks.size());
+    // Time to the first verified design: the level's best screening-feasible points, in order.
+    if (!rep.summary.first_verified_s) {
+      std::vector<size_t> order;
+      for (size_t i = pool.size() - tasks.size(); i < pool.size(); ++i)
+        if (pool[i].score.feasible) order.push_back(i);
+      std::stable_sort(order.begin(), order.end(), [&](size_t a, size_t b) { return better(pool[a].score, pool[b].score); });
+      for (size_t k = 0; k < order.size() && k < 3 && !rep.summary.first_verified_s; ++k)
+        if (verify(pool[order[k]], setups, spec, rep.region, o.objective).meets) rep.summary.first_verified_s = elapsed();
+    }
+    const long long feasible = std::count_if(pool.begin(), pool.end(), [](const PoolEntry& e) { return e.score.feasible; });
+    if (levels_after_full < 0 && feasible >= o.keep) levels_after_full = 0;
+    else if (levels_after_full >= 0) ++levels_after_full;
+    if (levels_after_full >= o.extra_levels) break;
+    if (rep.summary.evaluations >= o.max_evaluations) { rep.summary.budget_stop = true; break; }
+    if (elapsed() >= o.time_limit_s) { rep.summary.time_stop = true; break; }
+  }
+
+  // Diverse shortlist by screening score, then full-accuracy verification.
+  std::stable_sort(pool.begin(), pool.end(), [](const PoolEntry& a, const PoolEntry& b) { return better(a.score, b.score); });
+  std::vector<PoolEntry> shortlist;
+  for (const PoolEntry& e : pool) {
+    bool close = false;
+    for (const PoolEntry& s : shortlist)
+      if (s.structure == e.structure && unit_distance(setups[e.structure].problem->space(), s.x, e.x) < o.diversity) close = true;
+    if (!close) shortlist.push_back(e);
+    if (static_cast<int>(shortlist.size()) >= 3 * o.keep) break;
+  }
+  std::vector<Candidate> cands(shortlist.size());
+  parallel_for(shortlist.size(), threads, [&](size_t i) { cands[i] = verify(shortlist[i], setups, spec, rep.region, o.objective); });
+  std::stable_sort(cands.begin(), cands.end(), [&](const Candidate& a, const Candidate& b) {
+    if (a.meets != b.meets) return a.meets;
+    if (a.meets) {
+      if (o.objective == Objective::Simplest && a.structure.stage_count() != b.structure.stage_count())
+        return a.structure.stage_count() < b.structure.stage_count();
+      return a.objective < b.objective;
+    }
+    return a.violation < b.violation;
+  });
+  if (static_cast<int>(cands.size()) > o.keep) cands.resize(static_cast<size_t>(o.keep));
+  for (size_t i = 0; i < cands.size(); ++i) cands[i].rank = static_cast<int>(i) + 1;
+  rep.candidates = std::move(cands);
+  if (!rep.summary.first_verified_s && rep.met()) rep.summary.first_verified_s = elapsed();
+
+  // When nothing meets: for each requirement the best candidate misses, the best value reachable
+  // when that requirement alone is relaxed (a smaller search over the structures already tried).
+  if (!rep.met() && o.explain_failure && !rep.candidates.empty()) {
+    for (const RequirementOutcome& out : rep.candidates.front().verification.outcomes) {
+      if (out.met) continue;
+      Spec relaxed = spec;
+      relaxed.requirements.items.clear();
+      for (const Requirement& r : spec.requirements.items)
+        if (!(r.metric == out.requirement.metric && r.sense == out.requirement.sense)) relaxed.requirements.items.push_back(r);
+      DesignOptions ro = o;
+      ro.keep = 1;
+      ro.explain_failure = false;
+      ro.global_starts = 1;
+      ro.time_limit_s = std::max(1.0, o.time_limit_s / 4.0);
+      const DesignReport rr = run_design(relaxed, ro);
+      BindingRequirement b;
+      b.requirement = out.requirement;
+      if (!rr.candidates.empty()) {
+        const Evaluation ev = evaluate_all(rr.candidates.front().compensator, spec.plants, spec.requirements, rep.region, spec.analysis);
+        for (const RequirementOutcome& x : ev.outcomes)
+          if (x.requirement.metric == out.requirement.metric && x.requirement.sense == out.requirement.sense) b.best_value = x.worst;
+        b.relaxing_meets_the_rest = rr.met();
+      }
+      rep.summary.evaluations += rr.summary.evaluations;
+      rep.binding.push_back(b);
+    }
+  }
+  rep.summary.seconds = elapsed();
+  return rep;
+}
+
+}  // namespace pw

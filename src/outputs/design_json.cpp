@@ -1,0 +1,106 @@
+#include <cmath>
+
+#include "polewright/outputs/check_output.hpp"
+#include "polewright/outputs/design_output.hpp"
+#include "polewright/outputs/json_values.hpp"
+
+namespace pw {
+
+nlohmann::json requirements_json(const RequirementSet& req) {
+  nlohmann::json j = nlohmann::json::object();
+  for (const Requirement& r : req.items) {
+    const char* key = metric_info(r.metric).key;
+    j[key][r.sense == Sense::AtMost ? "max" : "min"] = r.limit;
+  }
+  if (j.contains("settling_time_s")) j["settling_time_s"]["band_pct"] = 100.0 * req.settling_band;
+  if (j.contains("steady_state_error")) {
+    const char* names[] = {"step", "ramp", "parabola"};
+    j["steady_state_error"]["input"] = names[static_cast<int>(req.error_signal)];
+  }
+  return j;
+}
+
+nlohmann::json plant_json(const Plant& p) {
+  nlohmann::json z = json_zpk(p.tf);
+  return {{"name", p.name}, {"gain", z["gain"]}, {"zeros", z["zeros"]}, {"poles", z["poles"]}, {"delay_s", json_number(p.delay_s)}};
+}
+
+nlohmann::json candidate_json(const Candidate& c, const RequirementSet& req) {
+  nlohmann::json j;
+  j["rank"] = c.rank;
+  j["structure"] = c.structure.names();
+  j["meets"] = c.meets;
+  j["compensator"] = json_zpk(c.compensator);
+  nlohmann::json m = nlohmann::json::object(), unbounded = nlohmann::json::array();
+  for (const MetricInfo& info : metric_table()) {
+    const MetricValue& v = c.worst[static_cast<size_t>(info.id)];
+    m[info.key] = json_number(v);
+    if (v.infinite) unbounded.push_back(info.key);
+  }
+  j["metrics"] = m;
+  j["unbounded"] = unbounded;
+  j["worst_variant"] = c.verification.worst_plant;
+  const LoopEvaluation& nominal = c.verification.plants.front();
+  nlohmann::json poles = nlohmann::json::array();
+  for (const PoleInfo& p : nominal.poles.poles)
+    poles.push_back({{"re", json_number(p.pole.real())}, {"im", json_number(p.pole.imag())},
+                     {"damping_ratio", json_number(p.damping)}, {"natural_frequency_rad_s", json_number(p.natural_frequency)},
+                     {"step_share", json_number(p.share)}, {"matters", p.matters}});
+  j["closed_loop_poles"] = poles;
+  j["gain_interval"] = nominal.gain.lo ? nlohmann::json{json_number(nominal.gain.lo), json_number(nominal.gain.hi)} : nlohmann::json(nullptr);
+  nlohmann::json viol = nlohmann::json::object();
+  for (const RequirementOutcome& o : c.verification.outcomes) {
+    const std::string key = std::string(metric_info(o.requirement.metric).key) + (o.requirement.sense == Sense::AtMost ? ".max" : ".min");
+    viol[key] = json_number(o.violation);
+  }
+  j["violations"] = viol;
+  j["objective"] = json_number(c.objective);
+  j["origin"] = c.origin;
+  (void)req;
+  return j;
+}
+
+nlohmann::json design_report_json(const DesignReport& r, bool include_timing) {
+  nlohmann::json j;
+  j["tool"] = {{"name", "polewright"}, {"version", kToolVersion}, {"job", "design"}};
+  j["name"] = r.spec_name;
+  j["status"] = r.met() ? "met" : "not_met";
+  j["objective"] = objective_name(r.objective);
+  j["region"] = region_json(r.region);
+  j["frequency_range_rad_s"] = {json_number(r.frequency_range.first), json_number(r.frequency_range.second)};
+  nlohmann::json plants = nlohmann::json::array();
+  for (const Plant& p : r.plants) plants.push_back(plant_json(p));
+  j["plants"] = plants;
+  j["requirements"] = requirements_json(r.requirements);
+  j["analysis"] = {{"pade_order", r.analysis.pade_order}, {"settling_band", json_number(r.requirements.settling_band)},
+                   {"residue_share", json_number(r.analysis.residue_share)}};
+  nlohmann::json cands = nlohmann::json::array();
+  for (const Candidate& c : r.candidates) cands.push_back(candidate_json(c, r.requirements));
+  j["candidates"] = cands;
+  nlohmann::json binding = nlohmann::json::array();
+  for (const BindingRequirement& b : r.binding)
+    binding.push_back({{"requirement", metric_info(b.requirement.metric).key},
+                       {"bound", b.requirement.sense == Sense::AtMost ? "max" : "min"},
+                       {"limit", json_number(b.requirement.limit)},
+                       {"best_value_when_relaxed", json_number(b.best_value)},
+                       {"relaxing_it_meets_the_rest", b.relaxing_meets_the_rest}});
+  j["binding"] = binding;
+  nlohmann::json limits = nlohmann::json::array();
+  for (const PlantLimit& l : r.limits)
+    limits.push_back({{"kind", l.kind}, {"plant", l.plant}, {"at", json_number(l.at)},
+                      {"max_crossover_rad_s", json_number(l.max_crossover_rad_s)},
+                      {"min_crossover_rad_s", json_number(l.min_crossover_rad_s)},
+                      {"binding", l.binding}, {"requirement", l.requirement}, {"message", l.message}});
+  j["limits"] = limits;
+  j["search"] = {{"evaluations", r.summary.evaluations}, {"seed", r.summary.seed},
+                 {"structures_searched", r.summary.structures_searched}, {"local_runs", r.summary.local_runs},
+                 {"budget_stop", r.summary.budget_stop}};
+  // Timings depend on the machine and the thread count: kept apart, and left out for byte-identical output.
+  if (include_timing)
+    j["timing"] = {{"seconds", json_number(r.summary.seconds)}, {"first_verified_s", json_number(r.summary.first_verified_s)},
+                   {"threads", r.summary.threads}, {"time_stop", r.summary.time_stop}};
+  j["cautions"] = kCautions;
+  return j;
+}
+
+}  // namespace pw

@@ -1,0 +1,79 @@
+#include <cmath>
+
+#include "polewright/outputs/design_output.hpp"
+#include "polewright/outputs/json_values.hpp"
+#include "polewright/outputs/text_table.hpp"
+
+namespace pw {
+
+namespace {
+
+std::string roots_text(const Roots& rs) {
+  std::string s;
+  for (const Complex& r : rs) {
+    if (r.imag() < 0.0) continue;
+    if (!s.empty()) s += ", ";
+    s += r.imag() == 0.0 ? fmt_number(r.real()) : fmt_number(r.real()) + "+-j" + fmt_number(r.imag());
+  }
+  return s.empty() ? "-" : s;
+}
+
+std::string worst_violation(const Candidate& c) {
+  const RequirementOutcome* w = nullptr;
+  for (const RequirementOutcome& o : c.verification.outcomes)
+    if (!o.met && (!w || o.violation > w->violation)) w = &o;
+  if (!w) return c.verification.all_stable ? "-" : "unstable";
+  const MetricInfo& info = metric_info(w->requirement.metric);
+  return std::string(info.key) + " " + (w->worst.value ? fmt_number(*w->worst.value) : std::string("n/a")) +
+         (w->requirement.sense == Sense::AtMost ? " > " : " < ") + fmt_number(w->requirement.limit);
+}
+
+}  // namespace
+
+std::string design_report_text(const DesignReport& r) {
+  std::string out = "polewright design" + (r.spec_name.empty() ? std::string() : ": " + r.spec_name) + "\n";
+  out += "objective " + std::string(objective_name(r.objective)) + ", corners within " + fmt_number(r.frequency_range.first) +
+         " .. " + fmt_number(r.frequency_range.second) + " rad/s, " + std::to_string(r.plants.size()) + " plant(s)\n\n";
+  std::vector<std::string> header = {"rank", "structure", "gain", "zeros", "poles"};
+  std::vector<MetricId> shown;
+  for (const Requirement& q : r.requirements.items)
+    if (std::find(shown.begin(), shown.end(), q.metric) == shown.end()) shown.push_back(q.metric);
+  if (std::find(shown.begin(), shown.end(), MetricId::PeakEffort) == shown.end()) shown.push_back(MetricId::PeakEffort);
+  for (MetricId id : shown) header.push_back(metric_info(id).key);
+  header.push_back("verdict");
+  TextTable t(header);
+  for (const Candidate& c : r.candidates) {
+    std::string structure;
+    for (const std::string& n : c.structure.names()) structure += (structure.empty() ? "" : "+") + n;
+    if (structure.empty()) structure = "gain";
+    std::vector<std::string> row = {std::to_string(c.rank), structure, fmt_number(c.compensator.gain),
+                                    roots_text(c.compensator.zeros), roots_text(c.compensator.poles)};
+    for (MetricId id : shown) {
+      const MetricValue& v = c.worst[static_cast<size_t>(id)];
+      row.push_back(v.infinite ? "unbounded" : fmt_number(v.value));
+    }
+    row.push_back(c.meets ? "meets all" : "misses: " + worst_violation(c));
+    t.add(row);
+  }
+  out += r.candidates.empty() ? "  no candidate\n" : t.render();
+  out += "\n  metrics are the worst case over the plants; every candidate was re-verified at full accuracy\n";
+  if (!r.met()) {
+    out += "\nnothing meets every requirement.\n";
+    for (const BindingRequirement& b : r.binding)
+      out += "  binding: " + std::string(metric_info(b.requirement.metric).key) + " (limit " + fmt_number(b.requirement.limit) +
+             "): best reachable with it relaxed " + (b.best_value.value ? fmt_number(*b.best_value.value) : std::string("n/a")) +
+             (b.relaxing_meets_the_rest ? ", and then everything else is met" : "") + "\n";
+  }
+  bool any_limit = false;
+  for (const PlantLimit& l : r.limits) {
+    if (!l.binding && r.met()) continue;
+    if (!any_limit) out += "\nlimits the plant imposes (common-practice bounds)\n";
+    any_limit = true;
+    out += std::string("  ") + (l.binding ? "BINDING " : "") + l.plant + ": " + l.message + "\n";
+  }
+  out += "\n" + r.summary.FullReport() + "\n";
+  out += "\ncaution: " + std::string(kCautions) + "\n";
+  return out;
+}
+
+}  // namespace pw

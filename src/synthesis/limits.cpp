@@ -1,0 +1,83 @@
+#include "polewright/synthesis/limits.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+
+namespace pw {
+
+namespace {
+std::string fmt(double v) {
+  char b[32];
+  std::snprintf(b, sizeof b, "%.4g", v);
+  return b;
+}
+}  // namespace
+
+double required_crossover(const Region& region, const RequirementSet& req) {
+  const double z = std::clamp(region.min_damping > 0.0 ? region.min_damping : 0.5, 0.1, 0.99);
+  double wn = region.min_frequency;
+  if (region.min_decay > 0.0) wn = std::max(wn, region.min_decay / z);
+  double wc = wn * std::sqrt(std::sqrt(1.0 + 4.0 * z * z * z * z) - 2.0 * z * z);
+  if (auto c = req.limit(MetricId::Crossover, Sense::AtLeast)) wc = std::max(wc, *c);
+  if (auto b = req.limit(MetricId::Bandwidth, Sense::AtLeast)) wc = std::max(wc, *b / 1.6);
+  return wc;
+}
+
+std::vector<PlantLimit> plant_limits(const std::vector<Plant>& plants, const RequirementSet& req, const Region& region,
+                                     const StageSettings& stages) {
+  std::vector<PlantLimit> out;
+  const double need = required_crossover(region, req);
+  // The requirement that drives the needed crossover, for the message.
+  std::string driver = "crossover_rad_s";
+  if (req.has(MetricId::SettlingTime)) driver = "settling_time_s";
+  else if (req.has(MetricId::RiseTime)) driver = "rise_time_s";
+  else if (req.has(MetricId::NaturalFrequency)) driver = "natural_frequency_rad_s";
+  else if (req.has(MetricId::Bandwidth)) driver = "bandwidth_rad_s";
+  const std::optional<double> cmax = req.limit(MetricId::Crossover, Sense::AtMost);
+  const std::optional<double> bmax = req.limit(MetricId::Bandwidth, Sense::AtMost);
+
+  for (const Plant& p : plants) {
+    double zmin = INFINITY, pmax = 0.0;
+    for (const Complex& z : p.tf.zeros)
+      if (z.real() > 0.0) zmin = std::min(zmin, std::abs(z));
+    for (const Complex& q : p.tf.poles)
+      if (q.real() > 0.0) pmax = std::max(pmax, std::abs(q));
+    if (std::isfinite(zmin)) {
+      PlantLimit l{"rhp_zero", p.name, zmin, zmin / 2.0, std::nullopt, need > zmin / 2.0, need > zmin / 2.0 ? driver : "", ""};
+      l.message = "right-half-plane zero at " + fmt(zmin) + " rad/s caps the crossover near " + fmt(zmin / 2.0) + " rad/s";
+      if (l.binding) l.message += "; " + driver + " needs about " + fmt(need) + " rad/s";
+      out.push_back(l);
+    }
+    if (pmax > 0.0) {
+      const double lo = 2.0 * pmax;
+      const std::optional<double> cap = cmax ? cmax : (bmax ? std::optional<double>(*bmax) : std::nullopt);
+      PlantLimit l{"unstable_pole", p.name, pmax, std::nullopt, lo, cap && *cap < lo, cap && *cap < lo ? (cmax ? "crossover_rad_s" : "bandwidth_rad_s") : "", ""};
+      l.message = "unstable pole at " + fmt(pmax) + " rad/s needs a crossover above about " + fmt(lo) + " rad/s";
+      if (l.binding) l.message += "; the requirements cap it at " + fmt(*cap) + " rad/s";
+      out.push_back(l);
+    }
+    if (p.delay_s > 0.0) {
+      const double cap = 1.0 / p.delay_s;
+      PlantLimit l{"dead_time", p.name, p.delay_s, cap, std::nullopt, need > cap, need > cap ? driver : "", ""};
+      l.message = "dead time of " + fmt(p.delay_s) + " s caps the crossover near " + fmt(cap) + " rad/s";
+      if (l.binding) l.message += "; " + driver + " needs about " + fmt(need) + " rad/s";
+      out.push_back(l);
+    }
+    if (auto e = req.limit(MetricId::SteadyStateError, Sense::AtMost)) {
+      const int q = static_cast<int>(req.error_signal);
+      const int needed = *e == 0.0 ? q + 1 : q;
+      const int have = zpk_integrators(p.tf) + (stages.integrator != IntegratorChoice::Off ? 1 : 0);
+      if (needed > 0) {
+        PlantLimit l{"integrators", p.name, static_cast<double>(needed), std::nullopt, std::nullopt, have < needed,
+                     have < needed ? "steady_state_error" : "", ""};
+        l.message = "the steady-state error bound needs " + std::to_string(needed) + " integrator(s) in the loop; the plant has " +
+                    std::to_string(zpk_integrators(p.tf)) + (stages.integrator != IntegratorChoice::Off ? " and the stages allow one more" : " and the stages allow none");
+        out.push_back(l);
+      }
+    }
+  }
+  return out;
+}
+
+}  // namespace pw

@@ -1,0 +1,101 @@
+#include "polewright/synthesis/problem.hpp"
+
+#include <cmath>
+
+namespace pw {
+
+double objective_value(Objective o, const std::vector<MetricValue>& w, double hf_gain) {
+  auto get = [&](MetricId id, double missing) {
+    const MetricValue& v = w[static_cast<size_t>(id)];
+    return v.value ? *v.value : missing;
+  };
+  switch (o) {
+    case Objective::Fastest: return get(MetricId::SettlingTime, 1e9);
+    case Objective::MostRobust: return get(MetricId::PeakSensitivity, 1e9);
+    case Objective::LeastEffort:
+    case Objective::Simplest:
+    default: {
+      const double effort = get(MetricId::PeakEffort, 1e300);
+      return std::log10(std::max(effort, 1e-300)) + 0.25 * std::log10(std::max(std::abs(hf_gain), 1e-300));
+    }
+  }
+}
+
+std::vector<MetricValue> worst_metrics(const std::vector<LoopEvaluation>& plants, const RequirementSet& req) {
+  std::vector<MetricValue> out(kMetricCount);
+  for (const MetricInfo& info : metric_table()) {
+    const size_t id = static_cast<size_t>(info.id);
+    bool higher_is_worse = info.bounds == BoundKind::MaxOnly;
+    if (info.bounds == BoundKind::MinOrMax) {
+      const bool has_min = req.limit(info.id, Sense::AtLeast).has_value();
+      higher_is_worse = !has_min;  // a lower bound makes low values the worry
+    }
+    bool first = true;
+    for (const LoopEvaluation& e : plants) {
+      const MetricValue& v = e.values[id];
+      if (first) { out[id] = v; first = false; continue; }
+      MetricValue& cur = out[id];
+      if (!v.known()) { cur = v; continue; }          // a missing value is the worst
+      if (!cur.known()) continue;
+      if (v.infinite || cur.infinite) {
+        const bool v_worse = higher_is_worse ? v.infinite : (cur.infinite && !v.infinite);
+        if (v_worse) cur = v;
+        continue;
+      }
+      if (higher_is_worse ? *v.value > *cur.value : *v.value < *cur.value) cur = v;
+    }
+  }
+  return out;
+}
+
+DesignProblem::DesignProblem(std::vector<Plant> plants, RequirementSet req, Region region, AnalysisOptions screening,
+                             Objective objective, ParamSpace space)
+    : plants_(std::move(plants)), req_(std::move(req)), region_(region), opt_(screening), objective_(objective),
+      space_(std::move(space)) {
+  frequency_ref_ = std::sqrt(space_.freq_lo * space_.freq_hi);
+}
+
+DesignScore DesignProblem::score(const std::vector<double>& x) const { return score_compensator(params_to_zpk(space_, x)); }
+
+DesignScore DesignProblem::score_compensator(const Zpk& c) const {
+  EvaluationNeeds needs;
+  needs.everything = false;
+  needs.step = objective_ == Objective::LeastEffort || objective_ == Objective::Simplest || objective_ == Objective::Fastest;
+  needs.frequency = objective_ == Objective::MostRobust;
+  std::vector<LoopEvaluation> evals;
+  evals.reserve(plants_.size());
+  DesignScore s;
+  double unstable = 0.0;
+  for (const Plant& p : plants_) {
+    evals.push_back(evaluate_loop(c, p, req_, region_, opt_, needs));
+    const LoopEvaluation& e = evals.back();
+    if (!e.well_posed) {
+      unstable += 200.0;
+    } else if (!e.stable) {
+      // Graded: how far the rightmost pole sits in the right half plane, so the search can climb out.
+      const double re = e.poles.poles.empty() ? 0.0 : e.poles.poles.front().pole.real();
+      unstable += 100.0 + 100.0 * std::tanh(std::max(re, 0.0) / frequency_ref_);
+    }
+  }
+  const std::vector<MetricValue> worst = worst_metrics(evals, req_);
+  if (unstable > 0.0) {
+    s.violation = 1e3 + unstable;
+    return s;
+  }
+  for (const Requirement& r : req_.items) {
+    double v = 0.0;
+    for (const LoopEvaluation& e : evals) {
+      const MetricValue& mv = e.values[static_cast<size_t>(r.metric)];
+      // A step skipped by the screening gate counts as a unit violation per time-domain bound.
+      v = std::max(v, (!mv.known() && metric_info(r.metric).time_domain && !e.step) ? 1.0 : requirement_violation(r, mv));
+    }
+    s.violation += v;
+  }
+  s.feasible = s.violation == 0.0;
+  s.objective = objective_value(objective_, worst, c.gain * 1.0);
+  // |C(inf)| for a biproper compensator is its zpk gain.
+  if (!std::isfinite(s.objective)) s.objective = 1e300;
+  return s;
+}
+
+}  // namespace pw
