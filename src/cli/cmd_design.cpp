@@ -11,7 +11,7 @@ void register_design(CLI::App& app) {
   auto* cmd = app.add_subcommand("design", "Search ranked, verified compensators for a spec");
   struct Args {
     std::string spec, out, objective;
-    bool json = false;
+    bool json = false, timing = false;
     int keep = -1, threads = -1;
     long long seed = -1;
   };
@@ -19,6 +19,8 @@ void register_design(CLI::App& app) {
   cmd->add_option("SPEC", a->spec, "spec file (JSON)")->required();
   cmd->add_option("-o,--output", a->out, "write the result as JSON to this file (atomically)");
   cmd->add_flag("--json", a->json, "print the JSON result to stdout instead of the table");
+  cmd->add_flag("--timing", a->timing, "add the timings to the JSON (they vary from run to run; without them the "
+                                       "JSON is byte-identical for the same spec and seed on any thread count)");
   cmd->add_option("--keep", a->keep, "number of candidates (overrides search.keep)")->check(CLI::Range(1, 100));
   cmd->add_option("--seed", a->seed, "seed of the low-discrepancy starts (overrides search.seed)")->check(CLI::NonNegativeNumber);
   cmd->add_option("--threads", a->threads, "worker threads, 0 = all cores (overrides search.threads)")->check(CLI::Range(0, 1024));
@@ -37,7 +39,7 @@ void register_design(CLI::App& app) {
         std::string err;
         if (!o.IsValid(&err)) throw SpecError("$.search", err);
         const DesignReport rep = run_design(spec, o);
-        const nlohmann::json j = design_report_json(rep);
+        const nlohmann::json j = design_report_json(rep, a->timing);
         if (!a->out.empty()) emit(a->out, j.dump(1) + "\n");
         if (a->json) emit("-", j.dump(1) + "\n");
         else std::cout << design_report_text(rep);

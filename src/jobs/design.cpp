@@ -99,6 +99,7 @@ StructureSetup prepare(const Structure& s, size_t index, const Spec& spec, const
   StructureSetup st;
   st.structure = s;
   st.problem = std::make_shared<DesignProblem>(spec.plants, spec.requirements, region, screening, o.objective, ps);
+  if (o.metric_objective) st.problem->set_metric_objective(*o.metric_objective);
   for (Seed& sd : seeds) st.starts.push_back(sd);
   // Low-discrepancy screening points, shifted by a rotation drawn from the seed and structure.
   std::mt19937_64 rng(o.seed * 0x9E3779B97F4A7C15ULL + index);
@@ -133,6 +134,13 @@ Candidate verify(const PoolEntry& e, const std::vector<StructureSetup>& setups, 
   c.violation = c.verification.total_violation;
   c.objective = objective_value(objective, c.worst, c.compensator.gain);
   return c;
+}
+
+double metric_score(const Candidate& c, const Requirement& r) {
+  const MetricValue& mv = c.worst[static_cast<size_t>(r.metric)];
+  const double v = mv.value ? *mv.value : (mv.infinite ? INFINITY : NAN);
+  const double s = r.sense == Sense::AtMost ? v : -v;
+  return std::isnan(s) ? INFINITY : s;
 }
 
 }  // namespace
@@ -217,6 +225,8 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
   }
   std::vector<Candidate> cands(shortlist.size());
   parallel_for(shortlist.size(), threads, [&](size_t i) { cands[i] = verify(shortlist[i], setups, spec, rep.region, o.objective); });
+  if (o.metric_objective)
+    for (Candidate& c : cands) c.objective = metric_score(c, *o.metric_objective);
   std::stable_sort(cands.begin(), cands.end(), [&](const Candidate& a, const Candidate& b) {
     if (a.meets != b.meets) return a.meets;
     if (a.meets) {
@@ -245,6 +255,7 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
       ro.explain_failure = false;
       ro.global_starts = 1;
       ro.time_limit_s = std::max(1.0, o.time_limit_s / 4.0);
+      ro.metric_objective = out.requirement;
       const DesignReport rr = run_design(relaxed, ro);
       BindingRequirement b;
       b.requirement = out.requirement;

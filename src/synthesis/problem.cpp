@@ -60,7 +60,8 @@ DesignScore DesignProblem::score(const std::vector<double>& x) const { return sc
 DesignScore DesignProblem::score_compensator(const Zpk& c) const {
   EvaluationNeeds needs;
   needs.everything = false;
-  needs.step = objective_ == Objective::LeastEffort || objective_ == Objective::Simplest || objective_ == Objective::Fastest;
+  needs.step = objective_ == Objective::LeastEffort || objective_ == Objective::Simplest || objective_ == Objective::Fastest ||
+               (metric_objective_ && metric_info(metric_objective_->metric).time_domain);
   needs.frequency = objective_ == Objective::MostRobust;
   std::vector<LoopEvaluation> evals;
   evals.reserve(plants_.size());
@@ -92,8 +93,13 @@ DesignScore DesignProblem::score_compensator(const Zpk& c) const {
     s.violation += v;
   }
   s.feasible = s.violation == 0.0;
-  s.objective = objective_value(objective_, worst, c.gain * 1.0);
   // |C(inf)| for a biproper compensator is its zpk gain.
+  s.objective = objective_value(objective_, worst, c.gain);
+  if (metric_objective_) {
+    const MetricValue& mv = worst[static_cast<size_t>(metric_objective_->metric)];
+    const double v = mv.value ? *mv.value : (mv.infinite ? INFINITY : NAN);
+    s.objective = metric_objective_->sense == Sense::AtMost ? v : -v;
+  }
   if (!std::isfinite(s.objective)) s.objective = 1e300;
   return s;
 }

@@ -94,13 +94,22 @@ std::vector<Seed> published_seeds(const ParamSpace& ps, const Plant& nominal, co
         }
       }
     }
-    // The placed stages (integrator, notches) with leads and lags at their smallest ratio, far from
-    // s* (nearly angle-neutral), and unit gain magnitude with the feedback sign.
-    std::vector<double> xs = x;
-    for (size_t li : lead_idx) { xs[li] = ps.lower[li]; xs[li + 1] = 0.0; }
-    for (size_t gi : lag_idx) { xs[gi] = ps.lower[gi]; xs[gi + 1] = 1.0; }
-    xs[0] = 0.0;
-    const Complex val = zpk_series(params_to_zpk(ps, xs), nominal.tf).evaluate(s);
+    // The placed stages (integrator, notches) alone, unit gain with the feedback sign: the same
+    // structure without leads and lags, its parameters copied over.
+    Structure fixed = ps.structure;
+    fixed.lead = fixed.lag = 0;
+    const ParamSpace pf = make_param_space(fixed, {ps.freq_lo, ps.freq_hi}, ps.lower[0], ps.upper[0], ps.gain_sign, ps.limits);
+    std::vector<double> xf = {0.0};
+    {
+      size_t j = 1;
+      for (StageKind k : ps.stages) {
+        const size_t w = k == StageKind::Integrator ? 1 : (k == StageKind::Notch ? 3 : 2);
+        if (k == StageKind::Integrator || k == StageKind::Notch)
+          for (size_t q = 0; q < w; ++q) xf.push_back(x[j + q]);
+        j += w;
+      }
+    }
+    const Complex val = zpk_series(params_to_zpk(pf, xf), nominal.tf).evaluate(s);
     // Angle condition: arg(C G (s*)) = -180 deg; the leads must add the deficit.
     const double need = wrap_pi(-M_PI - std::arg(val));
     if (!lead_idx.empty()) {

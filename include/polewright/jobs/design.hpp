@@ -29,6 +29,7 @@ struct DesignOptions {
                                           // between two candidates of one structure
   int extra_levels = 0;                   // structure levels searched after the first one that fills `keep`
   bool explain_failure = true;            // binding requirements when nothing meets
+  std::optional<Requirement> metric_objective;  // internal: optimise this metric instead (relaxed searches)
   bool IsValid(std::string* error) const;
   static DesignOptions FromSpec(const Spec& spec);
 };

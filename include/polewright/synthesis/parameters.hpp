@@ -25,7 +25,7 @@ struct StageLimits {
   double depth_min = 0.003;  // notch zeta_zero / zeta_pole
   double depth_max = 0.7;
   double width_min = 0.08;   // notch zeta_pole
-  double width_max = 1.5;
+  double width_max = 1.0;    // critically damped at most: the poles stay at the centre
 };
 
 struct ParamSpace {

@@ -2,6 +2,7 @@
 // know what a loop is). One point is scored over every plant with the cheap screening evaluator.
 #pragma once
 
+#include <optional>
 #include <vector>
 
 #include "polewright/requirements/evaluate.hpp"
@@ -32,6 +33,10 @@ class DesignProblem {
   DesignProblem(std::vector<Plant> plants, RequirementSet req, Region region, AnalysisOptions screening,
                 Objective objective, ParamSpace space);
 
+  // Replaces the objective by one metric (lower is better for an upper bound, higher for a lower
+  // bound): used to find the best value of a requirement that is relaxed.
+  void set_metric_objective(const Requirement& r) { metric_objective_ = r; }
+
   DesignScore score(const std::vector<double>& x) const;
   DesignScore score_compensator(const Zpk& c) const;
   const ParamSpace& space() const { return space_; }
@@ -45,6 +50,7 @@ class DesignProblem {
   Objective objective_;
   ParamSpace space_;
   double frequency_ref_;
+  std::optional<Requirement> metric_objective_;
 };
 
 }  // namespace pw

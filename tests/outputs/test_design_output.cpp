@@ -1,0 +1,34 @@
+#include <catch2/catch.hpp>
+
+#include <regex>
+
+#include "polewright/outputs/design_output.hpp"
+#include "polewright/requirements/spec_parse.hpp"
+
+using namespace pw;
+
+TEST_CASE("design JSON and text carry the documented fields", "[outputs][design_output]") {
+  const Spec spec = parse_spec(read_json_file(std::string(POLEWRIGHT_SOURCE_DIR) + "/specs/greenhouse-heater.json"));
+  DesignOptions o = DesignOptions::FromSpec(spec);
+  o.threads = 1;
+  const DesignReport r = run_design(spec, o);
+  const nlohmann::json j = design_report_json(r);
+  for (const char* k : {"status", "region", "plants", "requirements", "analysis", "candidates", "search", "timing", "cautions", "limits", "binding"})
+    CHECK(j.contains(k));
+  CHECK_FALSE(design_report_json(r, false).contains("timing"));
+  REQUIRE_FALSE(j.at("candidates").empty());
+  const nlohmann::json& c = j.at("candidates").at(0);
+  for (const char* k : {"rank", "structure", "meets", "compensator", "metrics", "worst_variant", "closed_loop_poles", "gain_interval", "violations"})
+    CHECK(c.contains(k));
+  // The requirements and plants read back through the spec parser.
+  nlohmann::json back = {{"plant", j.at("plants").at(0)}, {"requirements", j.at("requirements")}};
+  back["plant"].erase("name");
+  const Spec again = parse_spec(back);
+  CHECK(again.requirements.items.size() == spec.requirements.items.size());
+  CHECK(again.plants[0].delay_s == spec.plants[0].delay_s);
+  const std::string t = design_report_text(r);
+  CHECK(t.find("rank") != std::string::npos);
+  CHECK(t.find("caution:") != std::string::npos);
+  CHECK(t.find("evaluations in") != std::string::npos);
+  CHECK_FALSE(std::regex_search(t, std::regex("\\b(nan|inf)\\b")));
+}
