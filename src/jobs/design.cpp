@@ -82,8 +82,11 @@ double unit_distance(const ParamSpace& ps, const std::vector<double>& a, const s
   return d;
 }
 
+// The structure's parameter space, problem and seeds; the screening points are drawn here and
+// scored by the caller (in parallel across every structure of a level).
 StructureSetup prepare(const Structure& s, size_t index, const Spec& spec, const Region& region,
-                       std::pair<double, double> range, const AnalysisOptions& screening, const DesignOptions& o) {
+                       std::pair<double, double> range, const AnalysisOptions& screening, const DesignOptions& o,
+                       std::vector<PoolEntry>& global) {
   const Plant& nominal = spec.plants.front();
   const double sign = feedback_sign(nominal);
   // Seeds with wide gain bounds first, then bounds three decades either side of their gains.
@@ -107,17 +110,20 @@ StructureSetup prepare(const Structure& s, size_t index, const Spec& spec, const
   std::vector<double> shift(static_cast<size_t>(ps.dim()));
   for (double& v : shift) v = U(rng);
   const int n = o.global_points_base + o.global_points_per_dim * ps.dim();
-  std::vector<PoolEntry> global(static_cast<size_t>(n));
+  global.assign(static_cast<size_t>(n), PoolEntry{});
   for (int i = 0; i < n; ++i) {
     global[static_cast<size_t>(i)].x = from_unit(ps, halton_point(i, ps.dim(), shift));
-    global[static_cast<size_t>(i)].score = st.problem->score(global[static_cast<size_t>(i)].x);
     global[static_cast<size_t>(i)].origin = "low-discrepancy start " + std::to_string(i);
   }
   st.global_evaluations = n;
-  std::stable_sort(global.begin(), global.end(), [](const PoolEntry& a, const PoolEntry& b) { return better(a.score, b.score); });
-  for (int i = 0; i < std::min(o.global_starts, n); ++i)
-    st.starts.push_back({global[static_cast<size_t>(i)].x, global[static_cast<size_t>(i)].origin});
   return st;
+}
+
+// Adds the best scored screening points to the starts.
+void add_global_starts(StructureSetup& st, std::vector<PoolEntry>& global, const DesignOptions& o) {
+  std::stable_sort(global.begin(), global.end(), [](const PoolEntry& a, const PoolEntry& b) { return better(a.score, b.score); });
+  for (size_t i = 0; i < global.size() && static_cast<int>(i) < o.global_starts; ++i)
+    st.starts.push_back({global[i].x, global[i].origin});
 }
 
 Candidate verify(const PoolEntry& e, const std::vector<StructureSetup>& setups, const Spec& spec, const Region& region,
@@ -174,9 +180,17 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
     std::vector<size_t> members;
     while (next < structures.size() && structures[next].stage_count() == level) members.push_back(next++);
     std::vector<StructureSetup> level_setups(members.size());
-    parallel_for(members.size(), threads, [&](size_t i) {
-      level_setups[i] = prepare(structures[members[i]], members[i], spec, rep.region, rep.frequency_range, screening, o);
+    std::vector<std::vector<PoolEntry>> globals(members.size());
+    for (size_t i = 0; i < members.size(); ++i)
+      level_setups[i] = prepare(structures[members[i]], members[i], spec, rep.region, rep.frequency_range, screening, o, globals[i]);
+    std::vector<std::pair<size_t, size_t>> points;
+    for (size_t i = 0; i < globals.size(); ++i)
+      for (size_t j = 0; j < globals[i].size(); ++j) points.push_back({i, j});
+    parallel_for(points.size(), threads, [&](size_t k) {
+      PoolEntry& e = globals[points[k].first][points[k].second];
+      e.score = level_setups[points[k].first].problem->score(e.x);
     });
+    for (size_t i = 0; i < members.size(); ++i) add_global_starts(level_setups[i], globals[i], o);
     struct Task { size_t setup; size_t start; };
     std::vector<Task> tasks;
     const size_t base = setups.size();
@@ -202,8 +216,10 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
       for (size_t i = pool.size() - tasks.size(); i < pool.size(); ++i)
         if (pool[i].score.feasible) order.push_back(i);
       std::stable_sort(order.begin(), order.end(), [&](size_t a, size_t b) { return better(pool[a].score, pool[b].score); });
-      for (size_t k = 0; k < order.size() && k < 3 && !rep.summary.first_verified_s; ++k)
-        if (verify(pool[order[k]], setups, spec, rep.region, o.objective).meets) rep.summary.first_verified_s = elapsed();
+      if (order.size() > 3) order.resize(3);
+      std::vector<char> ok(order.size(), 0);
+      parallel_for(order.size(), threads, [&](size_t k) { ok[k] = verify(pool[order[k]], setups, spec, rep.region, o.objective).meets; });
+      if (std::find(ok.begin(), ok.end(), 1) != ok.end()) rep.summary.first_verified_s = elapsed();
     }
     const long long feasible = std::count_if(pool.begin(), pool.end(), [](const PoolEntry& e) { return e.score.feasible; });
     if (levels_after_full < 0 && feasible >= o.keep) levels_after_full = 0;

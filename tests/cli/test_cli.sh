@@ -25,6 +25,7 @@ expect 1 "-o writes a file" -- "$bin" check "$src/specs/wafer-stage.json" -o "$t
 cat >"$tmp/met.json" <<'J'
 { "plant": { "gain": 4, "poles": [0, -2] },
   "requirements": { "damping_ratio": { "min": 0.48 }, "natural_frequency_rad_s": { "min": 3.9 } },
+  "stages": { "lead": 1, "frequency_range_rad_s": [0.1, 100] },
   "current": { "gain": 4.68, "zeros": [-2.9], "poles": [-5.4] } }
 J
 expect 0 "met loop exits 0" -- "$bin" check "$tmp/met.json"
@@ -56,6 +57,22 @@ expect 0 "--compensator file in polynomial form" -- "$bin" check "$tmp/met.json"
 printf '{"gain": 2, "zeros": [-1, -2], "poles": [-10]}' >"$tmp/improper.json"
 expect 2 "improper compensator file" -- "$bin" check "$tmp/met.json" --compensator "$tmp/improper.json"
 one_line "improper compensator"
+
+# design: met -> 0 with a ranked table, not met -> 1, bad option -> 2, same JSON on 1 and 2 threads
+expect 0 "design meets the textbook lead target" -- "$bin" design "$tmp/met.json" -o "$tmp/d1.json" --threads 1
+grep -q "meets all" "$tmp/out" && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: no ranked table"; }
+expect 0 "design on two threads" -- "$bin" design "$tmp/met.json" -o "$tmp/d2.json" --threads 2
+cmp -s "$tmp/d1.json" "$tmp/d2.json" && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: design JSON differs between 1 and 2 threads"; }
+cat >"$tmp/rhp.json" <<'J'
+{ "plant": { "gain": -1, "zeros": [2], "poles": [-1, -3] },
+  "requirements": { "settling_time_s": { "max": 0.2 } },
+  "stages": { "lead": 1, "integrator": true, "frequency_range_rad_s": [0.01, 1000] } }
+J
+expect 1 "design that cannot meet exits 1" -- "$bin" design "$tmp/rhp.json"
+grep -q "BINDING.*right-half-plane zero" "$tmp/out" && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: the zero is not named"; }
+expect 2 "design with a bad objective" -- "$bin" design "$tmp/met.json" --objective quickest
+expect 0 "design --json" -- "$bin" design "$tmp/met.json" --json --keep 2 --objective most_robust
+/usr/bin/python3 -c "import json,sys; d=json.load(open('$tmp/out')); sys.exit(not (d['status']=='met' and len(d['candidates'])<=2 and d['objective']=='most_robust'))" 2>/dev/null && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: --json/--keep/--objective not honoured"; }
 
 echo "$pass passed, $fail failed"
 [ "$fail" = 0 ]
