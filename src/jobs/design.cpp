@@ -252,6 +252,10 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
     }
     return a.violation < b.violation;
   });
+  // An unstable loop is no candidate while stable ones are there to show.
+  const long stable_count = std::count_if(cands.begin(), cands.end(), [](const Candidate& c) { return c.verification.all_stable; });
+  if (stable_count > 0)
+    cands.erase(std::remove_if(cands.begin(), cands.end(), [](const Candidate& c) { return !c.verification.all_stable; }), cands.end());
   if (static_cast<int>(cands.size()) > o.keep) cands.resize(static_cast<size_t>(o.keep));
   for (size_t i = 0; i < cands.size(); ++i) cands[i].rank = static_cast<int>(i) + 1;
   rep.candidates = std::move(cands);
@@ -275,12 +279,25 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
       const DesignReport rr = run_design(relaxed, ro);
       BindingRequirement b;
       b.requirement = out.requirement;
-      if (!rr.candidates.empty()) {
-        const Evaluation ev = evaluate_all(rr.candidates.front().compensator, spec.plants, spec.requirements, rep.region, spec.analysis);
-        for (const RequirementOutcome& x : ev.outcomes)
-          if (x.requirement.metric == out.requirement.metric && x.requirement.sense == out.requirement.sense) b.best_value = x.worst;
-        b.relaxing_meets_the_rest = rr.met();
-      }
+      // The best value of the relaxed metric among designs that meet every other requirement: the
+      // relaxed search's top candidate and any candidate already in hand.
+      auto consider = [&](const Evaluation& ev) {
+        bool rest = ev.all_stable;
+        const RequirementOutcome* mine = nullptr;
+        for (const RequirementOutcome& x : ev.outcomes) {
+          if (x.requirement.metric == out.requirement.metric && x.requirement.sense == out.requirement.sense) mine = &x;
+          else rest = rest && x.met;
+        }
+        if (!rest || !mine || !mine->worst.value) return;
+        const double v = *mine->worst.value;
+        const bool improves = !b.best_value.value ||
+                              (out.requirement.sense == Sense::AtMost ? v < *b.best_value.value : v > *b.best_value.value);
+        if (improves) b.best_value = mine->worst;
+        b.relaxing_meets_the_rest = true;
+      };
+      if (!rr.candidates.empty())
+        consider(evaluate_all(rr.candidates.front().compensator, spec.plants, spec.requirements, rep.region, spec.analysis));
+      for (const Candidate& c : rep.candidates) consider(c.verification);
       rep.summary.evaluations += rr.summary.evaluations;
       rep.binding.push_back(b);
     }

@@ -48,13 +48,16 @@ nlohmann::json candidate_json(const Candidate& c, const RequirementSet& req) {
                      {"step_share", json_number(p.share)}, {"matters", p.matters}});
   j["closed_loop_poles"] = poles;
   j["gain_interval"] = nominal.gain.lo ? nlohmann::json{json_number(nominal.gain.lo), json_number(nominal.gain.hi)} : nlohmann::json(nullptr);
+  j["gain_interval_at_scan_limit"] = {nominal.gain.lo_at_limit, nominal.gain.hi_at_limit};
+  j["stable"] = c.verification.all_stable;
   nlohmann::json viol = nlohmann::json::object();
   for (const RequirementOutcome& o : c.verification.outcomes) {
     const std::string key = std::string(metric_info(o.requirement.metric).key) + (o.requirement.sense == Sense::AtMost ? ".max" : ".min");
     viol[key] = json_number(o.violation);
   }
   j["violations"] = viol;
-  j["objective"] = json_number(c.objective);
+  // The objective is only meaningful for a candidate that meets everything.
+  j["objective"] = c.meets ? json_number(c.objective) : nlohmann::json(nullptr);
   j["origin"] = c.origin;
   (void)req;
   return j;
@@ -90,7 +93,9 @@ nlohmann::json design_report_json(const DesignReport& r, bool include_timing) {
     limits.push_back({{"kind", l.kind}, {"plant", l.plant}, {"at", json_number(l.at)},
                       {"max_crossover_rad_s", json_number(l.max_crossover_rad_s)},
                       {"min_crossover_rad_s", json_number(l.min_crossover_rad_s)},
-                      {"binding", l.binding}, {"requirement", l.requirement}, {"message", l.message}});
+                      {"binding", l.binding},
+                      {"requirement", l.requirement.empty() ? nlohmann::json(nullptr) : nlohmann::json(l.requirement)},
+                      {"message", l.message}});
   j["limits"] = limits;
   j["search"] = {{"evaluations", r.summary.evaluations}, {"seed", r.summary.seed},
                  {"structures_searched", r.summary.structures_searched}, {"local_runs", r.summary.local_runs},

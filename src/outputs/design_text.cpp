@@ -19,13 +19,20 @@ std::string roots_text(const Roots& rs) {
 }
 
 std::string worst_violation(const Candidate& c) {
+  if (!c.verification.all_stable) return "unstable";
   const RequirementOutcome* w = nullptr;
+  int missed = 0;
   for (const RequirementOutcome& o : c.verification.outcomes)
-    if (!o.met && (!w || o.violation > w->violation)) w = &o;
-  if (!w) return c.verification.all_stable ? "-" : "unstable";
+    if (!o.met) {
+      ++missed;
+      if (!w || o.violation > w->violation) w = &o;
+    }
+  if (!w) return "-";
   const MetricInfo& info = metric_info(w->requirement.metric);
-  return std::string(info.key) + " " + (w->worst.value ? fmt_number(*w->worst.value) : std::string("n/a")) +
-         (w->requirement.sense == Sense::AtMost ? " > " : " < ") + fmt_number(w->requirement.limit);
+  std::string s = std::string(info.key) + " " + (w->worst.value ? fmt_number(*w->worst.value) : std::string("n/a")) +
+                  (w->requirement.sense == Sense::AtMost ? " > " : " < ") + fmt_number(w->requirement.limit);
+  if (missed > 1) s += " (+" + std::to_string(missed - 1) + " more)";
+  return s;
 }
 
 }  // namespace

@@ -68,8 +68,8 @@ Zpk params_to_zpk(const ParamSpace& ps, const std::vector<double>& x_in) {
         const double ratio = std::pow(10.0, x[i]);
         const double t = x[i + 1];
         i += 2;
-        const double low = ps.freq_lo * std::pow(ps.freq_hi / (ps.freq_lo * ratio), t);
-        const double high = low * ratio;
+        const double low = std::max(ps.freq_lo, ps.freq_lo * std::pow(ps.freq_hi / (ps.freq_lo * ratio), t));
+        const double high = std::min(ps.freq_hi, low * ratio);  // clamps rounding at the range's edge
         const bool lead = k == StageKind::Lead;
         const double z = lead ? low : high, p = lead ? high : low;
         c.zeros.push_back(Complex(-z, 0.0));

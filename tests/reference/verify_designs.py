@@ -84,12 +84,14 @@ def zpk_only(obj):
 
 
 def poly_close(a, b, rtol=1e-6):
+    """Coefficient-wise agreement: each within rtol of itself (plus a floor of 1e-9 of the
+    largest coefficient, for coefficients that cancel)."""
     a = np.trim_zeros(np.asarray(a, float), "f")
     b = np.trim_zeros(np.asarray(b, float), "f")
     if a.size != b.size:
         return False
-    scale = max(np.max(np.abs(a)), np.max(np.abs(b)), 1e-300)
-    return bool(np.max(np.abs(a - b)) <= rtol * scale)
+    floor = 1e-9 * max(np.max(np.abs(a)), np.max(np.abs(b)), 1e-300)
+    return bool(np.all(np.abs(a - b) <= rtol * np.maximum(np.abs(a), np.abs(b)) + floor))
 
 
 class Loop:
@@ -417,14 +419,17 @@ def plant_metrics(comp, plant, keys, opts):
     m = {"_stable": pa["stable"], "_poles": pa["poles"]}
     if "steady_state_error" in keys:
         m["steady_state_error"] = mf.steady_state_error(loop.numL, loop.denL, opts["ss_input"])
+    if any(k in keys for k in ("phase_margin_deg", "gain_margin_db", "crossover_rad_s",
+                               "bandwidth_rad_s", "peak_sensitivity")):
+        # computed for unstable loops too (they fail anyway); T(0) from L(0), exact
+        typ, kconst = mf.loop_type_and_constant(loop.numL, loop.denL)
+        T0 = 1.0 if typ > 0 else (0.0 if typ < 0 or kconst == -1.0 else kconst / (1.0 + kconst))
+        m.update(freq_metrics(loop, T0))
     if not pa["stable"]:
         return m
     if any(k in keys for k in TIME_KEYS):
         tm = time_metrics(loop, pa, opts["band"])
         m.update(tm)
-    if any(k in keys for k in ("phase_margin_deg", "gain_margin_db", "crossover_rad_s",
-                               "bandwidth_rad_s", "peak_sensitivity")):
-        m.update(freq_metrics(loop, pa["yf"]))
     mat = [p for i, p in enumerate(pa["poles"]) if pa["matters"][i]]
     m["damping_ratio"] = min(damping(p) for p in mat) if mat else None
     d = dominant(pa)
