@@ -5,6 +5,10 @@
 #include <cmath>
 #include <cstdio>
 #include <random>
+#include <atomic>
+#include <limits>
+#include <map>
+#include <mutex>
 
 #include "polewright/synthesis/parallel.hpp"
 #include "polewright/synthesis/problem.hpp"
@@ -170,63 +174,138 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
 
   AnalysisOptions screening = AnalysisOptions::Screening(spec.analysis);
   const std::vector<Structure> structures = enumerate_structures(spec.stages);
+  // Every structure is one job: prepare, score its screening points, polish its starts. Jobs run in
+  // level order (level = number of stages) from a shared queue. The stopping rule is applied to whole
+  // levels in order and looks only at their results, so the set of results used never depends on the
+  // thread count or on timing; a job of a later level that ran anyway is discarded.
+  struct Job {
+    StructureSetup setup;
+    std::vector<LocalResult> results;
+    bool done = false;
+    double finished_s = 0.0;
+    std::atomic<bool> cancel{false};  // set when the job's level falls beyond the stop level
+  };
+  const size_t n_jobs = structures.size();
+  std::vector<Job> jobs(n_jobs);
+  const int inner = static_cast<int>(n_jobs) < threads ? threads : 1;
+  std::mutex mutex;
+  int stop_level = std::numeric_limits<int>::max();
+  size_t resolved = 0;  // jobs [0, resolved) belong to levels already judged
+  long long feasible_so_far = 0, evaluations_so_far = 0;
+  int levels_after_full = -1;
+  std::atomic<size_t> next{0};
+  std::atomic<bool> out_of_time{false};
+  auto level_of = [&](size_t i) { return structures[i].stage_count(); };
+  // Applies the stopping rule to every level that is complete, in order (called under the mutex).
+  auto judge = [&] {
+    while (resolved < n_jobs && stop_level == std::numeric_limits<int>::max()) {
+      size_t end_of_level = resolved;
+      while (end_of_level < n_jobs && level_of(end_of_level) == level_of(resolved)) ++end_of_level;
+      for (size_t i = resolved; i < end_of_level; ++i)
+        if (!jobs[i].done) return;
+      for (size_t i = resolved; i < end_of_level; ++i) {
+        evaluations_so_far += jobs[i].setup.global_evaluations;
+        for (const LocalResult& r : jobs[i].results) {
+          evaluations_so_far += r.evaluations;
+          feasible_so_far += r.score.feasible;
+        }
+      }
+      const int level = level_of(resolved);
+      resolved = end_of_level;
+      if (levels_after_full < 0 && feasible_so_far >= o.keep) levels_after_full = 0;
+      else if (levels_after_full >= 0) ++levels_after_full;
+      if ((levels_after_full >= 0 && levels_after_full >= o.extra_levels) || evaluations_so_far >= o.max_evaluations) {
+        stop_level = level;
+        for (size_t i = resolved; i < n_jobs; ++i) jobs[i].cancel = true;  // speculative work past the stop
+      }
+    }
+  };
+  parallel_for(static_cast<size_t>(std::min<int>(threads, static_cast<int>(std::max<size_t>(n_jobs, 1)))), threads, [&](size_t) {
+    for (size_t i = next++; i < n_jobs; i = next++) {
+      {
+        std::lock_guard<std::mutex> lock(mutex);
+        if (level_of(i) > stop_level) continue;
+      }
+      if (elapsed() >= o.time_limit_s) {
+        out_of_time = true;
+        continue;
+      }
+      Job& job = jobs[i];
+      std::vector<PoolEntry> global;
+      job.setup = prepare(structures[i], i, spec, rep.region, rep.frequency_range, screening, o, global);
+      parallel_for(global.size(), inner, [&](size_t k) {
+        if (!job.cancel) global[k].score = job.setup.problem->score(global[k].x);
+      });
+      add_global_starts(job.setup, global, o);
+      job.results.assign(job.setup.starts.size(), LocalResult{});
+      parallel_for(job.setup.starts.size(), inner, [&](size_t k) {
+        job.results[k] = local_search(*job.setup.problem, job.setup.starts[k].x, o.local, &job.cancel);
+      });
+      std::lock_guard<std::mutex> lock(mutex);
+      job.done = true;
+      job.finished_s = elapsed();
+      judge();
+    }
+  });
+  // The levels used: complete ones up to the stop level.
   std::vector<StructureSetup> setups;
   std::vector<PoolEntry> pool;
-  size_t next = 0;
-  int levels_after_full = -1;
-  while (next < structures.size()) {
-    // One level: every structure with the same number of stages.
-    const int level = structures[next].stage_count();
-    std::vector<size_t> members;
-    while (next < structures.size() && structures[next].stage_count() == level) members.push_back(next++);
-    std::vector<StructureSetup> level_setups(members.size());
-    std::vector<std::vector<PoolEntry>> globals(members.size());
-    for (size_t i = 0; i < members.size(); ++i)
-      level_setups[i] = prepare(structures[members[i]], members[i], spec, rep.region, rep.frequency_range, screening, o, globals[i]);
-    std::vector<std::pair<size_t, size_t>> points;
-    for (size_t i = 0; i < globals.size(); ++i)
-      for (size_t j = 0; j < globals[i].size(); ++j) points.push_back({i, j});
-    parallel_for(points.size(), threads, [&](size_t k) {
-      PoolEntry& e = globals[points[k].first][points[k].second];
-      e.score = level_setups[points[k].first].problem->score(e.x);
+  std::vector<std::pair<size_t, size_t>> level_ranges;  // pool index ranges per level
+  std::vector<double> level_finished;
+  for (size_t i = 0; i < n_jobs;) {
+    size_t end_of_level = i;
+    while (end_of_level < n_jobs && level_of(end_of_level) == level_of(i)) ++end_of_level;
+    bool complete = true;
+    for (size_t j = i; j < end_of_level; ++j) complete = complete && jobs[j].done;
+    if (!complete) {
+      rep.summary.time_stop = out_of_time;
+      break;
+    }
+    const size_t first = pool.size();
+    double finished = 0.0;
+    for (size_t j = i; j < end_of_level; ++j) {
+      Job& job = jobs[j];
+      rep.summary.evaluations += job.setup.global_evaluations;
+      for (size_t k = 0; k < job.results.size(); ++k) {
+        rep.summary.evaluations += job.results[k].evaluations;
+        pool.push_back({setups.size(), job.results[k].x, job.results[k].score, job.setup.starts[k].origin});
+      }
+      rep.summary.local_runs += static_cast<int>(job.results.size());
+      rep.summary.structures_searched += 1;
+      finished = std::max(finished, job.finished_s);
+      setups.push_back(std::move(job.setup));
+    }
+    level_ranges.push_back({first, pool.size()});
+    level_finished.push_back(finished);
+    const int level = level_of(i);
+    i = end_of_level;
+    if (level == stop_level) {
+      rep.summary.budget_stop = rep.summary.evaluations >= o.max_evaluations && feasible_so_far < o.keep;
+      break;
+    }
+  }
+  // Full-accuracy verifications are cached by pool index (the shortlist reuses them).
+  std::map<std::pair<size_t, std::vector<double>>, Candidate> verified;
+  auto verify_cached = [&](const std::vector<size_t>& which) {
+    std::vector<Candidate> out(which.size());
+    parallel_for(which.size(), threads, [&](size_t k) {
+      const PoolEntry& e = pool[which[k]];
+      out[k] = verify(e, setups, spec, rep.region, o.objective);
     });
-    for (size_t i = 0; i < members.size(); ++i) add_global_starts(level_setups[i], globals[i], o);
-    struct Task { size_t setup; size_t start; };
-    std::vector<Task> tasks;
-    const size_t base = setups.size();
-    for (size_t i = 0; i < level_setups.size(); ++i) {
-      rep.summary.evaluations += level_setups[i].global_evaluations;
-      for (size_t j = 0; j < level_setups[i].starts.size(); ++j) tasks.push_back({base + i, j});
-      setups.push_back(std::move(level_setups[i]));
-    }
-    std::vector<LocalResult> results(tasks.size());
-    parallel_for(tasks.size(), threads, [&](size_t i) {
-      const StructureSetup& st = setups[tasks[i].setup];
-      results[i] = local_search(*st.problem, st.starts[tasks[i].start].x, o.local);
-    });
-    for (size_t i = 0; i < tasks.size(); ++i) {
-      rep.summary.evaluations += results[i].evaluations;
-      pool.push_back({tasks[i].setup, results[i].x, results[i].score, setups[tasks[i].setup].starts[tasks[i].start].origin});
-    }
-    rep.summary.structures_searched += static_cast<int>(members.size());
-    rep.summary.local_runs += static_cast<int>(tasks.size());
-    // Time to the first verified design: the level's best screening-feasible points, in order.
-    if (!rep.summary.first_verified_s) {
-      std::vector<size_t> order;
-      for (size_t i = pool.size() - tasks.size(); i < pool.size(); ++i)
-        if (pool[i].score.feasible) order.push_back(i);
-      std::stable_sort(order.begin(), order.end(), [&](size_t a, size_t b) { return better(pool[a].score, pool[b].score); });
-      if (order.size() > 3) order.resize(3);
-      std::vector<char> ok(order.size(), 0);
-      parallel_for(order.size(), threads, [&](size_t k) { ok[k] = verify(pool[order[k]], setups, spec, rep.region, o.objective).meets; });
-      if (std::find(ok.begin(), ok.end(), 1) != ok.end()) rep.summary.first_verified_s = elapsed();
-    }
-    const long long feasible = std::count_if(pool.begin(), pool.end(), [](const PoolEntry& e) { return e.score.feasible; });
-    if (levels_after_full < 0 && feasible >= o.keep) levels_after_full = 0;
-    else if (levels_after_full >= 0) ++levels_after_full;
-    if (levels_after_full >= o.extra_levels) break;
-    if (rep.summary.evaluations >= o.max_evaluations) { rep.summary.budget_stop = true; break; }
-    if (elapsed() >= o.time_limit_s) { rep.summary.time_stop = true; break; }
+    for (size_t k = 0; k < which.size(); ++k) verified[{pool[which[k]].structure, pool[which[k]].x}] = out[k];
+    return out;
+  };
+  // Time to the first verified design: the first level whose best screening-feasible points verify.
+  for (size_t l = 0; l < level_ranges.size() && !rep.summary.first_verified_s; ++l) {
+    std::vector<size_t> order;
+    for (size_t i = level_ranges[l].first; i < level_ranges[l].second; ++i)
+      if (pool[i].score.feasible) order.push_back(i);
+    std::stable_sort(order.begin(), order.end(), [&](size_t a, size_t b) { return better(pool[a].score, pool[b].score); });
+    if (order.size() > 3) order.resize(3);
+    const double t_verify = elapsed();
+    const std::vector<Candidate> v = verify_cached(order);
+    if (std::any_of(v.begin(), v.end(), [](const Candidate& c) { return c.meets; }))
+      rep.summary.first_verified_s = level_finished[l] + (elapsed() - t_verify);
   }
 
   // Diverse shortlist by screening score, then full-accuracy verification.
@@ -237,10 +316,21 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
     for (const PoolEntry& s : shortlist)
       if (s.structure == e.structure && unit_distance(setups[e.structure].problem->space(), s.x, e.x) < o.diversity) close = true;
     if (!close) shortlist.push_back(e);
-    if (static_cast<int>(shortlist.size()) >= 3 * o.keep) break;
+    if (static_cast<int>(shortlist.size()) >= 2 * o.keep) break;
   }
   std::vector<Candidate> cands(shortlist.size());
-  parallel_for(shortlist.size(), threads, [&](size_t i) { cands[i] = verify(shortlist[i], setups, spec, rep.region, o.objective); });
+  {
+    std::vector<size_t> todo;
+    for (size_t i = 0; i < shortlist.size(); ++i)
+      if (!verified.count({shortlist[i].structure, shortlist[i].x})) todo.push_back(i);
+    std::vector<Candidate> fresh(todo.size());
+    parallel_for(todo.size(), threads, [&](size_t k) { fresh[k] = verify(shortlist[todo[k]], setups, spec, rep.region, o.objective); });
+    for (size_t k = 0; k < todo.size(); ++k) verified[{shortlist[todo[k]].structure, shortlist[todo[k]].x}] = fresh[k];
+    for (size_t i = 0; i < shortlist.size(); ++i) {
+      cands[i] = verified.at({shortlist[i].structure, shortlist[i].x});
+      cands[i].origin = shortlist[i].origin;
+    }
+  }
   if (o.metric_objective)
     for (Candidate& c : cands) c.objective = metric_score(c, *o.metric_objective);
   std::stable_sort(cands.begin(), cands.end(), [&](const Candidate& a, const Candidate& b) {

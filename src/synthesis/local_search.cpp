@@ -32,6 +32,7 @@ struct Tracker {
   LocalResult* best;
   bool phase_two = false;
   long long count = 0;
+  const std::atomic<bool>* cancel = nullptr;
 
   // Better: feasible beats infeasible; among feasible the lower objective, else the lower violation.
   void consider(const std::vector<double>& x, const DesignScore& s) {
@@ -49,6 +50,7 @@ struct Tracker {
 double nlopt_objective(unsigned n, const double* x, double* grad, void* data) {
   (void)grad;
   Tracker* t = static_cast<Tracker*>(data);
+  if (t->cancel && t->cancel->load(std::memory_order_relaxed)) throw nlopt::forced_stop();
   const std::vector<double> v(x, x + n);
   const DesignScore s = t->problem->score(v);
   ++t->count;
@@ -88,15 +90,17 @@ void run_phase(Tracker& t, const LocalOptions& o, std::vector<double> x, int eva
 
 }  // namespace
 
-LocalResult local_search(const DesignProblem& problem, const std::vector<double>& x0, const LocalOptions& o) {
+LocalResult local_search(const DesignProblem& problem, const std::vector<double>& x0, const LocalOptions& o,
+                         const std::atomic<bool>* cancel) {
   LocalResult best;
   Tracker t{&problem, &best};
+  t.cancel = cancel;
   const DesignScore s0 = problem.score(x0);
   ++t.count;
   t.consider(x0, s0);
   std::string reason = "start";
   if (!best.score.feasible) run_phase(t, o, x0, o.feasibility_evaluations, 0.15, true, reason);
-  if (best.score.feasible) {
+  if (best.score.feasible && !(cancel && cancel->load())) {
     t.phase_two = true;
     run_phase(t, o, best.x, o.objective_evaluations, 0.03, false, reason);
   }

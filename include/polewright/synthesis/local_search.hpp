@@ -3,6 +3,7 @@
 // NLopt's C++ interface throws (roundoff-limited, forced stop) even after finding good points.
 #pragma once
 
+#include <atomic>
 #include <string>
 #include <vector>
 
@@ -30,6 +31,8 @@ struct LocalResult {
   std::string stop_reason;
 };
 
-LocalResult local_search(const DesignProblem& problem, const std::vector<double>& x0, const LocalOptions& options);
+// `cancel`, when given and set, stops the search at its next evaluation (the result so far is kept).
+LocalResult local_search(const DesignProblem& problem, const std::vector<double>& x0, const LocalOptions& options,
+                         const std::atomic<bool>* cancel = nullptr);
 
 }  // namespace pw
