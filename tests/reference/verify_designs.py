@@ -7,8 +7,26 @@ Each RESULT.json is the output of `polewright design SPEC -o RESULT.json`.  For 
 candidate with "meets": true, every plant in "plants" (nominal and variants) and every
 requirement key of "requirements", the metric is recomputed here from scratch, following
 README.md ("What the figures mean"), with the numerical building blocks of
-make_fixtures.py (exact Pade coefficients, Newton-polished roots, step residues, lsim of the
-closed loop, error constants).  Nothing is taken from the C++ code.  Then:
+make_fixtures.py (exact Pade coefficients, Newton-polished roots, step residues, error
+constants).  Nothing is taken from the C++ code.
+
+* Poles and step: Pade (n, n) of the delay, n = analysis.pade_order.  The step response is
+  the exact residue expansion y(t) = y(inf) + sum c_i exp(p_i t) (and the same for u),
+  sampled at >= 12 points per 1/|p| of the fastest live mode, every event (peak, 10/90 %
+  crossings, last band exit, including a band exit at a peak between samples) refined by
+  root finding on the exact expression; cross-checked against scipy.signal.lsim of the
+  balanced closed-loop state space, which takes over if the residues are unreliable.
+* Frequency figures: the exact exp(-jwT) on a dense log grid (extended so that asymptotic
+  crossovers of very small or large gains are inside it, extra points at lightly damped
+  roots, a linear grid for the delay), crossings refined with brentq; the zero-frequency
+  phase crossing of a type-0 loop with L(0) < 0 and the high-frequency limit of a biproper
+  loop count as phase crossovers (README).
+* damping_ratio / natural_frequency_rad_s: the poles whose step share |c_i| / sum |c_j| is
+  at least analysis.residue_share "matter"; gain_tolerance_pct scans the compensator gain
+  factor k from 1 outwards in steps of 1 % (then bisection) within [0.01, 100] while the
+  loop is stable and the poles that matter stay in result["region"].
+
+Then:
 
   (a) the requirement bound must hold for the recomputed worst value over the plants
       (max over plants for a "max" bound, min for a "min" bound; both for keys with both);
@@ -43,7 +61,9 @@ except ImportError:                                    # pragma: no cover
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
 import make_fixtures as mf                              # noqa: E402  (reused, not modified)
 
-SAMPLES = 100001            # uniform step-response samples
+SAMPLES = 100001            # minimum step-response samples (lsim fallback: exactly this)
+MAX_MODAL_SAMPLES = 4000000  # cap of the dense samples of the exact modal response
+CHECK_SAMPLES = 20001       # lsim samples for the cross-check of the modal response
 FREQ_POINTS = 100000        # log-spaced frequency grid points
 DELAY_PHASE_STEP = 0.05     # rad of exp(-jwT) per step of the extra linear grid
 DELAY_GRID_FLOOR = 1e-4     # linear delay grid runs up to where |L| stays below this
@@ -239,20 +259,146 @@ def simulate(ynum, unum, char, horizon, samples):
     return t, yout[:, 0], yout[:, 1]
 
 
-def time_metrics(loop, pa, band):
-    """overshoot, rise, settling, peak effort of the unit step (Pade loop), from lsim on a
-    horizon long enough that the residue envelope is far inside the band; cross-checked
-    against the residue expansion."""
-    char, poles, yf = pa["char"], pa["poles"], pa["yf"]
-    ynum, unum = loop.ynum(), loop.unum()
-    horizon = mf.choose_horizon(pa["residues"], poles, yf, band)
-    t, y, u = simulate(ynum, unum, char, horizon, SAMPLES)
-    res = {}
-    # residue cross-check (a few points)
-    with np.errstate(all="ignore"):
-        tt = t[:: max(1, SAMPLES // 200)]
-        yr = yf + (np.exp(np.outer(tt, poles)) @ pa["residues"]).real
-    res["_sim_vs_residue"] = float(np.max(np.abs(yr - y[:: max(1, SAMPLES // 200)])))
+class Modal:
+    """Exact step response from the residue expansion v(t) = v(inf) + sum c_i exp(p_i t)."""
+
+    def __init__(self, poles, cres, vf):
+        self.poles, self.c, self.vf = poles, cres, vf
+        self.cd = cres * poles                       # derivative terms
+
+    def __call__(self, t):
+        t = np.atleast_1d(np.asarray(t, float))
+        return self.vf + (np.exp(np.outer(t, self.poles)) @ self.c).real
+
+    def deriv(self, t):
+        t = np.atleast_1d(np.asarray(t, float))
+        return (np.exp(np.outer(t, self.poles)) @ self.cd).real
+
+    def sample(self, t, chunk=100000):
+        v = np.empty(t.size)
+        d = np.empty(t.size)
+        for a in range(0, t.size, chunk):
+            E = np.exp(np.outer(t[a:a + chunk], self.poles))
+            v[a:a + chunk] = self.vf + (E @ self.c).real
+            d[a:a + chunk] = (E @ self.cd).real
+        return v, d
+
+
+def _root(f, a, b):
+    fa, fb = f(a), f(b)
+    if fa == 0.0:
+        return a
+    if fb == 0.0 or fa * fb > 0.0:
+        return b
+    return optimize.brentq(f, a, b, xtol=1e-300, rtol=1e-15, maxiter=200)
+
+
+def _peak(f, t, v, k):
+    """Refined maximum of the scalar function f near sample k of (t, v)."""
+    if k == 0 or k == t.size - 1:
+        return t[k], v[k]
+    r = optimize.minimize_scalar(lambda x: -f(x), bounds=(t[k - 1], t[k + 1]), method="bounded",
+                                 options={"xatol": 1e-12 * max(t[k + 1], 1e-300), "maxiter": 500})
+    fx = -r.fun
+    return (r.x, fx) if fx >= v[k] else (t[k], v[k])
+
+
+def modal_grid(ym, um, horizon):
+    """Sample times: SAMPLES uniform points, plus, while a mode is still alive (its term above
+    1e-12 of the response scale), at least 12 points per 1/|p| of the fastest live mode."""
+    poles = ym.poles
+    sy = abs(ym.vf) + float(np.sum(np.abs(ym.c)))
+    su = abs(um.vf) + float(np.sum(np.abs(um.c)))
+    w = np.maximum(np.abs(ym.c) / max(sy, 1e-300), np.abs(um.c) / max(su, 1e-300))
+    alive = np.where(w > 1e-12, np.log(np.maximum(w, 1e-300) / 1e-12) / np.maximum(-poles.real, 1e-300), 0.0)
+    alive = np.minimum(alive, horizon)
+    parts = [np.linspace(0.0, horizon, SAMPLES)]
+    edges = sorted(set([0.0] + [float(a) for a in alive if a > 0.0]))
+    budget = MAX_MODAL_SAMPLES
+    for a, b in zip(edges[:-1], edges[1:]):
+        live = np.abs(poles[alive > a])
+        if live.size == 0:
+            continue
+        n = int(min(budget, math.ceil((b - a) * 12.0 * float(np.max(live))) + 1))
+        if n > SAMPLES // 10:
+            parts.append(np.linspace(a, b, n))
+            budget -= n
+        if budget <= 0:
+            break
+    t = np.unique(np.concatenate(parts))
+    return t, budget <= 0
+
+
+def modal_time_metrics(ym, um, yf, uf, horizon, band):
+    """Time figures from the exact modal response, sampled densely (modal_grid), every event
+    refined on the exact expression."""
+    t, capped = modal_grid(ym, um, horizon)
+    n = t.size
+    y, yd = ym.sample(t)
+    u, _ = um.sample(t)
+    res = {"_samples": n, "_capped": capped}
+    sgn = 1.0 if yf > 0 else -1.0
+    ys, yfs = sgn * y, abs(yf)
+    k = int(np.argmax(ys))
+    ypk = _peak(lambda x: sgn * ym(x)[0], t, ys, k)[1]
+    res["overshoot_pct"] = max(0.0, 100.0 * (ypk - yfs) / yfs)
+
+    def first_up(level):
+        idx = np.nonzero(ys >= level)[0]
+        if idx.size == 0:
+            return None
+        i = idx[0]
+        if i == 0:
+            return 0.0
+        return _root(lambda x: sgn * ym(x)[0] - level, t[i - 1], t[i])
+    t10, t90 = first_up(0.1 * yfs), first_up(0.9 * yfs)
+    res["rise_time_s"] = None if (t10 is None or t90 is None) else t90 - t10
+
+    lim = band * yfs
+    e = np.abs(y - yf)
+    out = np.nonzero(e > lim)[0]
+    last = out[-1] if out.size else -1
+    # extrema of y after the last sample outside the band: a peak between samples may leave it
+    flips = np.nonzero(np.sign(yd[:-1]) * np.sign(yd[1:]) < 0)[0]
+    cand_exit = None
+    for j in flips[::-1]:
+        if j < last:
+            break
+        if max(e[j], e[j + 1]) < 0.9 * lim:      # sampled 12 per 1/|p|: a peak is within 0.4 %
+            continue
+        te = _root(lambda x: ym.deriv(x)[0], t[j], t[j + 1])
+        if abs(ym(te)[0] - yf) > lim:
+            cand_exit = (te, j + 1)
+            break
+    if last < 0 and cand_exit is None:
+        res["settling_time_s"] = 0.0
+    elif last == t.size - 1:
+        res["settling_time_s"] = None
+    else:
+        if cand_exit is not None and cand_exit[0] > t[last]:
+            a, j = cand_exit
+            # find the first sample after the extremum inside the band
+            inside = np.nonzero(e[j:] <= lim)[0]
+            b = t[j + inside[0]] if inside.size else t[-1]
+        else:
+            a, b = t[last], t[last + 1]
+        s_ = 1.0 if ym(a)[0] > yf else -1.0
+        ts = _root(lambda x: s_ * (ym(x)[0] - yf) - lim, a, b)
+        res["settling_time_s"] = ts
+        slope = abs(ym.deriv(ts)[0])
+        res["_settling_condition"] = lim / (slope * ts) if slope > 0 and ts > 0 else math.inf
+    au = np.abs(u)
+    k = int(np.argmax(au))
+    if k == t.size - 1:
+        res["peak_effort"] = max(au[k], abs(uf))
+    else:
+        res["peak_effort"] = _peak(lambda x: abs(um(x)[0]), t, au, k)[1]
+    return res
+
+
+def lsim_time_metrics(t, y, u, yf, uf, band):
+    """Fallback: the same figures from lsim samples (linear / parabolic interpolation)."""
+    res = {"_samples": t.size}
     sgn = 1.0 if yf > 0 else -1.0
     ys, yfs = sgn * y, abs(yf)
     k = int(np.argmax(ys))
@@ -266,23 +412,54 @@ def time_metrics(loop, pa, band):
     out = np.nonzero(err > lim)[0]
     if out.size == 0:
         res["settling_time_s"] = 0.0
+    elif out[-1] == len(t) - 1:
+        res["settling_time_s"] = None
     else:
         i = out[-1]
-        if i == len(t) - 1:
-            res["settling_time_s"] = None
-        else:
-            res["settling_time_s"] = t[i] + (err[i] - lim) / (err[i] - err[i + 1]) * (t[i + 1] - t[i])
-            slope = abs(err[i] - err[i + 1]) / (t[i + 1] - t[i])
-            res["_settling_condition"] = lim / (slope * res["settling_time_s"]) if slope > 0 else math.inf
+        res["settling_time_s"] = t[i] + (err[i] - lim) / (err[i] - err[i + 1]) * (t[i + 1] - t[i])
     au = np.abs(u)
     k = int(np.argmax(au))
-    uf = abs(unum[-1] / char[-1])
     if k == 0:
         res["peak_effort"] = au[0]
     elif k == len(t) - 1:
-        res["peak_effort"] = max(au[k], uf)     # monotone effort: its supremum is u(inf)
+        res["peak_effort"] = max(au[k], abs(uf))
     else:
         res["peak_effort"] = mf.parabola_peak(t, au, k)[1]
+    return res
+
+
+def time_metrics(loop, pa, band):
+    """overshoot, rise, settling, peak effort of the unit step (Pade loop).
+
+    Primary: the exact residue expansion of y and u, densely sampled, each event refined by
+    root finding.  It is cross-checked against scipy.signal.lsim of the balanced closed-loop
+    state space; if the two disagree (e.g. nearly repeated poles spoil the residues), the
+    lsim samples are used instead and a note is printed."""
+    char, poles, yf = pa["char"], pa["poles"], pa["yf"]
+    ynum, unum = loop.ynum(), loop.unum()
+    uf = float(unum[-1] / char[-1])
+    horizon = mf.choose_horizon(pa["residues"], poles, yf, band)
+    with np.errstate(all="ignore"):
+        cu = mf.residues_step(unum, char, poles)
+    ym = Modal(poles, pa["residues"], yf)
+    um = Modal(poles, cu, uf)
+    t, y, u = simulate(ynum, unum, char, horizon, CHECK_SAMPLES)
+    with np.errstate(all="ignore"):
+        ok = bool(np.all(np.isfinite(pa["residues"])) and np.all(np.isfinite(cu)))
+        if ok:
+            dy = float(np.max(np.abs(ym.sample(t)[0] - y)))
+            du = float(np.max(np.abs(um.sample(t)[0] - u)))
+            scale_y = max(abs(yf), float(np.max(np.abs(y))))
+            scale_u = max(abs(uf), float(np.max(np.abs(u))))
+            ok = dy <= 1e-6 * scale_y and du <= 1e-6 * scale_u
+    if ok:
+        res = modal_time_metrics(ym, um, yf, uf, horizon, band)
+        res["_method"] = "residues"
+    else:
+        t, y, u = simulate(ynum, unum, char, horizon, SAMPLES)
+        res = lsim_time_metrics(t, y, u, yf, uf, band)
+        res["_method"] = "lsim"
+    res["_horizon"] = horizon
     return res
 
 
@@ -307,6 +484,15 @@ def freq_grid(loop):
         mags = [1.0]
     lo = min(mags) / 1e3
     hi = max(mags) * 1e3
+    # a gain crossover on a low- or high-frequency asymptote (very small or large gains) must
+    # lie inside the grid: |L| ~ |K_N| / w^N below every root, |L| ~ |K_inf| / w^r above
+    typ, kconst = mf.loop_type_and_constant(loop.numL, loop.denL)
+    if typ >= 1 and kconst != 0.0:
+        lo = min(lo, abs(kconst) ** (1.0 / typ) / 100.0)
+    nt, dt = np.trim_zeros(loop.numL, "f"), np.trim_zeros(loop.denL, "f")
+    r = dt.size - nt.size
+    if r >= 1 and nt[0] != 0.0:
+        hi = max(hi, abs(nt[0] / dt[0]) ** (1.0 / r) * 100.0)
     w = np.logspace(math.log10(lo), math.log10(hi), FREQ_POINTS)
     parts = [w]
     for wn, z in light:
@@ -427,9 +613,8 @@ def plant_metrics(comp, plant, keys, opts):
         m.update(freq_metrics(loop, T0))
     if not pa["stable"]:
         return m
-    if any(k in keys for k in TIME_KEYS):
-        tm = time_metrics(loop, pa, opts["band"])
-        m.update(tm)
+    if any(k in keys for k in TIME_KEYS) and pa["yf"] != 0.0 and math.isfinite(pa["yf"]):
+        m.update(time_metrics(loop, pa, opts["band"]))
     mat = [p for i, p in enumerate(pa["poles"]) if pa["matters"][i]]
     m["damping_ratio"] = min(damping(p) for p in mat) if mat else None
     d = dominant(pa)
@@ -474,7 +659,8 @@ def bounds_of(req):
 
 
 def check_candidate(fname, cand, doc, opts, report):
-    label = "%s cand#%s %s" % (fname, cand.get("rank", "?"), "+".join(cand.get("structure", [])) or "-")
+    label = "%s cand#%s %s" % (fname, cand.get("rank", "?"),
+                               "+".join(str(x) for x in (cand.get("structure") or [])) or "-")
     comp = cand.get("compensator", {})
     reqs = doc.get("requirements", {})
     keys = [k for k in reqs if k in KEYS]
@@ -490,7 +676,7 @@ def check_candidate(fname, cand, doc, opts, report):
             d2 = np.asarray(comp["denominator"], float)
             s = d2[0] / d1[0] if d1[0] != 0 else 1.0
             ok = poly_close(n1 * s, n2) and poly_close(d1 * s, d2)
-        except (ValueError, KeyError, TypeError, IndexError) as e:
+        except (ValueError, KeyError, TypeError, IndexError):
             ok = False
         report(ok, "%s compensator: zeros/poles/gain %s numerator/denominator"
                % (label, "match" if ok else "DO NOT match"))
@@ -504,12 +690,17 @@ def check_candidate(fname, cand, doc, opts, report):
             return
     stable = all(m["_stable"] for m in per_plant)
     bad = [i for i, m in enumerate(per_plant) if not m["_stable"]]
-    report(stable, "%s stability: closed loop %s for all %d plants%s"
-           % (label, "stable" if stable else "UNSTABLE", len(per_plant),
-              "" if stable else " (plant %s: poles %s)" % (bad, per_plant[bad[0]]["_poles"])))
-    for m in per_plant:
-        if m.get("_sim_vs_residue", 0.0) > 1e-6:
-            print("  note: %s: lsim and residue expansion differ by %.2g" % (label, m["_sim_vs_residue"]))
+    if stable:
+        report(True, "%s stability: closed loop stable for all %d plants" % (label, len(per_plant)))
+    else:
+        report(False, "%s stability: closed loop UNSTABLE for plant(s) %s of %d (plant %d poles %s)"
+               % (label, bad, len(per_plant), bad[0], np.array2string(per_plant[bad[0]]["_poles"], precision=6, max_line_width=100000)))
+    for i, m in enumerate(per_plant):
+        if m.get("_method") == "lsim":
+            print("  note: %s plant %d: residue expansion unreliable, time figures from lsim (%d samples)"
+                  % (label, i, m["_samples"]))
+        elif m.get("_capped"):
+            print("  note: %s plant %d: step sampling capped at %d points" % (label, i, MAX_MODAL_SAMPLES))
 
     tool_metrics = cand.get("metrics", {}) or {}
     for key in keys:
@@ -541,6 +732,8 @@ def check_candidate(fname, cand, doc, opts, report):
         why = ""
         if not has:
             why = "tool reports no value"
+        elif not stable:
+            why = "(not compared: a closed loop is unstable)"
         else:
             for b, (wv, wi) in worst.items():
                 lim = dict(bnds)[b]
