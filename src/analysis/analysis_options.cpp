@@ -26,6 +26,7 @@ AnalysisOptions AnalysisOptions::Screening(const AnalysisOptions& base) {
   o.step.samples = std::min(o.step.samples, 1000);
   o.frequency.points_per_decade = 20;
   o.frequency.delay_grid_floor = 0.05;
+  o.frequency.dense_peak_scan = false;
   return o;
 }
 

@@ -314,7 +314,19 @@ FrequencyMetrics frequency_metrics(const Zpk& loop, double delay_s, const Freque
     return std::sqrt(std::norm(Lx) / std::norm(1.0 + Lx));
   };
   if (is > 0 && is + 1 < w.size()) {
-    const auto pk = maximise_log(smag, w[is - 1], w[is + 1]);
+    // A sharp peak (a loop passing close to -1) can sit between grid points: rescan the two
+    // neighbouring intervals densely before the golden-section refinement.
+    double a = w[is - 1], b = w[is + 1], best_w = w[is], best_v = smag(w[is]);
+    const int dense = opt.dense_peak_scan ? 64 : 1;
+    for (int k = 1; k < dense; ++k) {
+      const double x = a * std::pow(b / a, static_cast<double>(k) / dense);
+      const double v = smag(x);
+      if (v > best_v) { best_v = v; best_w = x; }
+    }
+    const double step = std::pow(b / a, 1.0 / dense);
+    a = std::max(a, best_w / step);
+    b = std::min(b, best_w * step);
+    const auto pk = maximise_log(smag, a, b);
     m.peak_sensitivity = std::max(pk.second, smag(w[is]));
     m.peak_sensitivity_at_rad_s = pk.second >= smag(w[is]) ? pk.first : w[is];
   } else {

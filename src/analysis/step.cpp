@@ -220,11 +220,14 @@ std::pair<double, double> parabola_peak(double ym, double y0, double yp) {
   return {off, y0 - 0.25 * (ym - yp) * off};
 }
 
-int adaptive_count(const PoleAnalysis& poles, double horizon, const StepOptions& opt) {
+int adaptive_count(const PoleAnalysis& poles, double horizon, const StepOptions& opt, double final_value) {
   if (!opt.adaptive_samples) return opt.samples;
   double h = horizon / (opt.samples - 1);
+  // Every pole whose residue could push y out of the settling band counts here, dipoles included:
+  // a lightly damped mode with a small share can still poke out of the band between samples.
+  const double visible = 0.05 * opt.band * std::abs(final_value);
   for (const PoleInfo& p : poles.poles) {
-    if (!p.matters) continue;
+    if (!p.matters && p.residue < visible) continue;
     if (std::abs(p.pole.imag()) > 0.0) h = std::min(h, 2.0 * M_PI / std::abs(p.pole.imag()) / 20.0);
     if (p.pole.real() < 0.0) h = std::min(h, 1.0 / -p.pole.real() / 5.0);
   }
@@ -278,7 +281,7 @@ StepMetrics step_response(const ClosedLoop& L, const PoleAnalysis& poles, const 
   const double yf = modal ? poles.modal.y_final : closed_loop_dc_gain(L);
   m.final_value = yf;
   m.horizon_s = opt.horizon_s > 0.0 ? opt.horizon_s : choose_step_horizon(poles, yf, opt.band, min_horizon_s);
-  const int N = adaptive_count(poles, m.horizon_s, opt);
+  const int N = adaptive_count(poles, m.horizon_s, opt, yf);
   m.samples = N;
   const double dt = m.horizon_s / (N - 1);
   const Mat E = modal ? Mat() : augmented_map(L, dt);

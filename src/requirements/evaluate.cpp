@@ -128,11 +128,11 @@ Evaluation evaluate_all(const Zpk& comp, const std::vector<Plant>& plants, const
       if (!le.stable) viol = std::max(viol, 1e3);
       per_plant[i] += viol;
       // Rank: larger violation is worse; among met ones, the smaller margin is worse.
+      // Capped violations tie: among them the larger real shortfall is worse.
+      const double scale = std::abs(r.limit) > 0.0 ? std::abs(r.limit) : 1.0;
       double key = viol;
-      if (viol == 0.0) {
-        const double scale = std::abs(r.limit) > 0.0 ? std::abs(r.limit) : 1.0;
-        key = mv.infinite ? -1e300 : -requirement_margin(r, *mv.value) / scale * 1e-6;
-      }
+      if (viol == 0.0) key = mv.infinite ? -1e300 : -requirement_margin(r, *mv.value) / scale * 1e-6;
+      else if (mv.value) key = viol + 1e-9 * std::tanh(-requirement_margin(r, *mv.value) / scale);
       if (key > worst_key) {
         worst_key = key;
         o.worst = mv;

@@ -21,6 +21,9 @@ struct FrequencyOptions {
   // logarithmic grid (phase crossovers there give gain margins above -20 log10(floor) dB).
   // 0 keeps the whole linear grid; the search's screening uses 0.05 (26 dB).
   double delay_grid_floor = 0.0;
+  // Rescan the neighbourhood of the largest |S| grid value with 64 points before refining it (a
+  // sharp peak can sit between grid points); the screening path skips it.
+  bool dense_peak_scan = true;
 
   bool IsValid(std::string* error) const;
 };
