@@ -7,7 +7,10 @@
 #include <random>
 #include <atomic>
 #include <limits>
+#include <condition_variable>
 #include <map>
+#include <set>
+#include <tuple>
 #include <mutex>
 
 #include "polewright/synthesis/parallel.hpp"
@@ -187,13 +190,11 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
   };
   const size_t n_jobs = structures.size();
   std::vector<Job> jobs(n_jobs);
-  const int inner = static_cast<int>(n_jobs) < threads ? threads : 1;
   std::mutex mutex;
   int stop_level = std::numeric_limits<int>::max();
   size_t resolved = 0;  // jobs [0, resolved) belong to levels already judged
   long long feasible_so_far = 0, evaluations_so_far = 0;
   int levels_after_full = -1;
-  std::atomic<size_t> next{0};
   std::atomic<bool> out_of_time{false};
   auto level_of = [&](size_t i) { return structures[i].stage_count(); };
   // Applies the stopping rule to every level that is complete, in order (called under the mutex).
@@ -220,31 +221,63 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
       }
     }
   };
-  parallel_for(static_cast<size_t>(std::min<int>(threads, static_cast<int>(std::max<size_t>(n_jobs, 1)))), threads, [&](size_t) {
-    for (size_t i = next++; i < n_jobs; i = next++) {
-      {
-        std::lock_guard<std::mutex> lock(mutex);
-        if (level_of(i) > stop_level) continue;
-      }
-      if (elapsed() >= o.time_limit_s) {
-        out_of_time = true;
+  // Tasks: per structure one preparation (seeds, screening points) and then one task per start.
+  // The queue hands out the lowest (level, structure, start) first; tasks of levels past the stop
+  // level are dropped, and running ones are cancelled.
+  using Task = std::tuple<int, size_t, int, size_t>;  // level, job, kind (0 prepare, 1 polish), start
+  std::set<Task> queue;
+  for (size_t i = 0; i < n_jobs; ++i) queue.insert({level_of(i), i, 0, 0});
+  std::vector<int> pending(n_jobs, -1);
+  std::condition_variable wake;
+  int running = 0;
+  parallel_for(static_cast<size_t>(threads), threads, [&](size_t) {
+    std::unique_lock<std::mutex> lock(mutex);
+    for (;;) {
+      while (!queue.empty() && std::get<0>(*queue.begin()) > stop_level) queue.erase(queue.begin());
+      if (queue.empty()) {
+        if (running == 0) {
+          wake.notify_all();
+          return;
+        }
+        wake.wait(lock);
         continue;
       }
+      const Task task = *queue.begin();
+      queue.erase(queue.begin());
+      ++running;
+      lock.unlock();
+      const size_t i = std::get<1>(task);
       Job& job = jobs[i];
-      std::vector<PoolEntry> global;
-      job.setup = prepare(structures[i], i, spec, rep.region, rep.frequency_range, screening, o, global);
-      parallel_for(global.size(), inner, [&](size_t k) {
-        if (!job.cancel) global[k].score = job.setup.problem->score(global[k].x);
-      });
-      add_global_starts(job.setup, global, o);
-      job.results.assign(job.setup.starts.size(), LocalResult{});
-      parallel_for(job.setup.starts.size(), inner, [&](size_t k) {
+      const bool late = elapsed() >= o.time_limit_s;
+      if (late) {
+        out_of_time = true;
+      } else if (std::get<2>(task) == 0) {
+        std::vector<PoolEntry> global;
+        job.setup = prepare(structures[i], i, spec, rep.region, rep.frequency_range, screening, o, global);
+        for (PoolEntry& e : global)
+          if (!job.cancel) e.score = job.setup.problem->score(e.x);
+        add_global_starts(job.setup, global, o);
+        job.results.assign(job.setup.starts.size(), LocalResult{});
+      } else {
+        const size_t k = std::get<3>(task);
         job.results[k] = local_search(*job.setup.problem, job.setup.starts[k].x, o.local, &job.cancel);
-      });
-      std::lock_guard<std::mutex> lock(mutex);
-      job.done = true;
-      job.finished_s = elapsed();
-      judge();
+      }
+      lock.lock();
+      --running;
+      if (!late) {
+        if (std::get<2>(task) == 0) {
+          pending[i] = static_cast<int>(job.setup.starts.size());
+          for (size_t k = 0; k < job.setup.starts.size(); ++k) queue.insert({std::get<0>(task), i, 1, k});
+        } else {
+          --pending[i];
+        }
+        if (pending[i] == 0) {
+          job.done = true;
+          job.finished_s = elapsed();
+          judge();
+        }
+      }
+      wake.notify_all();
     }
   });
   // The levels used: complete ones up to the stop level.
