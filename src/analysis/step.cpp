@@ -6,6 +6,8 @@
 
 #include <unsupported/Eigen/MatrixFunctions>
 
+#include "polewright/analysis/eigen.hpp"
+
 namespace pw {
 
 bool StepOptions::IsValid(std::string* error) const {
@@ -21,13 +23,19 @@ bool StepOptions::IsValid(std::string* error) const {
 
 namespace {
 
-// z_{k+1} = E z_k with z = [x; 1]: exact for a constant input between samples.
+// z_{k+1} = E z_k with z = [x; 1]: exact for a constant input between samples. The matrix is
+// balanced first (exp(D^-1 M D) = D^-1 exp(M) D): a loop with large gains has entries spread over
+// many decades, and scaling-and-squaring on the unbalanced matrix loses the answer.
 Mat augmented_map(const ClosedLoop& L, double tau) {
   const int n = L.states();
   Mat M = Mat::Zero(n + 1, n + 1);
   M.topLeftCorner(n, n) = L.A * tau;
   M.topRightCorner(n, 1) = L.B * tau;
+  Vec d;
+  balance(M, d);
   Mat E = M.exp();
+  for (int i = 0; i < n + 1; ++i)
+    for (int j = 0; j < n + 1; ++j) E(i, j) *= d(i) / d(j);
   return E;
 }
 

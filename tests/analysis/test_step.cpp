@@ -95,3 +95,35 @@ TEST_CASE("horizon covers the slow lag dipole and unsettled responses give no se
   CHECK(!err.empty());
   CHECK(o.IsValid(&err));
 }
+
+TEST_CASE("badly scaled loop: the zero-order-hold map agrees with the modal expansion", "[analysis][step]") {
+  // Plant gain 5e9 against poles down to 0 and a compensator gain of 4e5: the closed-loop matrix
+  // spans about 15 decades. Unbalanced scaling-and-squaring returned a response that decayed to 0;
+  // balanced, both independent sample paths agree.
+  Zpk c, g;
+  c.gain = 433866.2;
+  c.zeros = {Complex(-238.3, 0)};
+  c.poles = {Complex(-4.793, 0)};
+  g.gain = 5e9;
+  for (double wn : {20.0, 45.0, 80.0}) {
+    const Complex p(-0.02 * wn, wn * std::sqrt(1 - 0.0004));
+    g.poles.push_back(p);
+    g.poles.push_back(std::conj(p));
+  }
+  for (double p : {0.0, -3.0, -150.0, -200.0, -300.0}) g.poles.push_back(Complex(p, 0));
+  Plant plant;
+  plant.tf = g;
+  const LoopParts parts = make_loop_parts(c, plant, 6);
+  const ClosedLoop cl = close_loop(parts.compensator, parts.plant);
+  StepOptions exact, modal;
+  exact.keep_trace = modal.keep_trace = true;
+  modal.exact_refinement = false;
+  modal.adaptive_samples = exact.adaptive_samples = false;
+  const StepMetrics a = step_response(cl, analyze_poles(cl, 0.02), exact);
+  const StepMetrics b = step_response(cl, analyze_poles(cl, parts, 1.0, 0.02), modal);
+  REQUIRE(a.trace.y.size() == b.trace.y.size());
+  for (size_t k = 0; k < a.trace.y.size(); k += 50) CHECK(a.trace.y[k] == Approx(b.trace.y[k]).margin(1e-8));
+  CHECK(a.final_value == Approx(1.0));  // type-1 loop: unit final value (final-value theorem)
+  REQUIRE(a.settling_time_s);
+  CHECK(*a.settling_time_s == Approx(*b.settling_time_s).epsilon(1e-3));
+}
