@@ -24,8 +24,10 @@ Complex pair_root(double wn, double zeta) { return Complex(-zeta * wn, wn * std:
 int bench_evaluate(int argc, char** argv) {
   double seconds = 3.0;
   unsigned seed = 2026;
+  long long count = 0;  // with --count N: exactly N evaluations (for instruction counts under callgrind)
   for (int i = 1; i + 1 < argc; i += 2) {
     if (!std::strcmp(argv[i], "--seconds")) seconds = std::atof(argv[i + 1]);
+    if (!std::strcmp(argv[i], "--count")) count = std::atoll(argv[i + 1]);
     if (!std::strcmp(argv[i], "--seed")) seed = static_cast<unsigned>(std::atoi(argv[i + 1]));
   }
   Plant plant;
@@ -62,8 +64,8 @@ int bench_evaluate(int argc, char** argv) {
   double checksum = 0.0;
   const auto t0 = std::chrono::steady_clock::now();
   double elapsed = 0.0;
-  while (elapsed < seconds) {
-    for (int i = 0; i < 256; ++i, ++n) {
+  while (count > 0 ? n < count : elapsed < seconds) {
+    for (int i = 0; i < 256 && (count == 0 || n < count); ++i, ++n) {
       const LoopEvaluation e = evaluate_loop(pool[static_cast<size_t>(n % 4096)], plant, req, region, opt, needs);
       stable += e.stable;
       bool all = e.stable;

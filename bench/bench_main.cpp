@@ -8,7 +8,7 @@ int bench_design(int argc, char** argv);
 
 int main(int argc, char** argv) {
   if (argc < 2 || std::strcmp(argv[1], "--help") == 0) {
-    std::printf("usage: polewright-bench evaluate [--seconds S] [--seed N]\n       polewright-bench design [SPEC...]\n");
+    std::printf("usage: polewright-bench evaluate [--seconds S | --count N] [--seed N]\n       polewright-bench design [SPEC...]\n");
     return argc < 2 ? 2 : 0;
   }
   const std::string what = argv[1];
