@@ -49,6 +49,13 @@ nlohmann::json parse_json_text(const std::string& text) {
     const size_t cut = what.find("syntax error");
     if (cut != std::string::npos) what = what.substr(cut);
     throw SpecError("$", "invalid JSON at line " + std::to_string(line) + ", column " + std::to_string(col) + ": " + what);
+  } catch (const nlohmann::json::exception& e) {
+    // For example a number beyond double range (1e777): nlohmann reports it as out_of_range.
+    std::string what = e.what();
+    const size_t cut = what.find("] ");
+    if (cut != std::string::npos) what = what.substr(cut + 2);
+    if (what.size() > 120) what = what.substr(0, 117) + "...";
+    throw SpecError("$", "invalid JSON: " + what);
   }
 }
 

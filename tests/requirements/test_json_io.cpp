@@ -3,6 +3,9 @@
 #include <cstdio>
 #include <fstream>
 #include <string>
+#include <sstream>
+
+#include <dirent.h>
 
 #include "polewright/requirements/spec_parse.hpp"
 
@@ -34,4 +37,30 @@ TEST_CASE("JSON files: missing, directory, readable", "[requirements][json_io]")
   { std::ofstream(path) << "{\"a\": 1}"; }
   CHECK(read_json_file(path).at("a") == 1);
   std::remove(path.c_str());
+}
+
+TEST_CASE("a number beyond double range is bad input, not a crash (fuzzer finding)", "[requirements][json_io]") {
+  CHECK(error_of([] { parse_json_text("{\"denominator\": [1e777, 2]}"); }).rfind("$: invalid JSON: number overflow", 0) == 0);
+}
+
+TEST_CASE("every input the fuzzers once crashed on is now a clean SpecError or a spec", "[requirements][json_io][fuzz]") {
+  const std::string dir = std::string(POLEWRIGHT_SOURCE_DIR) + "/tests/fuzz/regressions";
+  DIR* d = opendir(dir.c_str());
+  REQUIRE(d);
+  int count = 0;
+  while (dirent* e = readdir(d)) {
+    if (e->d_name[0] == '.') continue;
+    INFO(e->d_name);
+    std::ifstream in(dir + "/" + e->d_name, std::ios::binary);
+    std::stringstream ss;
+    ss << in.rdbuf();
+    try {
+      const nlohmann::json j = parse_json_text(ss.str());
+      (void)parse_spec(j);
+    } catch (const SpecError&) {
+    }
+    ++count;
+  }
+  closedir(d);
+  CHECK(count >= 2);
 }
