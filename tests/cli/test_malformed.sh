@@ -1,0 +1,80 @@
+#!/usr/bin/env bash
+# Table-driven bad input: every case must give exit code 2, exactly one line on stderr naming a JSON
+# path ("$" or "$.field..."), and leave an existing output file untouched.
+set -u
+bin=$1; src=$2
+tmp=$(mktemp -d); trap 'rm -rf "$tmp"' EXIT
+pass=0; fail=0
+good='{ "plant": { "gain": 4, "poles": [0, -2] }, "requirements": { "overshoot_pct": { "max": 10 } }, "current": { "gain": 1 } }'
+
+run_case() {  # run_case NAME EXPECTED_PATH_PREFIX -- command...
+  local name=$1 want=$2; shift 3
+  echo keep >"$tmp/out.json"
+  "$@" -o "$tmp/out.json" >/dev/null 2>"$tmp/err"; local rc=$?
+  local lines; lines=$(wc -l <"$tmp/err")
+  if [ "$rc" = 2 ] && [ "$lines" = 1 ] && grep -qF -- "$want" "$tmp/err" && [ "$(cat "$tmp/out.json")" = keep ]; then
+    pass=$((pass+1))
+  else
+    fail=$((fail+1)); echo "FAIL: $name: exit $rc, $lines line(s), want path '$want':"; cat "$tmp/err"
+  fi
+}
+spec_case() {  # spec_case NAME PATH JSON-TEXT
+  printf '%s' "$3" >"$tmp/$1.json"
+  run_case "$1" "$2" -- "$bin" check "$tmp/$1.json"
+}
+comp_case() {  # comp_case NAME PATH JSON-TEXT (a --compensator file)
+  printf '%s' "$good" >"$tmp/good.json"
+  printf '%s' "$3" >"$tmp/$1.json"
+  run_case "$1" "$2" -- "$bin" check "$tmp/good.json" --compensator "$tmp/$1.json"
+}
+
+# Every bad case of the schema agreement suite (one thing wrong each).
+for f in "$src"/tests/schema/cases/bad-*.json; do run_case "$(basename "$f")" '$' -- "$bin" check "$f"; done
+
+spec_case broken-json '$: invalid JSON at line 1' '{ "plant": '
+spec_case trailing-garbage '$: invalid JSON' "$good x"
+spec_case not-an-object '$: must be an object' '[1, 2]'
+spec_case nan-string '$.plant.gain: must be a number, not the string' '{ "plant": { "gain": "NaN", "poles": [-1] }, "requirements": {} }'
+spec_case inf-string '$.plant.poles[0]' '{ "plant": { "poles": ["Infinity"] }, "requirements": {} }'
+spec_case huge-number '$.plant.numerator[0]: magnitude' '{ "plant": { "numerator": [1e308], "denominator": [1, 1] }, "requirements": {} }'
+spec_case overflow-number '$: invalid JSON: number overflow' '{ "plant": { "numerator": [1e777], "denominator": [1, 1] }, "requirements": {} }'
+spec_case missing-plant '$.plant: is missing' '{ "requirements": {} }'
+spec_case improper-plant '$.plant.numerator: improper plant' '{ "plant": { "numerator": [1, 0, 0], "denominator": [1, 1] }, "requirements": {} }'
+spec_case all-zero-den '$.plant.denominator: is all zero' '{ "plant": { "numerator": [1], "denominator": [0, 0, 0] }, "requirements": {} }'
+spec_case zero-lead-den '$.plant.denominator[0]' '{ "plant": { "numerator": [1], "denominator": [0, 1, 2] }, "requirements": {} }'
+spec_case zero-numerator '$.plant.numerator: is all zero' '{ "plant": { "numerator": [0], "denominator": [1, 2] }, "requirements": {} }'
+spec_case negative-delay '$.plant.delay_s: must be >= 0' '{ "plant": { "gain": 1, "poles": [-1], "delay_s": -0.1 }, "requirements": {} }'
+spec_case negative-limit '$.requirements.settling_time_s.max' '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": { "settling_time_s": { "max": -1 } } }'
+spec_case empty-limit '$.requirements.phase_margin_deg: needs a "min"' '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": { "phase_margin_deg": {} } }'
+spec_case inverted-range '$.stages.frequency_range_rad_s[1]' '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": {}, "stages": { "frequency_range_rad_s": [100, 1] } }'
+spec_case empty-range '$.stages.frequency_range_rad_s[1]' '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": {}, "stages": { "frequency_range_rad_s": [5, 5] } }'
+spec_case notch-no-range '$.stages.frequency_range_rad_s: is needed' '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": {}, "stages": { "notch": 1 } }'
+spec_case inverted-bounds '$.requirements.bandwidth_rad_s.min: must be below max' '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": { "bandwidth_rad_s": { "min": 10, "max": 1 } } }'
+spec_case impossible-band '$.requirements.settling_time_s.band_pct' '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": { "settling_time_s": { "max": 1, "band_pct": 150 } } }'
+spec_case did-you-mean '$.plant.denominater: unknown key (did you mean "denominator"?)' '{ "plant": { "numerator": [1], "denominater": [1, 1] }, "requirements": {} }'
+spec_case wrong-type-keep '$.search.keep: must be a whole number' '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": {}, "search": { "keep": "five" } }'
+order=$(printf -- '-%s,' $(seq 1 31)); order=${order%,}
+spec_case order-too-high '$.plant.poles: plant order 31 is above the limit of 30' "{ \"plant\": { \"poles\": [$order] }, \"requirements\": {} }"
+deep=$(printf '[%.0s' $(seq 1 100)); deepc=$(printf ']%.0s' $(seq 1 100))
+spec_case deep-nesting '$: nesting deeper than 64' "{ \"plant\": $deep$deepc, \"requirements\": {} }"
+spec_case unstable-cancellation '$.current: compensator zero at 3' '{ "plant": { "gain": 1, "poles": [3, -1] }, "requirements": {}, "current": { "zeros": [3], "poles": [-10] } }'
+spec_case variant-both-forms '$.plant.variants[0]' '{ "plant": { "gain": 1, "poles": [-1], "variants": [ { "numerator": [1], "denominator": [1, 1] } ] }, "requirements": {} }'
+
+comp_case comp-improper '$.zeros: improper compensator' '{ "gain": 1, "zeros": [-1, -2], "poles": [-3] }'
+comp_case comp-zero-gain '$.gain: must be non-zero' '{ "gain": 0, "poles": [-3] }'
+comp_case comp-delay '$.delay_s: unknown key' '{ "gain": 1, "poles": [-3], "delay_s": 1 }'
+comp_case comp-broken '$: invalid JSON' '{ "gain": 1, '
+comp_case comp-root-missing-im '$.poles[0].im: is missing' '{ "poles": [{ "re": -1 }] }'
+comp_case comp-order-too-high '$.poles: compensator order 21' "{ \"poles\": [$(printf -- '-%s,' $(seq 1 20))-21] }"
+
+# Files that are not readable JSON files.
+mkdir -p "$tmp/dir.json"
+run_case directory 'is a directory' -- "$bin" check "$tmp/dir.json"
+run_case missing-file 'no such file' -- "$bin" check "$tmp/none.json"
+head -c $((9 * 1024 * 1024)) /dev/zero | tr '\0' ' ' >"$tmp/huge.json"
+run_case huge-file 'larger than 8 MiB' -- "$bin" check "$tmp/huge.json"
+printf '%s' "$good" >"$tmp/good.json"
+run_case design-bad-keep 'usage error' -- "$bin" design "$tmp/good.json" --keep 0
+
+echo "$pass passed, $fail failed"
+[ "$fail" = 0 ]
