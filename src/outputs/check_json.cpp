@@ -11,7 +11,9 @@ namespace {
 
 const char* bound_name(Sense s) { return s == Sense::AtMost ? "max" : "min"; }
 
-nlohmann::json pole_list(const PoleAnalysis& pa) {
+}  // namespace
+
+nlohmann::json pole_list_json(const PoleAnalysis& pa) {
   nlohmann::json a = nlohmann::json::array();
   for (const PoleInfo& p : pa.poles)
     a.push_back({{"re", json_number(p.pole.real())},
@@ -22,6 +24,12 @@ nlohmann::json pole_list(const PoleAnalysis& pa) {
                  {"matters", p.matters}});
   return a;
 }
+
+nlohmann::json gain_interval_json(const GainToleranceResult& g) {
+  return g.lo ? nlohmann::json{json_number(g.lo), json_number(g.hi)} : nlohmann::json(nullptr);
+}
+
+namespace {
 
 nlohmann::json number_list(const std::vector<double>& v) {
   nlohmann::json a = nlohmann::json::array();
@@ -65,7 +73,7 @@ nlohmann::json loop_evaluation_json(const LoopEvaluation& e) {
   metrics["peak_complementary_sensitivity"] = json_number(f.peak_complementary);
   j["metrics"] = metrics;
   j["unbounded"] = unbounded;
-  j["closed_loop_poles"] = pole_list(e.poles);
+  j["closed_loop_poles"] = pole_list_json(e.poles);
   j["residues_reliable"] = e.poles.residues_reliable;
   j["frequency"] = {{"gain_crossovers_rad_s", number_list(f.gain_crossovers_rad_s)},
                     {"phase_margins_deg", number_list(f.phase_margins_deg)},
@@ -78,7 +86,7 @@ nlohmann::json loop_evaluation_json(const LoopEvaluation& e) {
   j["steady_state"] = {{"loop_type", e.steady_state.loop_type},
                        {"error_constant", json_number(e.steady_state.error_constant)}};
   if (e.step) j["step"] = {{"horizon_s", json_number(e.step->horizon_s)}, {"samples", e.step->samples}};
-  j["gain_interval"] = e.gain.lo ? nlohmann::json{json_number(e.gain.lo), json_number(e.gain.hi)} : nlohmann::json(nullptr);
+  j["gain_interval"] = gain_interval_json(e.gain);
   j["gain_interval_at_scan_limit"] = {e.gain.lo_at_limit, e.gain.hi_at_limit};
   return j;
 }
@@ -155,9 +163,8 @@ nlohmann::json check_report_json(const CheckReport& r) {
   for (const LoopEvaluation& e : ev.plants) variants.push_back(loop_evaluation_json(e));
   j["variants"] = variants;
   const LoopEvaluation& nominal = ev.plants.front();
-  j["closed_loop_poles"] = pole_list(nominal.poles);
-  j["gain_interval"] = nominal.gain.lo ? nlohmann::json{json_number(nominal.gain.lo), json_number(nominal.gain.hi)}
-                                       : nlohmann::json(nullptr);
+  j["closed_loop_poles"] = pole_list_json(nominal.poles);
+  j["gain_interval"] = gain_interval_json(nominal.gain);
   j["locus"] = locus_json(r.locus);
   j["analysis"] = {{"pade_order", r.analysis.pade_order},
                    {"residue_share", json_number(r.analysis.residue_share)},

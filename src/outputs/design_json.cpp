@@ -41,13 +41,8 @@ nlohmann::json candidate_json(const Candidate& c, const RequirementSet& req) {
   j["unbounded"] = unbounded;
   j["worst_variant"] = c.verification.worst_plant;
   const LoopEvaluation& nominal = c.verification.plants.front();
-  nlohmann::json poles = nlohmann::json::array();
-  for (const PoleInfo& p : nominal.poles.poles)
-    poles.push_back({{"re", json_number(p.pole.real())}, {"im", json_number(p.pole.imag())},
-                     {"damping_ratio", json_number(p.damping)}, {"natural_frequency_rad_s", json_number(p.natural_frequency)},
-                     {"step_share", json_number(p.share)}, {"matters", p.matters}});
-  j["closed_loop_poles"] = poles;
-  j["gain_interval"] = nominal.gain.lo ? nlohmann::json{json_number(nominal.gain.lo), json_number(nominal.gain.hi)} : nlohmann::json(nullptr);
+  j["closed_loop_poles"] = pole_list_json(nominal.poles);
+  j["gain_interval"] = gain_interval_json(nominal.gain);
   j["gain_interval_at_scan_limit"] = {nominal.gain.lo_at_limit, nominal.gain.hi_at_limit};
   j["stable"] = c.verification.all_stable;
   nlohmann::json viol = nlohmann::json::object();

@@ -1,5 +1,7 @@
 #include <catch2/catch.hpp>
 
+#include <cmath>
+
 #include <regex>
 
 #include "polewright/outputs/check_output.hpp"
@@ -47,4 +49,24 @@ TEST_CASE("region JSON lists its derivations", "[outputs][check_output]") {
   CHECK(j.at("min_damping_ratio") == 0.5);
   CHECK(j.at("max_natural_frequency_rad_s").is_null());
   CHECK(j.at("derivations").size() == 1);
+}
+
+TEST_CASE("pole list and gain interval JSON", "[outputs][check_output]") {
+  PoleAnalysis pa;
+  PoleInfo p;
+  p.pole = Complex(-1.0, 2.0);
+  p.damping = 1.0 / std::sqrt(5.0);
+  p.natural_frequency = std::sqrt(5.0);
+  p.share = 0.4;
+  p.matters = true;
+  pa.poles = {p};
+  const nlohmann::json j = pole_list_json(pa);
+  REQUIRE(j.size() == 1);
+  CHECK(j[0].at("im") == 2.0);
+  CHECK(j[0].at("matters") == true);
+  GainToleranceResult g;
+  CHECK(gain_interval_json(g).is_null());  // nominal loop outside the region
+  g.lo = 0.5;
+  g.hi = 1.5;
+  CHECK(gain_interval_json(g) == nlohmann::json({0.5, 1.5}));
 }

@@ -12,6 +12,10 @@ namespace pw {
 extern const char* const kToolVersion;
 
 nlohmann::json region_json(const Region& r);
+// Closed-loop poles with damping, natural frequency, step share and whether they matter.
+nlohmann::json pole_list_json(const PoleAnalysis& pa);
+// [lo, hi] of the gain interval, or null when the nominal loop is outside the region.
+nlohmann::json gain_interval_json(const GainToleranceResult& g);
 nlohmann::json loop_evaluation_json(const LoopEvaluation& e);
 nlohmann::json locus_json(const Locus& l);
 nlohmann::json check_report_json(const CheckReport& r);
