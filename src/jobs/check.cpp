@@ -26,6 +26,7 @@ void check_cancellations(const Zpk& c, const Plant& plant, const std::string& pa
 CheckReport run_check(const Spec& spec, const Zpk& compensator, const CheckOptions& options) {
   CheckReport r;
   r.spec_name = spec.name;
+  r.spec_document = spec.document;
   r.compensator = compensator;
   r.plants = spec.plants;
   r.requirements = spec.requirements;

@@ -163,6 +163,7 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
   auto elapsed = [&] { return std::chrono::duration<double>(Clock::now() - t0).count(); };
   DesignReport rep;
   rep.spec_name = spec.name;
+  rep.spec_document = spec.document;
   rep.plants = spec.plants;
   rep.requirements = spec.requirements;
   rep.analysis = spec.analysis;

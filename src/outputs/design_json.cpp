@@ -99,6 +99,7 @@ nlohmann::json design_report_json(const DesignReport& r, bool include_timing) {
   if (include_timing)
     j["timing"] = {{"seconds", json_number(r.summary.seconds)}, {"first_verified_s", json_number(r.summary.first_verified_s)},
                    {"threads", r.summary.threads}, {"time_stop", r.summary.time_stop}};
+  j["spec"] = r.spec_document;
   j["cautions"] = kCautions;
   return j;
 }

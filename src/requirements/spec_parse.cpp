@@ -246,6 +246,7 @@ Spec parse_spec(const json& doc) {
   if (const json* v = member(doc, "search")) s.search = parse_search(*v, "$.search");
   if (const json* v = member(doc, "analysis")) s.analysis = parse_analysis(*v, "$.analysis");
   s.analysis.step.band = s.requirements.settling_band;
+  s.document = doc;
   return s;
 }
 

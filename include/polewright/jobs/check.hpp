@@ -17,6 +17,7 @@ struct CheckOptions {
 
 struct CheckReport {
   std::string spec_name;
+  nlohmann::json spec_document;  // the spec as given
   Zpk compensator;
   std::vector<Plant> plants;
   Region region;

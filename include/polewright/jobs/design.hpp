@@ -68,6 +68,7 @@ struct DesignSummary {
 
 struct DesignReport {
   std::string spec_name;
+  nlohmann::json spec_document;  // the spec as given
   std::vector<Plant> plants;
   RequirementSet requirements;
   AnalysisOptions analysis;

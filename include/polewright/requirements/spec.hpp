@@ -53,6 +53,7 @@ struct Spec {
   std::optional<Zpk> current;
   SearchSettings search;
   AnalysisOptions analysis;
+  nlohmann::json document;  // the spec as given (results embed it so they can be re-checked exactly)
 };
 
 const char* objective_name(Objective o);

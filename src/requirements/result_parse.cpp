@@ -1,0 +1,78 @@
+#include "polewright/requirements/result_parse.hpp"
+
+#include "polewright/requirements/spec_parse.hpp"
+
+namespace pw {
+
+namespace {
+
+using json = nlohmann::json;
+
+// Results write both forms of a compensator; the zeros/poles/gain form is the exact one.
+Zpk read_result_compensator(const json& j, const std::string& path) {
+  if (!j.is_object()) throw SpecError(path, "must be a compensator object");
+  json roots = json::object();
+  for (const char* k : {"gain", "zeros", "poles"})
+    if (j.contains(k)) roots[k] = j[k];
+  return parse_compensator(roots.empty() ? j : roots, path);
+}
+
+std::string job_of(const json& doc) {
+  if (!doc.contains("tool")) return "compensator";
+  const json& tool = doc["tool"];
+  if (!tool.is_object() || !tool.contains("job") || !tool["job"].is_string())
+    throw SpecError("$.tool.job", "is missing: not a polewright result file");
+  const std::string job = tool["job"].get<std::string>();
+  if (job != "check" && job != "design" && job != "retune")
+    throw SpecError("$.tool.job", "is \"" + job + "\": expected a check, design or retune result");
+  return job;
+}
+
+}  // namespace
+
+ResultInput parse_result(const json& doc) {
+  if (!doc.is_object()) throw SpecError("$", "must be a JSON object (a result file or a compensator)");
+  ResultInput r;
+  r.document = doc;
+  r.job = job_of(doc);
+  if (r.job == "compensator") {
+    r.compensators.push_back(read_result_compensator(doc, "$"));
+    return r;
+  }
+  if (!doc.contains("spec") || doc["spec"].is_null())
+    throw SpecError("$.spec", "is missing: the result does not embed its spec (written by an older version?)");
+  try {
+    r.spec = parse_spec(doc["spec"]);
+  } catch (const SpecError& e) {
+    // Re-root the path under $.spec so the message names the field of this file.
+    const std::string inner = e.path();
+    const std::string rerooted = "$.spec" + inner.substr(inner.empty() ? 0 : 1);
+    const std::string what = e.what();
+    throw SpecError(rerooted, what.substr(std::min(what.size(), inner.size() + 2)));
+  }
+  if (r.job == "check") {
+    if (!doc.contains("compensator")) throw SpecError("$.compensator", "is missing");
+    r.compensators.push_back(read_result_compensator(doc["compensator"], "$.compensator"));
+    return r;
+  }
+  if (!doc.contains("candidates") || !doc["candidates"].is_array())
+    throw SpecError("$.candidates", "is missing or not an array");
+  const json& cands = doc["candidates"];
+  for (size_t i = 0; i < cands.size(); ++i) {
+    const std::string path = "$.candidates[" + std::to_string(i) + "]";
+    if (!cands[i].is_object() || !cands[i].contains("compensator"))
+      throw SpecError(path + ".compensator", "is missing");
+    r.compensators.push_back(read_result_compensator(cands[i]["compensator"], path + ".compensator"));
+  }
+  return r;
+}
+
+const Zpk& result_compensator(const ResultInput& r, int rank, const std::string& option) {
+  if (r.compensators.empty()) throw SpecError("$.candidates", "is empty: the result holds no compensator");
+  if (rank < 1 || rank > static_cast<int>(r.compensators.size()))
+    throw SpecError(option, "is " + std::to_string(rank) + ": the result holds ranks 1 to " +
+                                std::to_string(r.compensators.size()));
+  return r.compensators[static_cast<size_t>(rank - 1)];
+}
+
+}  // namespace pw
