@@ -6,8 +6,6 @@
 
 namespace pw {
 
-namespace {
-
 std::string roots_text(const Roots& rs) {
   std::string s;
   for (const Complex& r : rs) {
@@ -16,6 +14,10 @@ std::string roots_text(const Roots& rs) {
     s += r.imag() == 0.0 ? fmt_number(r.real()) : fmt_number(r.real()) + "+-j" + fmt_number(r.imag());
   }
   return s.empty() ? "-" : s;
+}
+
+std::string candidate_verdict(const Candidate& c) {
+  return c.meets ? "meets all" : "misses: " + worst_violation(c);
 }
 
 std::string worst_violation(const Candidate& c) {
@@ -34,8 +36,6 @@ std::string worst_violation(const Candidate& c) {
   if (missed > 1) s += " (+" + std::to_string(missed - 1) + " more)";
   return s;
 }
-
-}  // namespace
 
 std::string design_report_text(const DesignReport& r) {
   std::string out = "polewright design" + (r.spec_name.empty() ? std::string() : ": " + r.spec_name) + "\n";
@@ -59,7 +59,7 @@ std::string design_report_text(const DesignReport& r) {
       const MetricValue& v = c.worst[static_cast<size_t>(id)];
       row.push_back(v.infinite ? "unbounded" : fmt_number(v.value));
     }
-    row.push_back(c.meets ? "meets all" : "misses: " + worst_violation(c));
+    row.push_back(candidate_verdict(c));
     t.add(row);
   }
   out += r.candidates.empty() ? "  no candidate\n" : t.render();

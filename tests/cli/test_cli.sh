@@ -74,5 +74,18 @@ expect 2 "design with a bad objective" -- "$bin" design "$tmp/met.json" --object
 expect 0 "design --json" -- "$bin" design "$tmp/met.json" --json --keep 2 --objective most_robust
 /usr/bin/python3 -c "import json,sys; d=json.load(open('$tmp/out')); sys.exit(not (d['status']=='met' and len(d['candidates'])<=2 and d['objective']=='most_robust'))" 2>/dev/null && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: --json/--keep/--objective not honoured"; }
 
+# retune: already met -> 0 and unchanged; tightened -> 0 with a change list; no current -> 2
+expect 0 "retune of a loop that meets changes nothing" -- "$bin" retune "$tmp/met.json" --json
+/usr/bin/python3 -c "import json,sys; d=json.load(open('$tmp/out')); sys.exit(not (d['unchanged'] and d['candidates']==[] and d['tool']['job']=='retune'))" 2>/dev/null && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: retune of a met loop is not unchanged"; }
+sed 's/"min": 0.48/"min": 0.6/' "$tmp/met.json" >"$tmp/tight.json"
+expect 1 "the tightened loop misses with the current lead" -- "$bin" check "$tmp/tight.json"
+expect 0 "retune meets the tightened loop" -- "$bin" retune "$tmp/tight.json" -o "$tmp/rt.json" --threads 1
+grep -q "driven by" "$tmp/out" && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: retune table shows no change list"; }
+/usr/bin/python3 -c "import json,sys; d=json.load(open('$tmp/rt.json')); c=d['candidates'][0]; sys.exit(not (c['meets'] and [x['item'] for x in c['changes']]==['gain','zero','pole']))" 2>/dev/null && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: retune JSON lacks the change list"; }
+expect 0 "retune on two threads" -- "$bin" retune "$tmp/tight.json" -o "$tmp/rt2.json" --threads 2
+cmp -s "$tmp/rt.json" "$tmp/rt2.json" && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: retune JSON differs between 1 and 2 threads"; }
+expect 2 "retune needs a current compensator" -- "$bin" retune "$tmp/nocur.json"
+one_line '$.current: is missing'
+
 echo "$pass passed, $fail failed"
 [ "$fail" = 0 ]

@@ -5,6 +5,8 @@
 #
 # For every tests/reference/design_problems/*.json: runs
 #   POLEWRIGHT_BINARY design SPEC -o $tmp/NAME.json --threads 1
+# and for every tests/reference/retune_problems/*.json (a loop that met its requirements, with one
+# of them tightened so that it no longer does) the same with `retune`,
 # (exit 0 = met, 1 = not met, anything else is a failure), counts a problem whose result
 # status is not "met" as a failure, then runs verify_designs.py (Debian's /usr/bin/python3
 # with numpy/scipy) on all results. The last line is "N passed, M failed" over both parts.
@@ -31,7 +33,7 @@ if ! "$PY" -c "import numpy, scipy" >/dev/null 2>&1; then
 fi
 
 shopt -s nullglob
-specs=("$here"/design_problems/*.json)
+specs=("$here"/design_problems/*.json "$here"/retune_problems/*.json)
 if [ ${#specs[@]} -eq 0 ]; then
   echo "no design problems in $here/design_problems"
   echo "0 passed, 1 failed"
@@ -45,20 +47,22 @@ passed=0
 failed=0
 results=()
 for spec in "${specs[@]}"; do
-  name=$(basename "$spec" .json)
+  job=design
+  case "$spec" in */retune_problems/*) job=retune ;; esac
+  name=$job-$(basename "$spec" .json)
   out="$tmp/$name.json"
   start=$(date +%s)
-  timeout 900 "$bin" design "$spec" -o "$out" --threads 1 >"$tmp/$name.stdout" 2>"$tmp/$name.stderr"
+  timeout 900 "$bin" "$job" "$spec" -o "$out" --threads 1 >"$tmp/$name.stdout" 2>"$tmp/$name.stderr"
   rc=$?
   secs=$(( $(date +%s) - start ))
   if [ $rc -ne 0 ] && [ $rc -ne 1 ]; then
     if [ $rc -eq 124 ]; then why="timed out"; else why="exit code $rc"; fi
-    echo "FAIL $name: design failed ($why, ${secs}s): $(head -c 400 "$tmp/$name.stderr" | tr '\n' ' ')"
+    echo "FAIL $name: $job failed ($why, ${secs}s): $(head -c 400 "$tmp/$name.stderr" | tr '\n' ' ')"
     failed=$((failed + 1))
     continue
   fi
   if [ ! -s "$out" ]; then
-    echo "FAIL $name: design exited $rc but wrote no result file"
+    echo "FAIL $name: $job exited $rc but wrote no result file"
     failed=$((failed + 1))
     continue
   fi

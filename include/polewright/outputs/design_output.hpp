@@ -18,4 +18,10 @@ nlohmann::json candidate_json(const Candidate& c, const RequirementSet& req);
 nlohmann::json design_report_json(const DesignReport& r, bool include_timing = true);
 std::string design_report_text(const DesignReport& r);
 
+// Pieces of the readable tables shared with the retune report.
+std::string roots_text(const Roots& rs);                 // "-40, -3+-j4" (a pair once)
+std::string worst_violation(const Candidate& c);         // "overshoot_pct 14 > 8 (+1 more)"
+std::string candidate_verdict(const Candidate& c);       // "meets all" or "misses: ..."
+
+
 }  // namespace pw

@@ -1,0 +1,52 @@
+#include <iostream>
+#include <memory>
+
+#include "commands.hpp"
+#include "polewright/outputs/retune_output.hpp"
+#include "polewright/requirements/spec_parse.hpp"
+
+namespace pw::cli {
+
+void register_retune(CLI::App& app) {
+  auto* cmd = app.add_subcommand("retune", "Move the compensator in service (the spec's current) as little as "
+                                           "possible until it meets the spec's requirements");
+  struct Args {
+    std::string spec, out;
+    bool json = false, timing = false, allow_new = false;
+    int keep = -1, threads = -1;
+    long long seed = -1;
+  };
+  auto a = std::make_shared<Args>();
+  cmd->add_option("SPEC", a->spec, "spec file (JSON) with a current compensator")->required();
+  cmd->add_option("-o,--output", a->out, "write the result as JSON to this file (atomically)");
+  cmd->add_flag("--json", a->json, "print the JSON result to stdout instead of the table");
+  cmd->add_flag("--timing", a->timing, "add the timings to the JSON");
+  cmd->add_flag("--allow-new-stages", a->allow_new,
+                "when moving the existing corners is not enough, add a stage (lead/lag or integrator, then a notch)");
+  cmd->add_option("--keep", a->keep, "number of candidates (overrides search.keep)")->check(CLI::Range(1, 100));
+  cmd->add_option("--seed", a->seed, "seed of the perturbed starts (overrides search.seed)")->check(CLI::NonNegativeNumber);
+  cmd->add_option("--threads", a->threads, "worker threads, 0 = all cores (overrides search.threads)")->check(CLI::Range(0, 1024));
+  cmd->callback([a] {
+    select([a] {
+      return guarded(a->spec, [&] {
+        const Spec spec = parse_spec(read_json_file(a->spec));
+        if (!spec.current) throw SpecError("$.current", "is missing: retune needs the compensator in service");
+        RetuneOptions o = RetuneOptions::FromSpec(spec);
+        o.allow_new_stages = a->allow_new;
+        if (a->keep > 0) o.keep = a->keep;
+        if (a->threads >= 0) o.threads = a->threads;
+        if (a->seed >= 0) o.seed = static_cast<unsigned long long>(a->seed);
+        std::string err;
+        if (!o.IsValid(&err)) throw SpecError("$.search", err);
+        const RetuneReport rep = run_retune(spec, o);
+        const nlohmann::json j = retune_report_json(rep, a->timing);
+        if (!a->out.empty()) emit(a->out, j.dump(1) + "\n");
+        if (a->json) emit("-", j.dump(1) + "\n");
+        else std::cout << retune_report_text(rep);
+        return rep.met() ? kExitMet : kExitNotMet;
+      });
+    });
+  });
+}
+
+}  // namespace pw::cli

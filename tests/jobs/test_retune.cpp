@@ -1,0 +1,105 @@
+#include <catch2/catch.hpp>
+
+#include "polewright/jobs/check.hpp"
+#include "polewright/jobs/retune.hpp"
+#include "polewright/outputs/retune_output.hpp"
+#include "polewright/requirements/spec_parse.hpp"
+
+using namespace pw;
+using nlohmann::json;
+
+namespace {
+// A belt-conveyor speed loop (our own scenario): motor + belt 8/((0.5 s + 1)(0.05 s + 1)), with the PI
+// 0.3 (s + 4)/s in service (overshoot 13.7 %, settling 1.05 s, phase margin 59 deg).
+const char* kOld = R"({"name": "conveyor speed",
+  "plant": {"gain": 320, "poles": [-2, -20]},
+  "requirements": {"overshoot_pct": {"max": 15}, "settling_time_s": {"max": 2.5},
+                   "steady_state_error": {"max": 0, "input": "step"}, "phase_margin_deg": {"min": 40}},
+  "stages": {"lead": 1, "lag": 1, "integrator": true, "frequency_range_rad_s": [0.05, 200]},
+  "current": {"gain": 0.3, "zeros": [-4], "poles": [0]},
+  "search": {"seed": 4, "keep": 3}})";
+
+Spec spec_with(const char* text, const std::function<void(json&)>& edit = {}) {
+  json j = json::parse(text);
+  if (edit) edit(j);
+  return parse_spec(j);
+}
+}  // namespace
+
+TEST_CASE("a loop that meets its requirements is left unchanged", "[jobs][retune]") {
+  const Spec spec = spec_with(kOld);
+  REQUIRE(run_check(spec, *spec.current).evaluation.all_met);  // the premise of the test
+  RetuneOptions o = RetuneOptions::FromSpec(spec);
+  o.threads = 1;
+  const RetuneReport r = run_retune(spec, o);
+  CHECK(r.already_met);
+  CHECK(r.met());
+  CHECK(r.candidates.empty());
+  CHECK(retune_report_json(r, false)["unchanged"] == true);
+}
+
+TEST_CASE("tightening overshoot 15 % -> 8 %: the retune meets it with a smaller change than a fresh design",
+          "[jobs][retune]") {
+  const Spec spec = spec_with(kOld, [](json& j) { j["requirements"]["overshoot_pct"]["max"] = 8; });
+  REQUIRE_FALSE(run_check(spec, *spec.current).evaluation.all_met);  // the current design misses it now
+  RetuneOptions o = RetuneOptions::FromSpec(spec);
+  o.threads = 1;
+  const RetuneReport r = run_retune(spec, o);
+  REQUIRE(r.met());
+  const RetuneCandidate& best = r.candidates.front();
+  CHECK(best.candidate.meets);
+  CHECK(best.added.empty());  // the structure is kept
+  CHECK(*best.candidate.worst[static_cast<size_t>(MetricId::Overshoot)].value <= 8.0);
+  // A fresh design for the same spec lands further from the compensator in service.
+  DesignOptions d = DesignOptions::FromSpec(spec);
+  d.threads = 1;
+  const DesignReport fresh = run_design(spec, d);
+  REQUIRE(fresh.met());
+  const double fresh_change = response_distance(fresh.candidates.front().compensator, *spec.current, r.frequency_range);
+  CHECK(best.response_change < fresh_change);
+  // The change list: the gain, the zero and the integrator, each with old and new values; the
+  // integrator stays put, and something is driven by the overshoot requirement.
+  REQUIRE(best.changes.size() == 3);
+  CHECK(best.changes[0].item == "gain");
+  CHECK(best.changes[2].item == "pole");
+  CHECK(best.changes[2].new_value->real() == 0.0);
+  bool overshoot_drives = false;
+  for (const ParameterChange& c : best.changes) overshoot_drives = overshoot_drives || c.driven_by == "overshoot_pct.max";
+  CHECK(overshoot_drives);
+  // Ranked by change among the candidates that meet.
+  for (size_t i = 1; i < r.candidates.size(); ++i) CHECK(r.candidates[i - 1].change_decades <= r.candidates[i].change_decades);
+}
+
+TEST_CASE("new stages only when asked, and then the least added order", "[jobs][retune]") {
+  // A proportional loop on 1/(s (s + 1)) cannot reach a ramp error of 0.05 with 25 % overshoot:
+  // Kv = K needs K >= 20, and then zeta = 1 / (2 sqrt(20)) = 0.11 (second-order formula).
+  const char* text = R"({"plant": {"gain": 1, "poles": [0, -1]},
+    "requirements": {"overshoot_pct": {"max": 25}, "steady_state_error": {"max": 0.05, "input": "ramp"}},
+    "stages": {"frequency_range_rad_s": [0.005, 100]},
+    "current": {"gain": 0.8}, "search": {"seed": 2, "keep": 2}})";
+  const Spec spec = spec_with(text);
+  RetuneOptions o = RetuneOptions::FromSpec(spec);
+  o.threads = 1;
+  const RetuneReport plain = run_retune(spec, o);
+  CHECK_FALSE(plain.met());
+  o.allow_new_stages = true;
+  const RetuneReport more = run_retune(spec, o);
+  REQUIRE(more.met());
+  REQUIRE(more.candidates.front().added.size() == 1);
+  CHECK(added_stage_order(more.candidates.front().added.front()) == 1);
+  CHECK(more.candidates.front().candidate.meets);
+}
+
+TEST_CASE("retune without a current compensator is bad input", "[jobs][retune]") {
+  const Spec spec = spec_with(kOld, [](json& j) { j.erase("current"); });
+  CHECK_THROWS_WITH(run_retune(spec, RetuneOptions{}), Catch::StartsWith("$.current"));
+}
+
+TEST_CASE("retune output is the same on one and two threads", "[jobs][retune]") {
+  const Spec spec = spec_with(kOld, [](json& j) { j["requirements"]["overshoot_pct"]["max"] = 8; });
+  RetuneOptions o = RetuneOptions::FromSpec(spec);
+  o.threads = 1;
+  const std::string one = retune_report_json(run_retune(spec, o), false).dump();
+  o.threads = 2;
+  CHECK(retune_report_json(run_retune(spec, o), false).dump() == one);
+}
