@@ -14,11 +14,13 @@ constexpr int kExitMet = 0;
 constexpr int kExitNotMet = 1;
 constexpr int kExitBadInput = 2;
 constexpr int kExitInternal = 3;
+constexpr int kExitStopped = 4;  // sweep: stopped by SIGINT/SIGTERM after the points in flight (resume it)
 
 void register_validate(CLI::App& app);
 void register_check(CLI::App& app);
 void register_design(CLI::App& app);
 void register_retune(CLI::App& app);
+void register_sweep(CLI::App& app);  // sweep and merge
 
 // Sets the action of the subcommand that was parsed.
 void select(std::function<int()> action);

@@ -14,6 +14,7 @@ int main(int argc, char** argv) {
   pw::cli::register_check(app);
   pw::cli::register_design(app);
   pw::cli::register_retune(app);
+  pw::cli::register_sweep(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::CallForHelp& e) {

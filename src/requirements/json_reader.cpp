@@ -83,3 +83,12 @@ const json* member(const json& obj, const char* key) {
 }
 
 }  // namespace pw::detail
+
+namespace pw::detail {
+SpecError rerooted(const SpecError& e, const std::string& prefix, const std::string& suffix) {
+  const std::string& inner = e.path();
+  const std::string what = e.what();
+  const std::string message = what.substr(std::min(what.size(), inner.size() + 2));
+  return SpecError(prefix + (inner.empty() ? std::string() : inner.substr(1)), message + suffix);
+}
+}  // namespace pw::detail

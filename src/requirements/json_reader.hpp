@@ -30,3 +30,8 @@ long long read_integer(const json& j, const std::string& path, long long lo, lon
 const json* member(const json& obj, const char* key);
 
 }  // namespace pw::detail
+
+namespace pw::detail {
+// The same error with its path moved under `prefix` ("$.plant.x" under "$.spec" -> "$.spec.plant.x").
+SpecError rerooted(const SpecError& e, const std::string& prefix, const std::string& suffix = "");
+}  // namespace pw::detail

@@ -2,6 +2,8 @@
 
 #include "polewright/requirements/spec_parse.hpp"
 
+#include "json_reader.hpp"
+
 namespace pw {
 
 namespace {
@@ -44,11 +46,7 @@ ResultInput parse_result(const json& doc) {
   try {
     r.spec = parse_spec(doc["spec"]);
   } catch (const SpecError& e) {
-    // Re-root the path under $.spec so the message names the field of this file.
-    const std::string inner = e.path();
-    const std::string rerooted = "$.spec" + inner.substr(inner.empty() ? 0 : 1);
-    const std::string what = e.what();
-    throw SpecError(rerooted, what.substr(std::min(what.size(), inner.size() + 2)));
+    throw detail::rerooted(e, "$.spec");  // the path names the field of this file
   }
   if (r.job == "check") {
     if (!doc.contains("compensator")) throw SpecError("$.compensator", "is missing");

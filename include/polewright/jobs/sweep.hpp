@@ -1,0 +1,52 @@
+// The sweep job: a job (design, check or retune) at every point of a sweep file, in parallel over
+// points (each point on one thread, with a seed derived from the sweep seed and its index), with
+// results delivered in point order so that what is written does not depend on the thread count.
+#pragma once
+
+#include <atomic>
+#include <functional>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "polewright/jobs/design.hpp"
+#include "polewright/requirements/sweep_parse.hpp"
+
+namespace pw {
+
+struct SweepPointResult {
+  long long index = 0;
+  std::vector<double> values;      // parameter values, in the sweep file's parameter order
+  std::string status;              // "met", "not_met", "bad_point" (the point's spec is invalid) or "error"
+  std::string message;             // why, for bad_point and error
+  std::optional<Candidate> top;    // the top candidate (design, retune) or the checked compensator
+  std::string structure;           // "lead+notch", "current", "current + lead/lag"
+  std::optional<double> change_decades;  // retune: the top candidate's change
+  double seconds = 0.0;            // wall time of the point (kept out of the deterministic outputs)
+};
+
+struct SweepRunOptions {
+  int threads = 0;                 // 0 = all cores; results do not depend on it
+  std::vector<long long> todo;     // the points to run, ascending
+  const std::atomic<bool>* stop = nullptr;  // when set, no new point starts; points in flight finish
+  bool IsValid(std::string* error) const;
+};
+
+struct SweepRunSummary {
+  long long ran = 0;               // points delivered
+  bool stopped = false;            // the stop flag ended the run before the last point
+  double seconds = 0.0;
+};
+
+// Runs one point (never throws for a bad point: it becomes status bad_point).
+SweepPointResult run_sweep_point(const SweepFile& file, const SweepPoints& points, long long index);
+
+// Runs the points of options.todo; `deliver` is called on the calling thread's behalf (serialised)
+// for each finished point, in todo order: a point is delivered only after all points before it.
+SweepRunSummary run_sweep(const SweepFile& file, const SweepRunOptions& options,
+                          const std::function<void(const SweepPointResult&)>& deliver);
+
+// The indices of shard k of n (1 <= k <= n): every n-th point starting at k - 1.
+std::vector<long long> shard_indices(long long total, int k, int n);
+
+}  // namespace pw

@@ -1,0 +1,131 @@
+#include <csignal>
+#include <cstdio>
+#include <cstdlib>
+#include <iostream>
+#include <memory>
+
+#include "commands.hpp"
+#include "polewright/outputs/sweep_store.hpp"
+#include "polewright/requirements/spec_parse.hpp"
+#include "polewright/requirements/sweep_parse.hpp"
+#include "sweep_progress.hpp"
+
+namespace pw::cli {
+
+namespace {
+
+std::atomic<bool> g_stop{false};
+
+extern "C" void on_stop_signal(int) { g_stop.store(true); }
+
+long long env_integer(const char* name, bool* present) {
+  const char* v = std::getenv(name);
+  *present = v && *v;
+  if (!*present) return 0;
+  char* end = nullptr;
+  const long long x = std::strtoll(v, &end, 10);
+  if (*end != '\0') throw SpecError(name, std::string("is \"") + v + "\": not a whole number");
+  return x;
+}
+
+// --shard K/N, or the Slurm job-array variables, or the whole sweep.
+Shard resolve_shard(const std::string& text) {
+  Shard s;
+  if (!text.empty()) {
+    int k = 0, n = 0;
+    char tail = 0;
+    if (std::sscanf(text.c_str(), "%d/%d%c", &k, &n, &tail) != 2 || n < 1 || k < 1 || k > n)
+      throw SpecError("--shard", "is \"" + text + "\": expected K/N with 1 <= K <= N");
+    return {k, n};
+  }
+  bool has_id = false, has_count = false, has_min = false, has_max = false;
+  const long long id = env_integer("SLURM_ARRAY_TASK_ID", &has_id);
+  if (!has_id) return s;
+  const long long count = env_integer("SLURM_ARRAY_TASK_COUNT", &has_count);
+  const long long lo = env_integer("SLURM_ARRAY_TASK_MIN", &has_min);
+  const long long hi = env_integer("SLURM_ARRAY_TASK_MAX", &has_max);
+  if (!has_min && !has_count) throw SpecError("SLURM_ARRAY_TASK_MIN", "is missing next to SLURM_ARRAY_TASK_ID");
+  const long long base = has_min ? lo : 0;
+  const long long n = has_count ? count : (has_max ? hi - base + 1 : 0);
+  if (n < 1) throw SpecError("SLURM_ARRAY_TASK_COUNT", "is missing or not positive next to SLURM_ARRAY_TASK_ID");
+  const long long k = id - base + 1;
+  if (k < 1 || k > n) throw SpecError("SLURM_ARRAY_TASK_ID", "is outside the job array's range");
+  return {static_cast<int>(k), static_cast<int>(n)};
+}
+
+}  // namespace
+
+void register_sweep(CLI::App& app) {
+  auto* cmd = app.add_subcommand("sweep", "Run a job at every point of a design-space sweep (resumable, shardable)");
+  struct Args {
+    std::string file, out, shard;
+    int threads = 0;
+    bool resume = false, quiet = false;
+  };
+  auto a = std::make_shared<Args>();
+  cmd->add_option("SWEEP", a->file, "sweep file (JSON)")->required();
+  cmd->add_option("--out", a->out, "output directory (sweep.json, points.jsonl, summary.csv)")->required();
+  cmd->add_option("--threads", a->threads, "worker threads, 0 = all cores; results do not depend on it")->check(CLI::Range(0, 1024));
+  cmd->add_option("--shard", a->shard, "run the K-th of N disjoint slices (K/N); default: Slurm job-array variables, else all");
+  cmd->add_flag("--resume", a->resume, "continue a sweep that was stopped or killed (no point lost or repeated)");
+  cmd->add_flag("--quiet", a->quiet, "no progress on stderr");
+  cmd->callback([a] {
+    select([a] {
+      return guarded(a->file, [&] {
+        const SweepFile f = parse_sweep(read_json_file(a->file));
+        const Shard shard = resolve_shard(a->shard);
+        SweepStore store(a->out, f, shard, a->resume);
+        if (store.cut_torn_line() && !a->quiet)
+          std::fprintf(stderr, "polewright: %s/points.jsonl: cut a torn last line; that point runs again\n", a->out.c_str());
+        const std::vector<long long> mine = shard_indices(f.point_count(), shard.k, shard.n);
+        SweepRunOptions o;
+        o.threads = a->threads;
+        for (long long i : mine)
+          if (!store.done().count(i)) o.todo.push_back(i);
+        o.stop = &g_stop;
+        std::signal(SIGINT, on_stop_signal);
+        std::signal(SIGTERM, on_stop_signal);
+        SweepProgress progress(static_cast<long long>(mine.size()), static_cast<long long>(mine.size() - o.todo.size()), a->quiet);
+        const SweepRunSummary s = run_sweep(f, o, [&](const SweepPointResult& r) {
+          store.append(r);
+          progress.point_done(r.status == "met");
+        });
+        store.finish();
+        progress.finish();
+        if (s.stopped) {
+          std::fprintf(stderr, "polewright: sweep stopped by a signal after %lld point(s); continue with --resume\n", s.ran);
+          return kExitStopped;
+        }
+        return kExitMet;
+      });
+    });
+  });
+
+  auto* merge = app.add_subcommand("merge", "Merge sweep shard directories into one summary.csv-format file");
+  struct MergeArgs {
+    std::vector<std::string> dirs;
+    std::string out;
+  };
+  auto m = std::make_shared<MergeArgs>();
+  merge->add_option("DIR", m->dirs, "sweep output directories")->required();
+  merge->add_option("-o,--output", m->out, "summary file to write (atomically)")->required();
+  merge->callback([m] {
+    select([m] {
+      return guarded(m->dirs.front(), [&] {
+        const MergeResult r = merge_sweep_dirs(m->dirs);
+        emit(m->out, r.csv);
+        if (!r.missing.empty()) {
+          std::string list;
+          for (size_t i = 0; i < r.missing.size() && i < 10; ++i) list += (i ? ", " : "") + std::to_string(r.missing[i]);
+          if (r.missing.size() > 10) list += ", ...";
+          std::fprintf(stderr, "polewright: merge: %zu of %lld point(s) missing: %s\n", r.missing.size(), r.expected,
+                       list.c_str());
+          return kExitNotMet;
+        }
+        return kExitMet;
+      });
+    });
+  });
+}
+
+}  // namespace pw::cli

@@ -1,0 +1,111 @@
+#include <catch2/catch.hpp>
+
+#include <cmath>
+#include <set>
+
+#include "polewright/requirements/spec_parse.hpp"
+#include "polewright/requirements/sweep_parse.hpp"
+
+using namespace pw;
+using nlohmann::json;
+
+namespace {
+const char* kSweep = R"({
+  "base": {"plant": {"numerator": ["k"], "denominator": ["J", "2*zeta*wn*J", 0]},
+           "requirements": {"overshoot_pct": {"max": "os"}, "steady_state_error": {"max": 0.1, "input": "ramp"}},
+           "stages": {"lead": 1}},
+  "parameters": {"J": {"from": 0.1, "to": 10, "count": 3, "scale": "log"},
+                 "k": {"values": [40, 50]},
+                 "os": {"from": 5, "to": 20, "count": 4},
+                 "wn": {"values": [3]}, "zeta": {"values": [0.5]}},
+  "job": "design", "seed": 9})";
+
+std::string error_after(const std::function<void(json&)>& edit) {
+  json j = json::parse(kSweep);
+  edit(j);
+  try {
+    parse_sweep(j);
+  } catch (const SpecError& e) {
+    return e.what();
+  }
+  return "";
+}
+}  // namespace
+
+TEST_CASE("a grid sweep: parameters alphabetical, the last fastest, ranges spaced as asked", "[requirements][sweep_parse]") {
+  const SweepFile f = parse_sweep(json::parse(kSweep));
+  REQUIRE(f.parameters.size() == 5);
+  CHECK(f.parameters[0].name == "J");
+  CHECK(f.point_count() == 3 * 2 * 4);
+  CHECK(f.expressions.size() == 4);  // k, J, 2*zeta*wn*J, os ("ramp" is a word)
+  const SweepPoints pts(f);
+  // Log spacing 0.1, 1, 10 (exact end points); linear 5, 10, 15, 20.
+  CHECK(pts.at(0) == std::vector<double>{0.1, 40, 5, 3, 0.5});
+  CHECK(pts.at(1)[2] == Approx(10.0));
+  CHECK(pts.at(3)[2] == 20.0);
+  CHECK(pts.at(4)[1] == 50.0);
+  CHECK(pts.at(8)[0] == Approx(1.0));
+  CHECK(pts.at(23) == std::vector<double>{10, 50, 20, 3, 0.5});
+}
+
+TEST_CASE("a point's spec has every expression evaluated and its own seed", "[requirements][sweep_parse]") {
+  const SweepFile f = parse_sweep(json::parse(kSweep));
+  const SweepPoints pts(f);
+  const json spec = point_spec(f, pts.at(8), point_seed(f.seed, 8));
+  CHECK(spec["plant"]["denominator"][1].get<double>() == Approx(2 * 0.5 * 3 * 1.0));
+  CHECK(spec["plant"]["numerator"][0].get<double>() == 40.0);
+  CHECK(spec["requirements"]["steady_state_error"]["input"] == "ramp");
+  CHECK(spec["search"]["seed"].get<unsigned long long>() == point_seed(9, 8));
+  CHECK(parse_spec(spec).plants.size() == 1);
+  // Seeds differ by point and by sweep seed, and stay below 2^53 (exact in JSON).
+  std::set<unsigned long long> seeds;
+  for (long long i = 0; i < 1000; ++i) seeds.insert(point_seed(9, i));
+  CHECK(seeds.size() == 1000);
+  CHECK(point_seed(9, 0) != point_seed(10, 0));
+  CHECK(*seeds.rbegin() < (1ULL << 53));
+}
+
+TEST_CASE("sobol and latin samples stay in range and are reproducible", "[requirements][sweep_parse]") {
+  for (const char* method : {"sobol", "latin"}) {
+    json j = json::parse(kSweep);
+    j["sample"] = {{"method", method}, {"count", 64}};
+    const SweepFile f = parse_sweep(j);
+    CHECK(f.point_count() == 64);
+    const SweepPoints a(f), b(f);
+    std::set<double> distinct;
+    for (long long i = 0; i < 64; ++i) {
+      const std::vector<double> v = a.at(i);
+      CHECK(v == b.at(i));
+      CHECK(v[0] >= 0.1);
+      CHECK(v[0] <= 10.0);
+      CHECK((v[1] == 40.0 || v[1] == 50.0));
+      distinct.insert(v[2]);
+    }
+    CHECK(distinct.size() == 64);
+  }
+}
+
+TEST_CASE("bad sweep files: one line naming the field", "[requirements][sweep_parse]") {
+  using Catch::StartsWith;
+  CHECK_THAT(error_after([](json& j) { j["base"]["requirements"]["overshoot_pct"]["max"] = "os2"; }),
+             StartsWith("$.base.requirements.overshoot_pct.max: expression \"os2\" uses the unknown name \"os2\""));
+  CHECK_THAT(error_after([](json& j) { j["base"]["plant"]["numerator"][0] = "k*(2"; }),
+             StartsWith("$.base.plant.numerator[0]: expression \"k*(2\""));
+  CHECK_THAT(error_after([](json& j) { j["parameters"]["J"]["to"] = 0.01; }), StartsWith("$.parameters.J.to: must be greater"));
+  CHECK_THAT(error_after([](json& j) { j["parameters"]["J"]["from"] = -1; }), StartsWith("$.parameters.J.from: must be > 0"));
+  CHECK_THAT(error_after([](json& j) { j["parameters"]["k"]["values"] = json::array(); }), StartsWith("$.parameters.k.values"));
+  CHECK_THAT(error_after([](json& j) { j["parameters"]["os"].erase("count"); }), StartsWith("$.parameters.os.count: is missing"));
+  CHECK_THAT(error_after([](json& j) { j["parameters"]["2x"] = {{"values", {1}}}; }), StartsWith("$.parameters.2x"));
+  CHECK_THAT(error_after([](json& j) { j["sample"] = {{"method", "random"}}; }), StartsWith("$.sample.method"));
+  CHECK_THAT(error_after([](json& j) { j["sample"] = {{"method", "grid"}, {"count", 3}}; }), StartsWith("$.sample.count"));
+  CHECK_THAT(error_after([](json& j) { j["job"] = "plot"; }), StartsWith("$.job"));
+  CHECK_THAT(error_after([](json& j) { j["job"] = "check"; }), StartsWith("$.base.current: is missing"));
+  CHECK_THAT(error_after([](json& j) { j["parameterz"] = 1; }), StartsWith("$.parameterz: unknown key (did you mean"));
+  CHECK_THAT(error_after([](json& j) { j.erase("base"); }), StartsWith("$.base: is missing"));
+  CHECK_THAT(error_after([](json& j) { j["base"]["plant"]["denominatr"] = {1, 2}; }), StartsWith("$.base.plant.denominatr: unknown key"));
+  CHECK_THAT(error_after([](json& j) { j["base"]["plant"]["denominator"][0] = "J - 0.1"; }),
+             Catch::Contains("(at the first point)"));
+  CHECK_THAT(error_after([](json& j) { j["base"]["plant"]["numerator"][0] = "k / (J - 0.1)"; }),
+             StartsWith("$.base.plant.numerator[0]: expression \"k / (J - 0.1)\" is not finite"));
+  CHECK(error_after([](json&) {}).empty());
+}
