@@ -39,6 +39,14 @@ same "$tmp/ref/summary.csv" "$tmp/merged.csv" "merged shards differ from the one
 "$bin" merge "$tmp/s1" "$tmp/s3" -o "$tmp/partial.csv" 2>"$tmp/merge.err"
 [ $? = 1 ] && grep -q "missing" "$tmp/merge.err" && ok || bad "merge with a shard missing should exit 1 and name the missing points"
 
+# The GNU parallel example (three local "hosts") gives the same summary.
+if command -v parallel >/dev/null 2>&1; then
+  POLEWRIGHT=$bin bash "$src/examples/sweeps/parallel-hosts.sh" "$sweep" "$tmp/gnu" ":,:,:" >"$tmp/gnu.log" 2>&1 || bad "parallel-hosts.sh exited $?: $(tail -3 "$tmp/gnu.log")"
+  same "$tmp/ref/summary.csv" "$tmp/gnu/summary.csv" "GNU parallel shards merged differ from the one-process run"
+else
+  echo "note: GNU parallel not installed; its example was not run"
+fi
+
 # The Slurm job-array variables pick the same slice as --shard.
 SLURM_ARRAY_TASK_ID=2 SLURM_ARRAY_TASK_MIN=1 SLURM_ARRAY_TASK_MAX=3 "$bin" sweep "$sweep" --out "$tmp/slurm2" --threads 1 --quiet
 same "$tmp/s2/points.jsonl" "$tmp/slurm2/points.jsonl" "SLURM_ARRAY_TASK_* do not select shard 2/3"
