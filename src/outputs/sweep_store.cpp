@@ -107,54 +107,75 @@ std::string point_line(const SweepFile& f, const SweepPointResult& r) {
   return j.dump();
 }
 
-PointsScan scan_points_file(const std::string& path) {
+PointsScan for_each_point(const std::string& path, const std::function<void(const nlohmann::json&)>& each) {
   PointsScan s;
-  const std::string text = read_text(path);
-  size_t pos = 0;
-  while (pos < text.size()) {
-    const size_t nl = text.find('\n', pos);
-    if (nl == std::string::npos) {
+  std::ifstream in(path, std::ios::binary);
+  std::string line;
+  while (std::getline(in, line)) {
+    if (in.eof()) {
       s.torn = true;  // a last line without its newline: cut short by a crash
       break;
     }
-    nlohmann::json j = nlohmann::json::parse(text.begin() + static_cast<long>(pos), text.begin() + static_cast<long>(nl),
-                                             nullptr, false);
+    const nlohmann::json j = nlohmann::json::parse(line, nullptr, false);
     if (j.is_discarded() || !j.is_object() || !j.contains("index") || !j["index"].is_number_integer() ||
         !j.contains("status")) {
-      s.torn = true;
+      s.torn = true;  // corrupt: it and everything after it are redone
       break;
     }
-    s.points.push_back(std::move(j));
-    pos = nl + 1;
-    s.good_bytes = pos;
+    each(j);
+    s.good_bytes += line.size() + 1;
   }
   return s;
 }
 
-std::string summary_csv(const SweepFile& f, std::vector<nlohmann::json> points) {
-  std::stable_sort(points.begin(), points.end(), [](const nlohmann::json& a, const nlohmann::json& b) {
-    return a["index"].get<long long>() < b["index"].get<long long>();
-  });
+PointsScan scan_points_file(const std::string& path) {
+  std::vector<nlohmann::json> points;
+  PointsScan s = for_each_point(path, [&](const nlohmann::json& j) { points.push_back(j); });
+  s.points = std::move(points);
+  return s;
+}
+
+std::string summary_header(const SweepFile& f) {
   std::string out = "index";
   for (const SweepParameter& p : f.parameters) out += "," + csv_field(p.name);
   out += ",status,structure";
   for (const MetricInfo& info : metric_table()) out += std::string(",") + info.key;
-  out += ",change_decades,message\n";
-  for (size_t i = 0; i < points.size(); ++i) {
-    const nlohmann::json& p = points[i];
-    if (i > 0 && points[i - 1]["index"] == p["index"])
-      throw std::runtime_error("point " + p["index"].dump() + " appears twice");
-    out += p["index"].dump();
-    for (const SweepParameter& q : f.parameters) out += "," + csv_number(p["parameters"].value(q.name, nlohmann::json()));
-    out += "," + csv_field(p.value("status", "")) + "," + csv_field(p.value("structure", ""));
-    for (const MetricInfo& info : metric_table()) {
-      const nlohmann::json v = p.contains("metrics") ? p["metrics"].value(info.key, nlohmann::json()) : nlohmann::json();
-      const bool unbounded = p.contains("unbounded") && std::find(p["unbounded"].begin(), p["unbounded"].end(), info.key) != p["unbounded"].end();
-      out += "," + (unbounded ? std::string("inf") : csv_number(v));
-    }
-    out += "," + csv_number(p.value("change_decades", nlohmann::json())) + "," + csv_field(p.value("message", "")) + "\n";
+  return out + ",change_decades,message\n";
+}
+
+std::string summary_row(const SweepFile& f, const nlohmann::json& p) {
+  std::string out = p["index"].dump();
+  const nlohmann::json none;
+  const nlohmann::json& params = p.contains("parameters") ? p["parameters"] : none;
+  for (const SweepParameter& q : f.parameters) out += "," + csv_number(params.is_object() ? params.value(q.name, none) : none);
+  out += "," + csv_field(p.value("status", "")) + "," + csv_field(p.value("structure", ""));
+  for (const MetricInfo& info : metric_table()) {
+    const nlohmann::json v = p.contains("metrics") && p["metrics"].is_object() ? p["metrics"].value(info.key, none) : none;
+    const bool unbounded = p.contains("unbounded") && p["unbounded"].is_array() &&
+                           std::find(p["unbounded"].begin(), p["unbounded"].end(), info.key) != p["unbounded"].end();
+    out += "," + (unbounded ? std::string("inf") : csv_number(v));
+  }
+  return out + "," + csv_number(p.value("change_decades", none)) + "," + csv_field(p.value("message", "")) + "\n";
+}
+
+namespace {
+// Rows sorted by index; a repeated index is an error.
+std::string assemble(const SweepFile& f, std::vector<std::pair<long long, std::string>>& rows) {
+  std::stable_sort(rows.begin(), rows.end(), [](const auto& a, const auto& b) { return a.first < b.first; });
+  std::string out = summary_header(f);
+  for (size_t i = 0; i < rows.size(); ++i) {
+    if (i > 0 && rows[i - 1].first == rows[i].first)
+      throw std::runtime_error("point " + std::to_string(rows[i].first) + " appears twice");
+    out += rows[i].second;
   }
   return out;
+}
+}  // namespace
+
+std::string summary_csv(const SweepFile& f, std::vector<nlohmann::json> points) {
+  std::vector<std::pair<long long, std::string>> rows;
+  for (const nlohmann::json& p : points) rows.emplace_back(p["index"].get<long long>(), summary_row(f, p));
+  return assemble(f, rows);
 }
 
 SweepStore::SweepStore(const std::string& dir, const SweepFile& f, Shard shard, bool resume) : dir_(dir), file_(&f) {
@@ -175,11 +196,10 @@ SweepStore::SweepStore(const std::string& dir, const SweepFile& f, Shard shard, 
     write_file_atomically(header, header_json(f, shard).dump(1) + "\n");
   }
   if (has_points) {
-    const PointsScan scan = scan_points_file(points);
+    const PointsScan scan = for_each_point(points, [&](const nlohmann::json& p) { done_.insert(p["index"].get<long long>()); });
     torn_ = scan.torn;
     if (scan.torn && ::truncate(points.c_str(), static_cast<off_t>(scan.good_bytes)) != 0)
       throw std::runtime_error(points + ": cannot cut the torn last line: " + std::strerror(errno));
-    for (const nlohmann::json& p : scan.points) done_.insert(p["index"].get<long long>());
   }
   points_fd_ = ::open(points.c_str(), O_WRONLY | O_CREAT | O_APPEND | O_CLOEXEC, 0644);
   timings_fd_ = ::open((dir + "/timings.jsonl").c_str(), O_WRONLY | O_CREAT | O_APPEND | O_CLOEXEC, 0644);
@@ -214,14 +234,15 @@ void SweepStore::sync() {
 
 void SweepStore::finish() {
   sync();
-  const PointsScan scan = scan_points_file(dir_ + "/points.jsonl");
-  write_file_atomically(dir_ + "/summary.csv", summary_csv(*file_, scan.points));
+  std::vector<std::pair<long long, std::string>> rows;
+  for_each_point(dir_ + "/points.jsonl",
+                 [&](const nlohmann::json& p) { rows.emplace_back(p["index"].get<long long>(), summary_row(*file_, p)); });
+  write_file_atomically(dir_ + "/summary.csv", assemble(*file_, rows));
 }
 
 MergeResult merge_sweep_dirs(const std::vector<std::string>& dirs) {
   if (dirs.empty()) throw SpecError("DIR", "merge needs at least one sweep directory");
   nlohmann::json sweep_doc;
-  std::map<long long, nlohmann::json> points;
   for (const std::string& d : dirs) {
     const std::string header = d + "/sweep.json";
     if (!std::filesystem::exists(header)) throw SpecError(d, "is not a sweep directory (no sweep.json)");
@@ -229,24 +250,25 @@ MergeResult merge_sweep_dirs(const std::vector<std::string>& dirs) {
     if (h.is_discarded() || !h.contains("sweep")) throw SpecError(header, "is not a sweep header");
     if (sweep_doc.is_null()) sweep_doc = h["sweep"];
     else if (h["sweep"] != sweep_doc) throw SpecError(d, "holds a different sweep from " + dirs.front());
-    const PointsScan scan = scan_points_file(d + "/points.jsonl");
-    for (const nlohmann::json& p : scan.points) {
-      const long long i = p["index"].get<long long>();
-      auto it = points.find(i);
-      if (it != points.end() && it->second != p)
-        throw std::runtime_error("point " + std::to_string(i) + " differs between directories");
-      points.emplace(i, p);
-    }
   }
   const SweepFile f = parse_sweep(sweep_doc);
+  // Rows by index; a point found in two directories must agree.
+  std::map<long long, std::string> rows;
+  for (const std::string& d : dirs)
+    for_each_point(d + "/points.jsonl", [&](const nlohmann::json& p) {
+      const long long i = p["index"].get<long long>();
+      std::string row = summary_row(f, p);
+      auto it = rows.find(i);
+      if (it != rows.end() && it->second != row)
+        throw std::runtime_error("point " + std::to_string(i) + " differs between directories");
+      rows.emplace(i, std::move(row));
+    });
   MergeResult m;
   m.expected = f.point_count();
-  std::vector<nlohmann::json> list;
-  list.reserve(points.size());
-  for (auto& kv : points) list.push_back(kv.second);
+  m.csv = summary_header(f);
+  for (const auto& kv : rows) m.csv += kv.second;
   for (long long i = 0; i < m.expected; ++i)
-    if (!points.count(i)) m.missing.push_back(i);
-  m.csv = summary_csv(f, std::move(list));
+    if (!rows.count(i)) m.missing.push_back(i);
   return m;
 }
 

@@ -4,7 +4,7 @@
 # Every comparison is byte for byte against one uninterrupted one-process run.
 set -u
 bin=$1; src=$2
-sweep=$src/specs/sweep-joint-inertia.json
+sweep=$src/specs/sweeps/joint-inertia.json
 tmp=$(mktemp -d); trap 'rm -rf "$tmp"' EXIT
 pass=0; fail=0
 ok() { pass=$((pass+1)); }
@@ -53,20 +53,29 @@ same "$tmp/s2/points.jsonl" "$tmp/slurm2/points.jsonl" "SLURM_ARRAY_TASK_* do no
 SLURM_ARRAY_TASK_ID=5 SLURM_ARRAY_TASK_COUNT=3 SLURM_ARRAY_TASK_MIN=4 "$bin" sweep "$sweep" --out "$tmp/slurm2b" --threads 1 --quiet
 same "$tmp/s2/points.jsonl" "$tmp/slurm2b/points.jsonl" "SLURM_ARRAY_TASK_COUNT with a MIN offset does not select shard 2/3"
 
-# SIGKILL at ten random moments, resuming each time.
+# SIGKILL at ten random moments (50 to 250 ms into each run), resuming each time, on a larger
+# variant of the demo (150 points) so that the kills land mid-sweep.
+/usr/bin/python3 - "$sweep" "$tmp/long.json" <<'PY'
+import json, sys
+d = json.load(open(sys.argv[1]))
+d["parameters"]["k"] = {"values": [40, 45, 50, 55, 60]}
+d["parameters"]["os"]["count"] = 6
+json.dump(d, open(sys.argv[2], "w"))
+PY
+"$bin" sweep "$tmp/long.json" --out "$tmp/longref" --threads 2 --quiet || bad "long reference run exited $?"
 killed=0
 for i in $(seq 1 10); do
-  "$bin" sweep "$sweep" --out "$tmp/kill" --threads 2 --quiet --resume &
+  "$bin" sweep "$tmp/long.json" --out "$tmp/kill" --threads 2 --quiet --resume &
   pid=$!
-  sleep "0.$(( (RANDOM % 25) + 3 ))"
+  sleep "$(printf '0.%03d' $(( (RANDOM % 200) + 50 )))"
   if kill -9 "$pid" 2>/dev/null; then killed=$((killed+1)); fi
   wait "$pid" 2>/dev/null
 done
-"$bin" sweep "$sweep" --out "$tmp/kill" --threads 2 --quiet --resume || bad "final resume exited $?"
-[ "$killed" -ge 3 ] && ok || bad "only $killed of 10 runs were still running when killed"
+"$bin" sweep "$tmp/long.json" --out "$tmp/kill" --threads 2 --quiet --resume || bad "final resume exited $?"
+[ "$killed" -ge 5 ] && ok || bad "only $killed of 10 runs were still running when killed"
 echo "SIGKILL: $killed of 10 runs killed mid-sweep"
-same "$tmp/ref/summary.csv" "$tmp/kill/summary.csv" "summary.csv after ten SIGKILLs and resumes"
-same "$tmp/ref/points.jsonl" "$tmp/kill/points.jsonl" "points.jsonl after ten SIGKILLs and resumes"
+same "$tmp/longref/summary.csv" "$tmp/kill/summary.csv" "summary.csv after ten SIGKILLs and resumes"
+same "$tmp/longref/points.jsonl" "$tmp/kill/points.jsonl" "points.jsonl after ten SIGKILLs and resumes"
 
 # A torn last line (power loss mid-write) is cut and that point redone.
 mkdir -p "$tmp/torn"

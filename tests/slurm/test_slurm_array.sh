@@ -69,7 +69,7 @@ for i in $(seq 1 60); do
 done
 sinfo -h -o %t 2>/dev/null | grep -q idle || { echo "FAIL: the node never became idle"; tail -5 "$tmp/log/"*.log; exit 1; }
 
-sweep=$src/specs/sweep-joint-inertia.json
+sweep=$src/specs/sweeps/joint-inertia.json
 "$bin" sweep "$sweep" --out "$tmp/one" --threads 1 --quiet || { echo "FAIL: one-process run"; exit 1; }
 cd "$tmp/out"
 POLEWRIGHT=$bin timeout 600 sbatch --wait --array=1-3 --cpus-per-task=1 --export=ALL -o "$tmp/out/task-%a.log" \

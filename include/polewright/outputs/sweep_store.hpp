@@ -8,6 +8,7 @@
 #pragma once
 
 #include <cstdio>
+#include <functional>
 #include <set>
 #include <string>
 #include <vector>
@@ -33,6 +34,14 @@ struct PointsScan {
   bool torn = false;
 };
 PointsScan scan_points_file(const std::string& path);
+
+// The same scan without keeping the points: `each` sees every good line in file order. Returns the
+// good prefix's length and whether a torn line followed it (memory does not grow with the file).
+PointsScan for_each_point(const std::string& path, const std::function<void(const nlohmann::json&)>& each);
+
+// One summary.csv row (with its newline) and the header line.
+std::string summary_header(const SweepFile& f);
+std::string summary_row(const SweepFile& f, const nlohmann::json& point);
 
 // summary.csv text for the given point lines (sorted by index here; duplicates are an error).
 std::string summary_csv(const SweepFile& f, std::vector<nlohmann::json> points);
