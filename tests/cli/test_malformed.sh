@@ -76,5 +76,60 @@ run_case huge-file 'larger than 8 MiB' -- "$bin" check "$tmp/huge.json"
 printf '%s' "$good" >"$tmp/good.json"
 run_case design-bad-keep 'usage error' -- "$bin" design "$tmp/good.json" --keep 0
 
+# Sweep files: exit 2, one line naming the field, and no point written.
+sweep_case() {  # sweep_case NAME PATH JSON-TEXT
+  printf '%s' "$3" >"$tmp/$1.json"
+  rm -rf "$tmp/sweep-out"
+  "$bin" sweep "$tmp/$1.json" --out "$tmp/sweep-out" --quiet >/dev/null 2>"$tmp/err"; local rc=$?
+  local lines; lines=$(wc -l <"$tmp/err")
+  if [ "$rc" = 2 ] && [ "$lines" = 1 ] && grep -qF -- "$2" "$tmp/err" && [ ! -s "$tmp/sweep-out/points.jsonl" ]; then
+    pass=$((pass+1))
+  else
+    fail=$((fail+1)); echo "FAIL: $1: exit $rc, $lines line(s), want path '$2':"; cat "$tmp/err"
+  fi
+}
+base='"base": { "plant": { "numerator": ["k"], "denominator": [1, "a", 0] }, "requirements": { "overshoot_pct": { "max": 10 } }, "current": { "gain": 1 } }'
+sweep_case sweep-broken '$: invalid JSON' "{ $base, "
+sweep_case sweep-no-base '$.base: is missing' '{ "parameters": { "k": { "values": [1] } } }'
+sweep_case sweep-base-not-object '$.base: must be a spec object' '{ "base": [1], "parameters": { "k": { "values": [1] } } }'
+sweep_case sweep-no-parameters '$.parameters: is missing' "{ $base }"
+sweep_case sweep-empty-parameters '$.parameters: must be an object with at least one' "{ $base, \"parameters\": {} }"
+sweep_case sweep-unknown-key '$.sampel: unknown key (did you mean "sample"?)' "{ $base, \"parameters\": { \"k\": { \"values\": [1] }, \"a\": { \"values\": [2] } }, \"sampel\": {} }"
+sweep_case sweep-unknown-name '$.base.plant.denominator[1]: expression "a" uses the unknown name "a"' "{ $base, \"parameters\": { \"k\": { \"values\": [1] } } }"
+sweep_case sweep-bad-expression '$.base.plant.numerator[0]: expression "k*"' "{ \"base\": { \"plant\": { \"numerator\": [\"k*\"], \"denominator\": [1, 1] }, \"requirements\": {} }, \"parameters\": { \"k\": { \"values\": [1] } } }"
+sweep_case sweep-expression-nan '$.base.plant.numerator[0]: expression "sqrt(k)" is not finite' "{ \"base\": { \"plant\": { \"numerator\": [\"sqrt(k)\"], \"denominator\": [1, 1] }, \"requirements\": {} }, \"parameters\": { \"k\": { \"values\": [-1] } } }"
+sweep_case sweep-nan-value '$.parameters.k.values[0]: must be a number, not the string' "{ $base, \"parameters\": { \"k\": { \"values\": [\"NaN\"] }, \"a\": { \"values\": [2] } } }"
+sweep_case sweep-huge-value '$.parameters.k.values[0]: magnitude' "{ $base, \"parameters\": { \"k\": { \"values\": [1e308] }, \"a\": { \"values\": [2] } } }"
+sweep_case sweep-empty-values '$.parameters.k.values: must be a non-empty array' "{ $base, \"parameters\": { \"k\": { \"values\": [] }, \"a\": { \"values\": [2] } } }"
+sweep_case sweep-inverted-range '$.parameters.k.to: must be greater than from' "{ $base, \"parameters\": { \"k\": { \"from\": 5, \"to\": 1, \"count\": 3 }, \"a\": { \"values\": [2] } } }"
+sweep_case sweep-empty-range '$.parameters.k.to: must be greater than from' "{ $base, \"parameters\": { \"k\": { \"from\": 5, \"to\": 5, \"count\": 3 }, \"a\": { \"values\": [2] } } }"
+sweep_case sweep-log-negative '$.parameters.k.from: must be > 0 on a log scale' "{ $base, \"parameters\": { \"k\": { \"from\": -1, \"to\": 5, \"count\": 3, \"scale\": \"log\" }, \"a\": { \"values\": [2] } } }"
+sweep_case sweep-count-one '$.parameters.k.count' "{ $base, \"parameters\": { \"k\": { \"from\": 1, \"to\": 5, \"count\": 1 }, \"a\": { \"values\": [2] } } }"
+sweep_case sweep-no-count '$.parameters.k.count: is missing' "{ $base, \"parameters\": { \"k\": { \"from\": 1, \"to\": 5 }, \"a\": { \"values\": [2] } } }"
+sweep_case sweep-mixed-parameter '$.parameters.k.from: unknown key' "{ $base, \"parameters\": { \"k\": { \"values\": [1], \"from\": 1 }, \"a\": { \"values\": [2] } } }"
+sweep_case sweep-bad-name '$.parameters.1k: is not a usable parameter name' "{ $base, \"parameters\": { \"1k\": { \"values\": [1] }, \"k\": { \"values\": [1] }, \"a\": { \"values\": [2] } } }"
+sweep_case sweep-bad-method '$.sample.method' "{ $base, \"parameters\": { \"k\": { \"values\": [1] }, \"a\": { \"values\": [2] } }, \"sample\": { \"method\": \"random\" } }"
+sweep_case sweep-sobol-no-count '$.sample.count: is missing' "{ $base, \"parameters\": { \"k\": { \"values\": [1] }, \"a\": { \"values\": [2] } }, \"sample\": { \"method\": \"sobol\" } }"
+sweep_case sweep-grid-count '$.sample.count: is for sobol and latin' "{ $base, \"parameters\": { \"k\": { \"values\": [1] }, \"a\": { \"values\": [2] } }, \"sample\": { \"method\": \"grid\", \"count\": 5 } }"
+sweep_case sweep-too-many '$.parameters: make more than 10000000 grid points' "{ $base, \"parameters\": { \"k\": { \"from\": 1, \"to\": 2, \"count\": 5000 }, \"a\": { \"from\": 1, \"to\": 2, \"count\": 5000 } } }"
+sweep_case sweep-bad-job '$.job: must be' "{ $base, \"parameters\": { \"k\": { \"values\": [1] }, \"a\": { \"values\": [2] } }, \"job\": \"plot\" }"
+sweep_case sweep-check-no-current '$.base.current: is missing' "{ \"base\": { \"plant\": { \"numerator\": [\"k\"], \"denominator\": [1, 1] }, \"requirements\": {} }, \"parameters\": { \"k\": { \"values\": [1] } }, \"job\": \"check\" }"
+sweep_case sweep-negative-seed '$.seed' "{ $base, \"parameters\": { \"k\": { \"values\": [1] }, \"a\": { \"values\": [2] } }, \"seed\": -3 }"
+sweep_case sweep-base-typo '$.base.plant.denominatr: unknown key' "{ \"base\": { \"plant\": { \"numerator\": [\"k\"], \"denominatr\": [1, 1] }, \"requirements\": {} }, \"parameters\": { \"k\": { \"values\": [1] } } }"
+sweep_case sweep-base-improper '$.base.plant.numerator: improper plant' "{ \"base\": { \"plant\": { \"numerator\": [\"k\", 1, 1], \"denominator\": [1, 1] }, \"requirements\": {} }, \"parameters\": { \"k\": { \"values\": [1] } } }"
+sweep_case sweep-base-negative-limit '$.base.requirements.settling_time_s.max' "{ \"base\": { \"plant\": { \"numerator\": [1], \"denominator\": [1, 1] }, \"requirements\": { \"settling_time_s\": { \"max\": \"-t\" } } }, \"parameters\": { \"t\": { \"values\": [1] } } }"
+sweep_case sweep-deep '$: nesting deeper than 64' "{ \"base\": $deep$deepc, \"parameters\": {} }"
+mkdir -p "$tmp/sweepdir.json"
+rm -rf "$tmp/sweep-out"
+"$bin" sweep "$tmp/sweepdir.json" --out "$tmp/sweep-out" --quiet >/dev/null 2>"$tmp/err"
+[ $? = 2 ] && [ "$(wc -l <"$tmp/err")" = 1 ] && grep -q "is a directory" "$tmp/err" && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: sweep file that is a directory"; cat "$tmp/err"; }
+
+# Retune: the same spec checks, and a current compensator it needs.
+printf '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": {} }' >"$tmp/retune-nocur.json"
+run_case retune-no-current '$.current: is missing' -- "$bin" retune "$tmp/retune-nocur.json"
+printf '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": {}, "current": { "gain": 1, "zeros": [-1, -2] } }' >"$tmp/retune-improper.json"
+run_case retune-improper-current '$.current.zeros: improper compensator' -- "$bin" retune "$tmp/retune-improper.json"
+run_case retune-unstable-cancellation '$.current: compensator zero at 3' -- "$bin" retune "$tmp/unstable-cancellation.json"
+
 echo "$pass passed, $fail failed"
 [ "$fail" = 0 ]
