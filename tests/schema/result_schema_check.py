@@ -118,8 +118,8 @@ def undocumented(node, path="$"):
     return out
 
 
-def run_design(binary, spec, out, timing):
-    cmd = [binary, "design", str(spec), "-o", str(out), "--threads", "1"]
+def run_design(binary, spec, out, timing, job="design"):
+    cmd = [binary, job, str(spec), "-o", str(out), "--threads", "1"]
     if timing:
         cmd.append("--timing")
     try:
@@ -239,8 +239,53 @@ def main(argv):
                     ("%s" % first_error(hits)) if hits else
                     ("no error at %s%s" % (where(at), "; first " + first_error(errs) if errs else "")))
 
+    check_retune(binary, spec_schema, t)
     print("%d passed, %d failed" % (t.passed, t.failed))
     return 0 if t.failed == 0 else 1
+
+
+def check_retune(binary, spec_schema, t):
+    """specs/retune-result.schema.json: derived from the design schema (and up to date), and real
+    retune results of the demo specs (plus a loop that already meets) validate against it."""
+    path = ROOT / "specs" / "retune-result.schema.json"
+    r = subprocess.run([sys.executable, str(ROOT / "scripts" / "make_retune_schema.py"), "--check"],
+                       stdout=subprocess.PIPE, stderr=subprocess.STDOUT)
+    t.check(r.returncode == 0, "retune schema is the one derived from the design schema", r.stdout.decode().strip())
+    schema = load_json(path)
+    try:
+        Draft202012Validator.check_schema(schema)
+        t.check(True, "%s is a valid draft 2020-12 schema" % path.name)
+    except jsonschema.exceptions.SchemaError as e:
+        t.check(False, "%s is a valid draft 2020-12 schema" % path.name, e.message)
+    validator = make_validator(schema, spec_schema)
+    met_spec = {"plant": {"gain": 4, "poles": [0, -2]},
+                "requirements": {"damping_ratio": {"min": 0.48}, "natural_frequency_rad_s": {"min": 3.9}},
+                "current": {"gain": 4.68, "zeros": [-2.9], "poles": [-5.4]}}
+    sample = None
+    with tempfile.TemporaryDirectory(prefix="pw-retune-schema-") as tmp:
+        tmp = Path(tmp)
+        (tmp / "met.json").write_text(json.dumps(met_spec))
+        for spec, label in [(ROOT / "specs" / d, d[:-5]) for d in DEMOS] + [(tmp / "met.json", "already-met")]:
+            out = tmp / (label + ".retune.json")
+            rc, err = run_design(binary, spec, out, False, job="retune")
+            if not t.check(rc in (EXIT_MET, EXIT_NOT_MET) and out.is_file(), "retune %s ran" % label,
+                           "exit %s: %s" % (rc, err)):
+                continue
+            result = load_json(out)
+            errs = errors_of(validator, result)
+            t.check(not errs, "retune %s: result validates" % label,
+                    ("%d error(s); first %s" % (len(errs), first_error(errs))) if errs else "")
+            if label == "already-met":
+                t.check(result.get("unchanged") is True and rc == EXIT_MET, "retune of a loop that meets is unchanged")
+            elif not errs and result.get("candidates") and sample is None:
+                sample = result
+    if sample is not None:
+        broken = copy.deepcopy(sample)
+        del broken["candidates"][0]["changes"]
+        t.check(bool(errors_of(validator, broken)), "a retune candidate without its changes is rejected")
+        broken = copy.deepcopy(sample)
+        broken["candidates"][0]["changes"][0]["item"] = "corner"
+        t.check(bool(errors_of(validator, broken)), "a change of an unknown item is rejected")
 
 
 if __name__ == "__main__":
