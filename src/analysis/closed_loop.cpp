@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 
 #include "polewright/analysis/eigen.hpp"
 #include "polewright/model/pade.hpp"
@@ -136,7 +137,63 @@ Complex residue_at(Complex s, double gain, const Roots& zeros, const Roots* zero
   return acc;
 }
 
+// Relative residual |1 + q| / (1 + |q|) of the characteristic equation at s, with q = k L(s), and
+// the Newton step for D(s) + k K N(s) = 0: (1 + q) / (sum 1/(s - p) + q sum 1/(s - z)).
+// False when s sits exactly on a root of L.
+bool newton_on_loop(Complex s, const Zpk& L, double k, double& residual, Complex& step) {
+  Complex q(k * L.gain, 0.0), sp(0.0, 0.0), sz(0.0, 0.0);
+  const size_t n = std::max(L.zeros.size(), L.poles.size());
+  for (size_t i = 0; i < n; ++i) {
+    if (i < L.zeros.size()) {
+      const Complex d = s - L.zeros[i];
+      if (d == Complex(0.0, 0.0)) return false;
+      q *= d;
+      sz += 1.0 / d;
+    }
+    if (i < L.poles.size()) {
+      const Complex d = s - L.poles[i];
+      if (d == Complex(0.0, 0.0)) return false;
+      q /= d;
+      sp += 1.0 / d;
+    }
+  }
+  const Complex den = sp + q * sz;
+  if (!std::isfinite(std::abs(q)) || std::abs(den) == 0.0) return false;
+  residual = std::abs(1.0 + q) / (1.0 + std::abs(q));
+  step = (1.0 + q) / den;
+  return std::isfinite(residual) && std::isfinite(std::abs(step));
+}
+
 }  // namespace
+
+CVec polish_closed_loop_poles(const CVec& values, const Zpk& L, double k) {
+  CVec out = values;
+  const int n = static_cast<int>(values.size());
+  for (int i = 0; i < n; ++i) {
+    double sep = INFINITY;
+    for (int j = 0; j < n; ++j)
+      if (j != i) sep = std::min(sep, std::abs(values(i) - values(j)));
+    Complex s = values(i);
+    double res = 0.0;
+    Complex step;
+    if (!newton_on_loop(s, L, k, res, step)) continue;
+    for (int it = 0; it < 6 && res > 0.0; ++it) {
+      // Only a small step is trusted: a larger one means the pole is not isolated (a cluster),
+      // where the eigenvalues are right as a set and Newton would pull them apart or together.
+      if (!(std::abs(step) < 0.1 * sep)) break;
+      const Complex cand = s - step;
+      double cres = 0.0;
+      Complex cstep;
+      if (!newton_on_loop(cand, L, k, cres, cstep) || !(cres < res)) break;
+      s = cand;
+      res = cres;
+      step = cstep;
+      if (std::abs(step) <= 4.0 * std::numeric_limits<double>::epsilon() * std::abs(s)) break;
+    }
+    out(i) = values(i).imag() == 0.0 ? Complex(s.real(), 0.0) : s;
+  }
+  return out;
+}
 
 PoleAnalysis analyze_poles(const ClosedLoop& loop, double threshold) {
   PoleAnalysis out;
@@ -175,7 +232,9 @@ PoleAnalysis analyze_poles(const ClosedLoop& loop, const LoopParts& parts, doubl
   const Zpk& L = parts.loop_rational;
   if (n == 0 || static_cast<int>(L.poles.size()) != n) return analyze_poles(loop, threshold);
   PoleAnalysis out;
-  const CVec values = eigenvalues_balanced(loop.A);
+  // Eigenvalues of the balanced closed-loop matrix, refined on the factored characteristic
+  // equation: the matrix of a high-order loop can lose digits the factored form still has.
+  const CVec values = polish_closed_loop_poles(eigenvalues_balanced(loop.A), L, k);
   out.stable = all_stable(values);
   // Closed-loop denominator D + k N: monic unless the loop is biproper.
   const double lead = L.relative_degree() == 0 ? 1.0 + k * L.gain : 1.0;
