@@ -139,29 +139,43 @@ Complex residue_at(Complex s, double gain, const Roots& zeros, const Roots* zero
 
 // Relative residual |1 + q| / (1 + |q|) of the characteristic equation at s, with q = k L(s), and
 // the Newton step for D(s) + k K N(s) = 0: (1 + q) / (sum 1/(s - p) + q sum 1/(s - z)).
-// False when s sits exactly on a root of L.
+// False when s sits exactly on a root of L. Plain real arithmetic (std::complex multiply and
+// divide go through the slow C99 Annex G helpers; this runs on the search's hot path).
 bool newton_on_loop(Complex s, const Zpk& L, double k, double& residual, Complex& step) {
-  Complex q(k * L.gain, 0.0), sp(0.0, 0.0), sz(0.0, 0.0);
+  const double sr = s.real(), si = s.imag();
+  double qr = k * L.gain, qi = 0.0;          // q
+  double pr = 0.0, pi = 0.0, zr = 0.0, zi = 0.0;  // sum 1/(s - p), sum 1/(s - z)
   const size_t n = std::max(L.zeros.size(), L.poles.size());
   for (size_t i = 0; i < n; ++i) {
     if (i < L.zeros.size()) {
-      const Complex d = s - L.zeros[i];
-      if (d == Complex(0.0, 0.0)) return false;
-      q *= d;
-      sz += 1.0 / d;
+      const double dr = sr - L.zeros[i].real(), di = si - L.zeros[i].imag();
+      const double m = dr * dr + di * di;
+      if (m == 0.0) return false;
+      const double t = qr * dr - qi * di;
+      qi = qr * di + qi * dr;
+      qr = t;
+      zr += dr / m;
+      zi -= di / m;
     }
     if (i < L.poles.size()) {
-      const Complex d = s - L.poles[i];
-      if (d == Complex(0.0, 0.0)) return false;
-      q /= d;
-      sp += 1.0 / d;
+      const double dr = sr - L.poles[i].real(), di = si - L.poles[i].imag();
+      const double m = dr * dr + di * di;
+      if (m == 0.0) return false;
+      const double t = (qr * dr + qi * di) / m;
+      qi = (qi * dr - qr * di) / m;
+      qr = t;
+      pr += dr / m;
+      pi -= di / m;
     }
   }
-  const Complex den = sp + q * sz;
-  if (!std::isfinite(std::abs(q)) || std::abs(den) == 0.0) return false;
-  residual = std::abs(1.0 + q) / (1.0 + std::abs(q));
-  step = (1.0 + q) / den;
-  return std::isfinite(residual) && std::isfinite(std::abs(step));
+  const double qm = std::hypot(qr, qi);
+  const double fr = 1.0 + qr, fi = qi;                       // 1 + q
+  const double gr = pr + qr * zr - qi * zi, gi = pi + qr * zi + qi * zr;  // P + q Z
+  const double gm = gr * gr + gi * gi;
+  if (!std::isfinite(qm) || !(gm > 0.0) || !std::isfinite(gm)) return false;
+  residual = std::hypot(fr, fi) / (1.0 + qm);
+  step = Complex((fr * gr + fi * gi) / gm, (fi * gr - fr * gi) / gm);
+  return std::isfinite(residual) && std::isfinite(step.real()) && std::isfinite(step.imag());
 }
 
 }  // namespace
@@ -170,13 +184,15 @@ CVec polish_closed_loop_poles(const CVec& values, const Zpk& L, double k) {
   CVec out = values;
   const int n = static_cast<int>(values.size());
   for (int i = 0; i < n; ++i) {
-    double sep = INFINITY;
-    for (int j = 0; j < n; ++j)
-      if (j != i) sep = std::min(sep, std::abs(values(i) - values(j)));
     Complex s = values(i);
     double res = 0.0;
     Complex step;
     if (!newton_on_loop(s, L, k, res, step)) continue;
+    // A residual at rounding level leaves nothing to gain (the common, well-conditioned case).
+    if (res <= 1e-13) continue;
+    double sep = INFINITY;
+    for (int j = 0; j < n; ++j)
+      if (j != i) sep = std::min(sep, std::abs(values(i) - values(j)));
     for (int it = 0; it < 6 && res > 0.0; ++it) {
       // Only a small step is trusted: a larger one means the pole is not isolated (a cluster),
       // where the eigenvalues are right as a set and Newton would pull them apart or together.
