@@ -36,7 +36,8 @@ With a dead time the grid stops where |L| has fallen below 1e-4 for good: any ph
 beyond gives a gain margin above 80 dB and cannot be the nearest one.
 
 Tolerances (stated per case in the fixture, with the reason):
-  * closed-loop poles: relative error <= max(1e-8, 1e3 eps kappa) per pole, where kappa is the
+  * closed-loop poles: relative error <= max(1e-8, 1e3 eps kappa) per pole (10 eps^(1/m) for m
+    closed-loop poles within 1e-6 of one another: a multiple root), where kappa is the
     structured condition number of that pole with respect to relative perturbations of every
     open-loop root and the gain (for a plant given as coefficients: of every coefficient),
         kappa = (sum |r_i| / |l - r_i| + 1) / (|l| |sum 1/(l - p_i) - sum 1/(l - z_j)|).
@@ -205,6 +206,16 @@ def build_cases():
                 "compensator gain 0.02 (resonance peak 2.5^4 = 39: |L| stays below 1, GM only)",
         "plant": {"gain": unit_dc_gain([], p4, 1.0), "poles": p4},
         "compensator": {"gain": 0.02},
+    })
+
+    # A closed-loop double pole (critical damping): s^2 + 2 s + 1 = (s + 1)^2.
+    cases.append({
+        "name": "closed_loop_double_pole",
+        "what": "1/(s(s+2)) with gain 1: the closed loop s^2 + 2s + 1 = (s+1)^2 has a double pole at -1 "
+                "(by hand), determined only to about sqrt(eps) = 1.5e-8 relative by any realisation",
+        "plant": {"gain": 1.0, "poles": [0.0, -2.0]},
+        "compensator": {"gain": 1.0},
+        "analytic_poles": [[-1.0, 0.0], [-1.0, 0.0]],
     })
 
     # Stable near cancellation: compensator zero 1e-6 relative from a stable plant pole.
@@ -663,6 +674,10 @@ def analyse(case):
     problems = []
     eig, pol, kappa, (K, zs, ps), (kg, zg, pg) = closed_loop_poles(case)
     tol = np.maximum(1e-8, 1e3 * EPS * kappa)
+    # m closed-loop poles within 1e-6 of one another: a perturbed m-fold root, fixed only to about
+    # eps^(1/m) relative (first-order kappa means nothing there): tolerance 10 eps^(1/m).
+    mult = np.array(multiplicity_clusters(pol, 1e-6))
+    tol = np.where(mult > 1, 10.0 * EPS ** (1.0 / np.maximum(mult, 1)), tol)
     route_dev = np.abs(eig - pol) / np.abs(pol)
     stable = bool(np.all(pol.real < 0))
     if case.get("expect_unstable"):
@@ -679,17 +694,17 @@ def analyse(case):
         an = np.concatenate([an, an.conj()]) if an.size * 2 == pol.size else an
         d = max(min(abs(p - a) / abs(a) for p in pol) for a in an)
         entry["analytic_pole_deviation"] = float(d)
-        if d > 1e-12:
+        if d > max(1e-12, float(np.max(tol)) / 10):
             problems.append("analytic poles disagree: %.2e" % d)
     order = np.lexsort((pol.imag, pol.real))
     entry["expected"] = {
         "stable": stable,
         "closed_loop_poles": [[float(pol[i].real), float(pol[i].imag)] for i in order],
         "pole_tolerance_rel": [float(tol[i]) for i in order],
-        "pole_condition": [float(kappa[i]) for i in order],
+        "pole_condition": [float(kappa[i]) if math.isfinite(kappa[i]) else None for i in order],
     }
     entry["details"] = {"eigen_vs_newton_max_rel": float(route_dev.max()),
-                        "max_pole_condition": float(kappa.max())}
+                        "max_pole_condition": float(kappa.max()) if math.isfinite(kappa.max()) else None}
 
     # open-loop plant poles with their tolerance
     tol_ol = []
@@ -746,7 +761,7 @@ def main():
         if e:
             print("%-32s %5.1fs stable=%s poles=%d max_kappa=%.3g eig_vs_newton=%.2e PM=%s GM=%s (inc %s red %s) wc=%s"
                   % (entry["name"], time.time() - t1, e["stable"], len(e["closed_loop_poles"]),
-                     entry["details"]["max_pole_condition"], entry["details"]["eigen_vs_newton_max_rel"],
+                     entry["details"]["max_pole_condition"] or math.inf, entry["details"]["eigen_vs_newton_max_rel"],
                      _f(e["phase_margin_deg"]), _f(e["gain_margin_db"]), _f(e["gain_increase_db"]),
                      _f(e["gain_reduction_db"]), _f(e["crossover_rad_s"])))
         else:
