@@ -186,6 +186,7 @@ def build_cases():
         "plant": {"numerator": [256.0], "denominator": poly_exact([-2.0] * 8)},
         "compensator": {"gain": 1.2},
         "expect_warning": "$.plant.denominator: a cluster of 8 roots",
+        "design": True,
         "analytic_poles": [[-2.0 + 2.0 * 1.2 ** 0.125 * math.cos(math.pi * (2 * k + 1) / 8),
                             2.0 * 1.2 ** 0.125 * math.sin(math.pi * (2 * k + 1) / 8)] for k in range(8)],
     })

@@ -45,6 +45,10 @@ DESIGN_SETTINGS = {
         "requirements": {"phase_margin_deg": {"min": 30}, "gain_margin_db": {"min": 6}},
         "stages": {"lead": 2, "frequency_range_rad_s": [0.01, 100]},
     },
+    "repeated8_coefficients": {
+        "requirements": {"phase_margin_deg": {"min": 45}, "gain_margin_db": {"min": 6}},
+        "stages": {"lead": 1, "frequency_range_rad_s": [0.01, 100]},
+    },
     "dead_time_20tau_PI": {
         "requirements": {"phase_margin_deg": {"min": 45}, "gain_margin_db": {"min": 6},
                          "steady_state_error": {"max": 0.0}},
@@ -170,6 +174,11 @@ def design_case(binary, case, tmp, fails, ref):
     doc = parse_json("design JSON", js, fails)
     if doc is None:
         return "error"
+    warn = case["expect"].get("warning")
+    if warn and not any(warn in w for w in doc.get("warnings", [])):
+        fails.append("design result lacks the warning %r" % warn)
+    if not warn and doc.get("warnings"):
+        fails.append("unexpected design warnings: %s" % doc["warnings"])
     if (rc == 0) != (doc["status"] == "met"):
         fails.append("design exit code %d disagrees with status %s" % (rc, doc["status"]))
     for c in doc["candidates"]:
