@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 
 #include "polewright/analysis/eigen.hpp"
 #include "polewright/model/pade.hpp"
@@ -136,7 +137,79 @@ Complex residue_at(Complex s, double gain, const Roots& zeros, const Roots* zero
   return acc;
 }
 
+// Relative residual |1 + q| / (1 + |q|) of the characteristic equation at s, with q = k L(s), and
+// the Newton step for D(s) + k K N(s) = 0: (1 + q) / (sum 1/(s - p) + q sum 1/(s - z)).
+// False when s sits exactly on a root of L. Plain real arithmetic (std::complex multiply and
+// divide go through the slow C99 Annex G helpers; this runs on the search's hot path).
+bool newton_on_loop(Complex s, const Zpk& L, double k, double& residual, Complex& step) {
+  const double sr = s.real(), si = s.imag();
+  double qr = k * L.gain, qi = 0.0;          // q
+  double pr = 0.0, pi = 0.0, zr = 0.0, zi = 0.0;  // sum 1/(s - p), sum 1/(s - z)
+  const size_t n = std::max(L.zeros.size(), L.poles.size());
+  for (size_t i = 0; i < n; ++i) {
+    if (i < L.zeros.size()) {
+      const double dr = sr - L.zeros[i].real(), di = si - L.zeros[i].imag();
+      const double m = dr * dr + di * di;
+      if (m == 0.0) return false;
+      const double t = qr * dr - qi * di;
+      qi = qr * di + qi * dr;
+      qr = t;
+      zr += dr / m;
+      zi -= di / m;
+    }
+    if (i < L.poles.size()) {
+      const double dr = sr - L.poles[i].real(), di = si - L.poles[i].imag();
+      const double m = dr * dr + di * di;
+      if (m == 0.0) return false;
+      const double t = (qr * dr + qi * di) / m;
+      qi = (qi * dr - qr * di) / m;
+      qr = t;
+      pr += dr / m;
+      pi -= di / m;
+    }
+  }
+  const double qm = std::hypot(qr, qi);
+  const double fr = 1.0 + qr, fi = qi;                       // 1 + q
+  const double gr = pr + qr * zr - qi * zi, gi = pi + qr * zi + qi * zr;  // P + q Z
+  const double gm = gr * gr + gi * gi;
+  if (!std::isfinite(qm) || !(gm > 0.0) || !std::isfinite(gm)) return false;
+  residual = std::hypot(fr, fi) / (1.0 + qm);
+  step = Complex((fr * gr + fi * gi) / gm, (fi * gr - fr * gi) / gm);
+  return std::isfinite(residual) && std::isfinite(step.real()) && std::isfinite(step.imag());
+}
+
 }  // namespace
+
+CVec polish_closed_loop_poles(const CVec& values, const Zpk& L, double k) {
+  CVec out = values;
+  const int n = static_cast<int>(values.size());
+  for (int i = 0; i < n; ++i) {
+    Complex s = values(i);
+    double res = 0.0;
+    Complex step;
+    if (!newton_on_loop(s, L, k, res, step)) continue;
+    // A residual at rounding level leaves nothing to gain (the common, well-conditioned case).
+    if (res <= 1e-13) continue;
+    double sep = INFINITY;
+    for (int j = 0; j < n; ++j)
+      if (j != i) sep = std::min(sep, std::abs(values(i) - values(j)));
+    for (int it = 0; it < 6 && res > 0.0; ++it) {
+      // Only a small step is trusted: a larger one means the pole is not isolated (a cluster),
+      // where the eigenvalues are right as a set and Newton would pull them apart or together.
+      if (!(std::abs(step) < 0.1 * sep)) break;
+      const Complex cand = s - step;
+      double cres = 0.0;
+      Complex cstep;
+      if (!newton_on_loop(cand, L, k, cres, cstep) || !(cres < res)) break;
+      s = cand;
+      res = cres;
+      step = cstep;
+      if (std::abs(step) <= 4.0 * std::numeric_limits<double>::epsilon() * std::abs(s)) break;
+    }
+    out(i) = values(i).imag() == 0.0 ? Complex(s.real(), 0.0) : s;
+  }
+  return out;
+}
 
 PoleAnalysis analyze_poles(const ClosedLoop& loop, double threshold) {
   PoleAnalysis out;
@@ -175,7 +248,9 @@ PoleAnalysis analyze_poles(const ClosedLoop& loop, const LoopParts& parts, doubl
   const Zpk& L = parts.loop_rational;
   if (n == 0 || static_cast<int>(L.poles.size()) != n) return analyze_poles(loop, threshold);
   PoleAnalysis out;
-  const CVec values = eigenvalues_balanced(loop.A);
+  // Eigenvalues of the balanced closed-loop matrix, refined on the factored characteristic
+  // equation: the matrix of a high-order loop can lose digits the factored form still has.
+  const CVec values = polish_closed_loop_poles(eigenvalues_balanced(loop.A), L, k);
   out.stable = all_stable(values);
   // Closed-loop denominator D + k N: monic unless the loop is biproper.
   const double lead = L.relative_degree() == 0 ? 1.0 + k * L.gain : 1.0;

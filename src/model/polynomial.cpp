@@ -4,6 +4,7 @@
 #include <cmath>
 
 #include "polewright/analysis/eigen.hpp"
+#include "polewright/model/root_accuracy.hpp"
 
 namespace pw {
 
@@ -136,7 +137,12 @@ Roots poly_roots(const Poly& p_in) {
   for (int i = 1; i < n; ++i) comp(i, i - 1) = 1.0;
   const CVec ev = eigenvalues_balanced(comp);
   Roots found;
-  for (int i = 0; i < n; ++i) found.push_back(polish_root(p, ev(i)));
+  for (int i = 0; i < n; ++i) found.push_back(ev(i));
+  // Polish only isolated roots: the eigenvalues of a cluster (a repeated root perturbed by
+  // rounding) are right as a set, and polishing them one by one moves the cluster.
+  const std::vector<bool> isolated = isolated_roots(p, found);
+  for (int i = 0; i < n; ++i)
+    if (isolated[static_cast<size_t>(i)]) found[static_cast<size_t>(i)] = polish_root(p, found[static_cast<size_t>(i)]);
   for (const Complex& r : make_conjugate_symmetric(found)) out.push_back(r);
   return make_conjugate_symmetric(out);
 }

@@ -169,6 +169,7 @@ nlohmann::json check_report_json(const CheckReport& r) {
   j["analysis"] = {{"pade_order", r.analysis.pade_order},
                    {"residue_share", json_number(r.analysis.residue_share)},
                    {"settling_band", json_number(r.requirements.settling_band)}};
+  j["warnings"] = r.warnings;
   j["spec"] = r.spec_document;
   j["cautions"] = kCautions;
   return j;

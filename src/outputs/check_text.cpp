@@ -26,7 +26,9 @@ std::string check_report_text(const CheckReport& r) {
   out += "compensator  C(s) = " + zpk_to_string(r.compensator) + "\n";
   out += "plants       " + std::to_string(r.plants.size()) + " (nominal";
   if (r.plants.size() > 1) out += " + " + std::to_string(r.plants.size() - 1) + " variants";
-  out += ")\n\n";
+  out += ")\n";
+  for (const std::string& w : r.warnings) out += "warning      " + w + "\n";
+  out += "\n";
 
   TextTable t({"requirement", "limit", "worst value", "margin", "met", "worst plant"});
   int missed = 0;

@@ -92,6 +92,7 @@ nlohmann::json design_report_json(const DesignReport& r, bool include_timing) {
                       {"requirement", l.requirement.empty() ? nlohmann::json(nullptr) : nlohmann::json(l.requirement)},
                       {"message", l.message}});
   j["limits"] = limits;
+  j["warnings"] = conditioning_warnings(r.spec_document);
   j["search"] = {{"evaluations", r.summary.evaluations}, {"seed", r.summary.seed},
                  {"structures_searched", r.summary.structures_searched}, {"local_runs", r.summary.local_runs},
                  {"budget_stop", r.summary.budget_stop}};

@@ -1,5 +1,6 @@
 #include <cmath>
 
+#include "polewright/jobs/check.hpp"
 #include "polewright/outputs/design_output.hpp"
 #include "polewright/outputs/json_values.hpp"
 #include "polewright/outputs/text_table.hpp"
@@ -40,7 +41,9 @@ std::string worst_violation(const Candidate& c) {
 std::string design_report_text(const DesignReport& r) {
   std::string out = "polewright design" + (r.spec_name.empty() ? std::string() : ": " + r.spec_name) + "\n";
   out += "objective " + std::string(objective_name(r.objective)) + ", corners within " + fmt_number(r.frequency_range.first) +
-         " .. " + fmt_number(r.frequency_range.second) + " rad/s, " + std::to_string(r.plants.size()) + " plant(s)\n\n";
+         " .. " + fmt_number(r.frequency_range.second) + " rad/s, " + std::to_string(r.plants.size()) + " plant(s)\n";
+  for (const std::string& w : conditioning_warnings(r.spec_document)) out += "warning " + w + "\n";
+  out += "\n";
   std::vector<std::string> header = {"rank", "structure", "gain", "zeros", "poles"};
   std::vector<MetricId> shown;
   for (const Requirement& q : r.requirements.items)

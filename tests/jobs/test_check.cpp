@@ -28,3 +28,43 @@ TEST_CASE("an unstable pole cancelled by a compensator zero is an error", "[jobs
   c.zeros = {Complex(-1, 0)};  // a stable cancellation is allowed
   CHECK_NOTHROW(check_cancellations(c, g, "$.current"));
 }
+
+TEST_CASE("the cancellation test is relative and does not depend on the time unit", "[jobs][check][stress]") {
+  // The same loop in seconds and in units 1e4 times faster must be judged alike (scaling s).
+  for (double unit : {1e-4, 1.0, 1e4}) {
+    Plant g;
+    g.tf.gain = 1;
+    g.tf.poles = {Complex(2 * unit, 0), Complex(-5 * unit, 0)};
+    Zpk c;
+    c.poles = {Complex(-100 * unit, 0)};
+    c.zeros = {Complex(2 * unit * (1 + 1e-9), 0)};  // within 1e-6 relative: a cancellation
+    CHECK_THROWS_WITH(check_cancellations(c, g, "$.current"), Catch::Contains("cancels"));
+    c.zeros = {Complex(2 * unit * (1 + 1e-4), 0)};  // 1e-4 away: no cancellation, the loop is
+    CHECK_NOTHROW(check_cancellations(c, g, "$.current"));  // judged (unstable) on its poles
+  }
+  // An integrator (p = 0) is measured against the loop's frequency scale (geometric mean of the
+  // non-zero root magnitudes, here 1e-4): a zero at 1e-11 cancels it, one at 1e-8 does not.
+  Plant g;
+  g.tf.poles = {Complex(0, 0), Complex(-1e-4, 0)};
+  Zpk c;
+  c.poles = {Complex(-1e-4, 0)};
+  c.zeros = {Complex(-1e-11, 0)};
+  CHECK_THROWS_WITH(check_cancellations(c, g, "$.current"), Catch::Contains("cancels"));
+  c.zeros = {Complex(-1e-8, 0)};
+  CHECK_NOTHROW(check_cancellations(c, g, "$.current"));
+}
+
+TEST_CASE("conditioning_warnings names a repeated root given as coefficients", "[jobs][check][stress]") {
+  // (s + 2)^8 expanded (binomial coefficients times powers of 2): an 8-fold root, fixed by the
+  // coefficients only to about eps^(1/8) = 1.1e-2 relative.
+  nlohmann::json doc = {{"plant", {{"numerator", {256}}, {"denominator", {1, 16, 112, 448, 1120, 1792, 1792, 1024, 256}}}},
+                        {"current", {{"gain", 1.2}}}};
+  const std::vector<std::string> w = conditioning_warnings(doc);
+  REQUIRE(w.size() == 1);
+  CHECK_THAT(w[0], Catch::Contains("$.plant.denominator") && Catch::Contains("8 roots"));
+  // The same plant as eight equal poles is exact: no warning; nor for a well-conditioned cubic.
+  doc["plant"] = {{"gain", 256}, {"poles", {-2, -2, -2, -2, -2, -2, -2, -2}}};
+  CHECK(conditioning_warnings(doc).empty());
+  doc["plant"] = {{"numerator", {6}}, {"denominator", {1, 6, 11, 6}}};
+  CHECK(conditioning_warnings(doc).empty());
+}

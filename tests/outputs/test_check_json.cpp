@@ -70,3 +70,19 @@ TEST_CASE("pole list and gain interval JSON", "[outputs][check_output]") {
   g.hi = 1.5;
   CHECK(gain_interval_json(g) == nlohmann::json({0.5, 1.5}));
 }
+
+TEST_CASE("check JSON and text carry the conditioning warnings", "[outputs][check_json][stress]") {
+  // (s + 2)^8 expanded into coefficients: an 8-fold root the coefficients fix only to about
+  // eps^(1/8) = 1.1e-2 relative (closed form).
+  const nlohmann::json doc = {
+      {"plant", {{"numerator", {256}}, {"denominator", {1, 16, 112, 448, 1120, 1792, 1792, 1024, 256}}}},
+      {"requirements", {{"phase_margin_deg", {{"min", 30}}}}},
+      {"current", {{"gain", 1.2}}}};
+  const Spec spec = parse_spec(doc);
+  const CheckReport r = run_check(spec, *spec.current);
+  const nlohmann::json j = check_report_json(r);
+  REQUIRE(j.at("warnings").size() == 1);
+  CHECK(j.at("warnings").at(0).get<std::string>().find("$.plant.denominator") != std::string::npos);
+  CHECK(check_report_text(r).find("warning      $.plant.denominator") != std::string::npos);
+  CHECK(check_report_json(demo("wafer-stage.json")).at("warnings").empty());
+}

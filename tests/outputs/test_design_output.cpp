@@ -32,3 +32,15 @@ TEST_CASE("design JSON and text carry the documented fields", "[outputs][design_
   CHECK(t.find("evaluations in") != std::string::npos);
   CHECK_FALSE(std::regex_search(t, std::regex("\\b(nan|inf)\\b")));
 }
+
+TEST_CASE("design JSON and text carry the conditioning warnings of the spec", "[outputs][design_output][stress]") {
+  // An 8-fold root given as coefficients, (s + 2)^8 expanded (binomial coefficients, by hand).
+  DesignReport r;
+  r.spec_document = {{"plant", {{"numerator", {256}}, {"denominator", {1, 16, 112, 448, 1120, 1792, 1792, 1024, 256}}}}};
+  const nlohmann::json j = design_report_json(r, false);
+  REQUIRE(j.at("warnings").size() == 1);
+  CHECK(j.at("warnings").at(0).get<std::string>().find("8 roots") != std::string::npos);
+  CHECK(design_report_text(r).find("warning $.plant.denominator") != std::string::npos);
+  r.spec_document = {{"plant", {{"gain", 256}, {"poles", {-2, -2, -2, -2, -2, -2, -2, -2}}}}};
+  CHECK(design_report_json(r, false).at("warnings").empty());
+}

@@ -75,6 +75,12 @@ PoleAnalysis analyze_poles(const ClosedLoop& loop, double residue_share_threshol
 PoleAnalysis analyze_poles(const ClosedLoop& loop, const LoopParts& parts, double gain_scale,
                            double residue_share_threshold);
 
+// Refines closed-loop poles (eigenvalues of the loop closed with gain_scale k) by Newton steps on
+// D(s) + k K N(s) = 0 with L = K N / D in factored form, keeping a step only when it lowers the
+// relative residual |1 + kL| / (1 + |kL|) and is below a tenth of the distance to the nearest other
+// pole (clustered poles are left as the eigen-solver gave them). Real values stay real.
+CVec polish_closed_loop_poles(const CVec& values, const Zpk& loop_rational, double gain_scale);
+
 // Just the eigenvalues (balanced), for cheap stability screening.
 CVec closed_loop_eigenvalues(const ClosedLoop& loop);
 

@@ -25,11 +25,22 @@ struct CheckReport {
   AnalysisOptions analysis;
   Evaluation evaluation;
   Locus locus;  // of the nominal loop
+  // Problems the numbers cannot hide, e.g. polynomial roots the coefficients fix only loosely.
+  std::vector<std::string> warnings;
 };
 
 // Throws SpecError when the loop cancels an unstable plant pole with a compensator zero (the loop
-// would look stable while an internal signal grows).
+// would look stable while an internal signal grows), or an unstable compensator pole with a plant
+// zero. A root p with Re p >= 0 counts as cancelled by a root q of the other block when
+// |q - p| <= 1e-6 |p|, or, for p at the origin, 1e-6 times the frequency scale of p's block (the
+// geometric mean of its non-zero root magnitudes; the other block's when it has none): the test
+// does not depend on the time unit.
 void check_cancellations(const Zpk& compensator, const Plant& plant, const std::string& path);
+
+// Conditioning warnings for the transfer functions of a spec document given as coefficients
+// (`$.plant`, its variants, `$.current`): a root the coefficients determine to worse than 1e-6
+// relative (root_accuracy), with the JSON path of the coefficient array.
+std::vector<std::string> conditioning_warnings(const nlohmann::json& spec_document);
 
 CheckReport run_check(const Spec& spec, const Zpk& compensator, const CheckOptions& options = {});
 

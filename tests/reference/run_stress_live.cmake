@@ -1,0 +1,15 @@
+# Regenerates the numerical stress fixture with numpy/scipy and runs the stress comparison on it.
+# Skips (exit 77) when Debian's python3 with scipy is not installed.
+execute_process(COMMAND ${PYTHON} -c "import numpy, scipy" RESULT_VARIABLE have_scipy OUTPUT_QUIET ERROR_QUIET)
+if(NOT have_scipy EQUAL 0)
+  message("python3-scipy is not installed: skipping the live stress comparison")
+  cmake_language(EXIT 77)
+endif()
+execute_process(COMMAND ${PYTHON} ${SCRIPT} -o ${OUT} RESULT_VARIABLE rc)
+if(NOT rc EQUAL 0)
+  message(FATAL_ERROR "make_stress_fixture.py failed (${rc})")
+endif()
+execute_process(COMMAND ${PYTHON} ${RUNNER} ${BINARY} ${OUT} --no-design RESULT_VARIABLE rc)
+if(NOT rc EQUAL 0)
+  message(FATAL_ERROR "polewright disagrees with the live numpy/scipy stress reference")
+endif()
