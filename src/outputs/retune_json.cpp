@@ -1,3 +1,4 @@
+#include "polewright/jobs/check.hpp"
 #include "polewright/outputs/check_output.hpp"
 #include "polewright/outputs/design_output.hpp"
 #include "polewright/outputs/json_values.hpp"
@@ -36,6 +37,7 @@ nlohmann::json retune_report_json(const RetuneReport& r, bool include_timing) {
   j["name"] = r.spec_name;
   j["status"] = r.met() ? "met" : "not_met";
   j["unchanged"] = r.already_met;
+  j["warnings"] = conditioning_warnings(r.spec_document);
   j["region"] = region_json(r.region);
   j["frequency_range_rad_s"] = {json_number(r.frequency_range.first), json_number(r.frequency_range.second)};
   nlohmann::json plants = nlohmann::json::array();

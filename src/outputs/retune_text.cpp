@@ -1,5 +1,6 @@
 #include <algorithm>
 
+#include "polewright/jobs/check.hpp"
 #include "polewright/outputs/design_output.hpp"
 #include "polewright/outputs/json_values.hpp"
 #include "polewright/outputs/retune_output.hpp"
@@ -31,6 +32,7 @@ std::string change_table(const RetuneCandidate& rc) {
 
 std::string retune_report_text(const RetuneReport& r) {
   std::string out = "polewright retune" + (r.spec_name.empty() ? std::string() : ": " + r.spec_name) + "\n";
+  for (const std::string& w : conditioning_warnings(r.spec_document)) out += "warning " + w + "\n";
   const Candidate& cur = r.current;
   out += "in service: " + zpk_to_string(cur.compensator) + "  (" + candidate_verdict(cur) + ")\n\n";
   if (r.already_met) {
