@@ -1,0 +1,177 @@
+#include <catch2/catch.hpp>
+
+#include <regex>
+#include <vector>
+
+#include "polewright/jobs/check.hpp"
+#include "polewright/outputs/check_output.hpp"
+#include "polewright/outputs/json_values.hpp"
+#include "polewright/outputs/report.hpp"
+#include "polewright/requirements/spec_parse.hpp"
+
+using namespace pw;
+
+namespace {
+
+Spec demo(const std::string& name) {
+  return parse_spec(read_json_file(std::string(POLEWRIGHT_SOURCE_DIR) + "/specs/" + name));
+}
+
+ResultInput check_result(const std::string& name) {
+  const Spec spec = demo(name);
+  return parse_result(check_report_json(run_check(spec, *spec.current)));
+}
+
+// A design-shaped result made by hand: the spec and two ranked compensators.
+ResultInput design_result() {
+  const Spec spec = demo("wafer-stage.json");
+  Zpk second = *spec.current;
+  second.gain *= 0.8;
+  nlohmann::json doc;
+  doc["tool"] = {{"name", "polewright"}, {"job", "design"}};
+  doc["spec"] = spec.document;
+  doc["candidates"] = {{{"compensator", json_zpk(*spec.current)}, {"structure", {"lead", "notch"}}},
+                       {{"compensator", json_zpk(second)}, {"structure", {"lead", "notch"}}}};
+  return parse_result(doc);
+}
+
+// The outer <svg> elements (nested viewports excluded) as substrings.
+std::vector<std::string> outer_svgs(const std::string& html) {
+  std::vector<std::string> out;
+  size_t pos = 0;
+  while ((pos = html.find("<svg xmlns=", pos)) != std::string::npos) {
+    int depth = 0;
+    size_t i = pos;
+    for (;;) {
+      const size_t open = html.find("<svg", i + 1), close = html.find("</svg>", i + 1);
+      if (close == std::string::npos) return out;
+      if (open != std::string::npos && open < close) {
+        ++depth;
+        i = open;
+      } else if (depth == 0) {
+        out.push_back(html.substr(pos, close + 6 - pos));
+        pos = close + 6;
+        break;
+      } else {
+        --depth;
+        i = close;
+      }
+    }
+  }
+  return out;
+}
+
+// Tags balance like XML (the page is written as well-formed XHTML-style markup).
+bool tags_balance(const std::string& html, std::string* why) {
+  std::vector<std::string> stack;
+  const std::regex tag("<(/?)([a-zA-Z][a-zA-Z0-9]*)[^>]*?(/?)>");
+  const size_t start = html.find("<html");
+  for (auto it = std::sregex_iterator(html.begin() + static_cast<long>(start), html.end(), tag); it != std::sregex_iterator(); ++it) {
+    const std::string name = (*it)[2];
+    if ((*it)[3] == "/") continue;  // self-closing
+    if ((*it)[1] == "/") {
+      if (stack.empty() || stack.back() != name) {
+        *why = "unexpected </" + name + "> (open: " + (stack.empty() ? std::string("none") : stack.back()) + ")";
+        return false;
+      }
+      stack.pop_back();
+    } else {
+      stack.push_back(name);
+    }
+  }
+  if (!stack.empty()) *why = "unclosed <" + stack.back() + ">";
+  return stack.empty();
+}
+
+void check_page(const std::string& html, size_t plots) {
+  std::string why;
+  CHECK(tags_balance(html, &why));
+  INFO(why);
+  const std::vector<std::string> svgs = outer_svgs(html);
+  CHECK(svgs.size() == plots);
+  const std::regex drawn("class=\"pw-data[^\"]*\"[^>]* d=\"M[^\"]+\"");
+  for (const std::string& s : svgs) CHECK(std::regex_search(s, drawn));
+  CHECK_FALSE(std::regex_search(html, std::regex("\\b(nan|inf|infinity)\\b", std::regex::icase)));
+  CHECK(html.find(kCautions) != std::string::npos);
+  CHECK(html.find("<script") == std::string::npos);
+  // Nothing fetched: the only URL is the SVG namespace name.
+  const std::string stripped = std::regex_replace(html, std::regex("http://www\\.w3\\.org/2000/svg"), "");
+  CHECK_FALSE(std::regex_search(stripped, std::regex("https?:|url\\(|@import|<link|src=")));
+}
+
+}  // namespace
+
+TEST_CASE("check report: one svg per plot, all drawn, no nan, cautions present", "[outputs][report]") {
+  const ResultInput r = check_result("wafer-stage.json");
+  const std::string html = report_html(r);
+  check_page(html, 6);  // s-plane, y, u, |L|, phase, |S| |T|
+  for (const char* id : {"id=\"summary\"", "id=\"s-plane\"", "id=\"time\"", "id=\"frequency\"", "id=\"cautions\""})
+    CHECK(html.find(id) != std::string::npos);
+  CHECK(html.find("id=\"candidates\"") == std::string::npos);
+  // Every plant variant has a line in the time response.
+  for (const Plant& p : r.spec->plants) CHECK(html.find(p.name.empty() ? "nominal" : p.name) != std::string::npos);
+  CHECK(report_html(r) == html);  // deterministic
+}
+
+TEST_CASE("reports of the other demo specs render too (dead time, unstable plant)", "[outputs][report]") {
+  check_page(report_html(check_result("greenhouse-heater.json")), 6);
+  check_page(report_html(check_result("magnetic-bearing.json")), 6);
+}
+
+TEST_CASE("design report adds the ranked candidates with their overlaid steps", "[outputs][report]") {
+  const ResultInput r = design_result();
+  const ReportData d = prepare_report(r);
+  REQUIRE(d.designs.size() == 2);
+  CHECK(d.designs[0].label == "rank 1: lead + notch");
+  CHECK(d.designs[1].colour == 1);
+  const std::string html = report_html(d);
+  check_page(html, 7);
+  CHECK(html.find("id=\"candidates\"") != std::string::npos);
+  CHECK(html.find("rank 2: lead + notch") != std::string::npos);
+}
+
+TEST_CASE("prepare_report recomputes the check's figures from the embedded spec", "[outputs][report]") {
+  const Spec spec = demo("wafer-stage.json");
+  const CheckReport direct = run_check(spec, *spec.current);
+  const ReportData d = prepare_report(parse_result(check_report_json(direct)));
+  REQUIRE(d.designs.size() == 1);
+  CHECK(d.met() == direct.evaluation.all_met);
+  const auto& a = d.designs[0].evaluation.plants[0];
+  const auto& b = direct.evaluation.plants[0];
+  REQUIRE(a.step);
+  REQUIRE(b.step);
+  CHECK(*a.step->overshoot_pct == Approx(*b.step->overshoot_pct));
+  CHECK(!a.step->trace.y.empty());  // traces kept for the plots
+  CHECK(d.locus.branches.size() == direct.locus.branches.size());
+}
+
+TEST_CASE("prepare_report refuses results it cannot report, naming the field", "[outputs][report]") {
+  const Spec spec = demo("wafer-stage.json");
+  try {
+    prepare_report(parse_result(json_zpk(*spec.current)));
+    FAIL("no error");
+  } catch (const SpecError& e) {
+    CHECK(e.path() == "$.tool.job");
+  }
+}
+
+TEST_CASE("report_sections: check has four sections, design adds the candidates", "[outputs][report]") {
+  CHECK(report_sections("check").size() == 4);
+  const auto s = report_sections("design");
+  REQUIRE(s.size() == 5);
+  CHECK(s.back().id == "candidates");
+  CHECK(s.front().id == "summary");
+}
+
+TEST_CASE("section builders each give a fragment with their plots", "[outputs][report]") {
+  const ReportData d = prepare_report(design_result());
+  CHECK(report_summary_section(d).find("C(s) factored") != std::string::npos);
+  CHECK(outer_svgs(report_splane_section(d)).size() == 1);
+  CHECK(outer_svgs(report_time_section(d)).size() == 2);
+  CHECK(outer_svgs(report_frequency_section(d)).size() == 3);
+  CHECK(outer_svgs(report_candidates_section(d)).size() == 1);
+  ReportData empty = d;
+  empty.designs.clear();
+  CHECK(report_splane_section(empty).empty());
+  CHECK(report_summary_section(empty).find("no compensator") != std::string::npos);
+}
