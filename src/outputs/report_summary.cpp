@@ -9,21 +9,6 @@ namespace pw {
 
 namespace {
 
-std::string root_text(const Complex& r) {
-  if (r.imag() == 0.0) return format_number(r.real(), 4);
-  return format_number(r.real(), 4) + " &#177; " + format_number(std::abs(r.imag()), 4) + "j";
-}
-
-// Roots with each conjugate pair once.
-std::string roots_text(const Roots& rs) {
-  std::string s;
-  for (const Complex& r : rs) {
-    if (r.imag() < 0.0) continue;
-    s += (s.empty() ? "" : ", ") + root_text(r);
-  }
-  return s.empty() ? "none" : s;
-}
-
 // A polynomial in s with superscript powers: "12 s<sup>3</sup> + 4.8 s + 1".
 std::string poly_html(const Poly& p) {
   std::string s;
@@ -85,8 +70,8 @@ std::string report_summary_section(const ReportData& d) {
   h += "<span class=\"k\">design</span><span><span class=\"pw-swatch\" style=\"background:" + std::string(candidate_colour(best.colour)) +
        "\"></span>" + xml_escape(best.label) + "</span>";
   h += "<span class=\"k\">gain</span><span>" + xml_escape(format_number(c.gain, 5)) + "</span>";
-  h += "<span class=\"k\">zeros</span><span>" + roots_text(c.zeros) + "</span>";
-  h += "<span class=\"k\">poles</span><span>" + roots_text(c.poles) + "</span>";
+  h += "<span class=\"k\">zeros</span><span>" + report::roots_html(c.zeros, 4) + "</span>";
+  h += "<span class=\"k\">poles</span><span>" + report::roots_html(c.poles, 4) + "</span>";
   h += "</div>\n<p style=\"margin:8px 0 3px\">C(s) factored</p><div class=\"pw-tf\">" + report::powers_html(xml_escape(zpk_to_string(c))) + "</div>\n";
   h += "<p style=\"margin:8px 0 3px\">C(s) as polynomials</p><div class=\"pw-tf\">(" + poly_html(zpk_numerator(c)) + ") / (" +
        poly_html(zpk_denominator(c)) + ")</div>\n";
@@ -96,9 +81,10 @@ std::string report_summary_section(const ReportData& d) {
     h += "<span class=\"k\">gain interval</span><span>&#215;" + xml_escape(format_number(*nominal.gain.lo, 3)) + " to &#215;" +
          xml_escape(format_number(*nominal.gain.hi, 3)) + " of the nominal gain keeps the poles that matter in the region</span>";
   else
-    h += "<span class=\"k\">gain interval</span><span>none: the nominal loop's poles are not all in the region</span>";
+    h += "<span class=\"k\">gain interval</span><span>none: the nominal loop's poles that matter are not all in the region "
+         "(the region guides the design; the verdict rests on the requirements above)</span>";
   if (nominal.dominant_pole)
-    h += "<span class=\"k\">dominant pole</span><span>" + root_text(*nominal.dominant_pole) + " (damping " +
+    h += "<span class=\"k\">dominant pole</span><span>" + report::root_html(*nominal.dominant_pole, 4) + " (damping " +
          xml_escape(format_number(damping_of(*nominal.dominant_pole), 3)) + ")</span>";
   h += "</div>\n";
   if (!d.region.derivations.empty()) {

@@ -1,6 +1,7 @@
 // Small helpers shared by the report sections (internal).
 #pragma once
 
+#include <cmath>
 #include <string>
 
 #include "polewright/outputs/report.hpp"
@@ -27,6 +28,22 @@ inline std::string plant_name(const ReportData& d, size_t i) {
   if (i >= d.spec.plants.size()) return "";
   const std::string& n = d.spec.plants[i].name;
   return n.empty() ? (i == 0 ? "nominal" : "variant " + std::to_string(i)) : n;
+}
+
+// One root as HTML: "-4" or "-3 &#177; 59.9j".
+inline std::string root_html(const Complex& r, int digits) {
+  if (r.imag() == 0.0) return xml_escape(format_number(r.real(), digits));
+  return xml_escape(format_number(r.real(), digits)) + " &#177; " + xml_escape(format_number(std::abs(r.imag()), digits)) + "j";
+}
+
+// Roots with each conjugate pair once, comma separated; "none" for an empty set.
+inline std::string roots_html(const Roots& rs, int digits) {
+  std::string s;
+  for (const Complex& r : rs) {
+    if (r.imag() < 0.0) continue;
+    s += (s.empty() ? "" : ", ") + root_html(r, digits);
+  }
+  return s.empty() ? "none" : s;
 }
 
 // "s^2" -> "s<sup>2</sup>" in already escaped text.
