@@ -193,6 +193,14 @@ std::string report_frequency_section(const ReportData& d) {
     p.y.lo = lo;
     p.y.hi = hi;
   };
+  // A dead time drives the phase down without end: show it to 270 deg below the -180 line that
+  // matters, the rest is clipped.
+  double ref_line = -180.0;
+  if (f.phase_margin_deg && f.phase_margin_at_rad_s) {
+    const double ph = at(w, nominal.phase_deg, *f.phase_margin_at_rad_s);
+    if (std::isfinite(ph)) ref_line = ph - *f.phase_margin_deg;
+  }
+  plo = std::max(plo, std::min(ref_line, phi) - 270.0);
   set_y(pm, mlo, mhi);
   set_y(pp, plo, phi);
   set_y(ps, slo, shi);

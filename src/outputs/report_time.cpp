@@ -169,8 +169,10 @@ std::string report_time_section(const ReportData& d) {
       const double ts = *nominal.step->settling_time_s;
       double yts = yf;
       const StepTrace& tr = nominal.step->trace;
-      const size_t k = static_cast<size_t>(std::min<double>(tr.y.size() - 1, std::round(ts / tr.dt)));
-      if (!tr.y.empty()) yts = tr.y[k];
+      if (!tr.y.empty() && tr.dt > 0.0) {
+        const double last = static_cast<double>(tr.y.size() - 1);
+        yts = tr.y[static_cast<size_t>(std::max(0.0, std::min(last, std::round(ts / tr.dt))))];
+      }
       py.markers({ts}, {yts}, Marker::Diamond, 10, st, "settling time (nominal)");
     }
   }
