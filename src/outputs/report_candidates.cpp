@@ -48,6 +48,13 @@ std::string report_candidates_section(const ReportData& d) {
   double lo = 0.0, hi = 1.0;
   std::vector<double> t, v;
   bool any = false;
+  auto style_of = [](size_t i, const ReportDesign& rd) {
+    Style s;
+    s.stroke = candidate_colour(rd.colour);
+    s.width = i == 0 ? 2.4 : 1.6;
+    return s;
+  };
+  for (size_t i = 0; i < d.designs.size(); ++i) p.legend_line(d.designs[i].label, style_of(i, d.designs[i]));  // rank order
   for (size_t i = d.designs.size(); i-- > 0;) {  // rank 1 drawn last, on top
     const ReportDesign& rd = d.designs[i];
     const LoopEvaluation& e = rd.evaluation.plants.front();
@@ -59,10 +66,7 @@ std::string report_candidates_section(const ReportData& d) {
         lo = std::min(lo, x);
         hi = std::max(hi, x);
       }
-    Style s;
-    s.stroke = candidate_colour(rd.colour);
-    s.width = i == 0 ? 2.4 : 1.6;
-    p.line(t, v, s, rd.label);
+    p.line(t, v, style_of(i, rd));
   }
   if (!any) return h;
   const double yf = d.designs.front().evaluation.plants.front().step ? d.designs.front().evaluation.plants.front().step->final_value : 1.0;

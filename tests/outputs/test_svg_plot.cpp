@@ -123,6 +123,24 @@ TEST_CASE("fills are clipped polygons and reference lines carry their notes", "[
   CHECK(gs.find(">100<") != std::string::npos);
 }
 
+TEST_CASE("legend_line lists a series in its own order", "[outputs][svg]") {
+  Plot p(400, 300, "order");
+  p.x.lo = 0;
+  p.x.hi = 1;
+  p.y.lo = 0;
+  p.y.hi = 1;
+  Style s;
+  p.legend_line("first", s);
+  p.line({0, 1}, {0.2, 0.2}, s, "second");
+  p.line({0, 1}, {0.4, 0.4}, s, "first");  // already listed: not repeated
+  const std::string svg = p.svg();
+  const size_t a = svg.find(">first<"), b = svg.find(">second<");
+  REQUIRE(a != std::string::npos);
+  REQUIRE(b != std::string::npos);
+  CHECK(a < b);
+  CHECK(svg.find(">first<", a + 1) == std::string::npos);
+}
+
 TEST_CASE("marker_path and text_width", "[outputs][svg]") {
   CHECK(marker_path(Marker::Cross, 10, 10, 4) == "M8 8 L12 12 M8 12 L12 8");
   CHECK(marker_path(Marker::Square, 0, 0, 2) == "M-1 -1 L1 -1 L1 1 L-1 1 Z");

@@ -56,6 +56,9 @@ class Plot {
   void note(double xv, double yv, const std::string& text, const std::string& colour, double dx = 4, double dy = -4,
             const std::string& anchor = "start", bool optional = false);
 
+  // A legend entry for a line drawn without one (to list series in another order than drawn).
+  void legend_line(const std::string& label, const Style& style) { add_legend(label, "line", style); }
+
   // The whole plot as one <svg> element.
   std::string svg() const;
 
