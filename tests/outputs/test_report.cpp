@@ -118,6 +118,21 @@ TEST_CASE("reports of the other demo specs render too (dead time, unstable plant
   check_page(report_html(check_result("magnetic-bearing.json")), 6);
 }
 
+TEST_CASE("an unstable loop still gets its s-plane and frequency plots, and no step", "[outputs][report]") {
+  // 4 / (s (s + 2) (s + 3)) with gain 50: Routh-Hurwitz on s^3 + 5 s^2 + 6 s + 200 gives stability
+  // only for 4 k < 30 (worked by hand), so the loop is unstable.
+  const Spec spec = parse_spec(nlohmann::json::parse(R"({ "name": "unstable demo",
+      "plant": { "gain": 4, "poles": [0, -2, -3] },
+      "requirements": { "overshoot_pct": { "max": 10 }, "phase_margin_deg": { "min": 40 } },
+      "current": { "gain": 50 } })"));
+  const ReportData d = prepare_report(parse_result(check_report_json(run_check(spec, *spec.current))));
+  REQUIRE_FALSE(d.designs.front().evaluation.all_stable);
+  const std::string html = report_html(d);
+  check_page(html, 4);
+  CHECK(html.find("No step response") != std::string::npos);
+  CHECK(html.find("A closed loop is unstable") != std::string::npos);
+}
+
 TEST_CASE("design report adds the ranked candidates with their overlaid steps", "[outputs][report]") {
   const ResultInput r = design_result();
   const ReportData d = prepare_report(r);
