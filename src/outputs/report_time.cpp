@@ -20,7 +20,7 @@ double step_plot_end(const ReportData& d) {
       if (e.step->rise_time_s) rise = std::max(rise, *e.step->rise_time_s);
     }
   const auto ts_lim = d.spec.requirements.limit(MetricId::SettlingTime, Sense::AtMost);
-  double want = std::max({1.3 * settle, 8.0 * rise, ts_lim ? 1.6 * *ts_lim : 0.0});
+  double want = std::max({1.3 * settle, 5.0 * rise, ts_lim ? 1.6 * *ts_lim : 0.0});
   if (!(want > 0.0)) want = horizon;
   return horizon > 0.0 ? std::min(horizon, want) : 1.0;
 }

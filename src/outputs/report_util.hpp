@@ -41,7 +41,7 @@ inline std::string roots_html(const Roots& rs, int digits) {
   std::string s;
   for (const Complex& r : rs) {
     if (r.imag() < 0.0) continue;
-    s += (s.empty() ? "" : ", ") + root_html(r, digits);
+    s += (s.empty() ? "" : ", ") + ("<span class=\"pw-root\">" + root_html(r, digits) + "</span>");
   }
   return s.empty() ? "none" : s;
 }
