@@ -50,7 +50,7 @@ void draw_step_bounds(Plot& p, const ReportData& d, double yf, double t_end) {
     edge.width = 1.0;
     p.hline(lo, edge, "", "", *ts, t1);
     p.hline(hi, edge, "", "", *ts, t1);
-    p.vline(*ts, limit, "settling limit " + format_number(*ts, 3) + " s");
+    p.vline(*ts, limit, "settling limit " + format_number(*ts, 3) + " s", "", true);
   }
 }
 

@@ -174,8 +174,9 @@ void Plot::hline(double yv, const Style& style, const std::string& note, const s
   add_legend(legend, "line", style);
 }
 
-void Plot::vline(double xv, const Style& style, const std::string& note, const std::string& legend) {
+void Plot::vline(double xv, const Style& style, const std::string& note, const std::string& legend, bool note_at_bottom) {
   Element e;
+  e.note_bottom = note_at_bottom;
   e.layer = 1;
   e.kind = "vline";
   e.xs = {xv};
@@ -342,7 +343,8 @@ std::string Plot::svg() const {
           } else {
             const double w = text_width(e.text, kNoteFont);
             const bool right_room = a.x + 4.0 + w < b.x1;
-            place_note(right_room ? a.x + 4.0 : a.x - 4.0, b.y0 + 13.0, e.text, e.style.stroke, right_room ? "start" : "end");
+            place_note(right_room ? a.x + 4.0 : a.x - 4.0, e.note_bottom ? b.y1 - 6.0 : b.y0 + 13.0, e.text, e.style.stroke,
+                       right_room ? "start" : "end");
           }
         }
       } else if (e.kind == "note") {

@@ -98,6 +98,7 @@ TEST_CASE("fills are clipped polygons and reference lines carry their notes", "[
   Style l;
   p.hline(0.25, l, "limit 5 %");
   p.vline(2.0, l, "outside");  // outside the x range: not drawn
+  p.vline(0.5, l, "low note", "", true);
   const std::string svg = p.svg();
   const Box b = p.area();
   std::smatch m;
@@ -105,6 +106,9 @@ TEST_CASE("fills are clipped polygons and reference lines carry their notes", "[
   CHECK(std::string(m[1]).find('Z') != std::string::npos);
   CHECK(svg.find("limit 5 %") != std::string::npos);
   CHECK(svg.find("outside") == std::string::npos);
+  std::smatch lm;
+  REQUIRE(std::regex_search(svg, lm, std::regex("y=\"([0-9.]+)\"[^>]*>low note<")));
+  CHECK(std::stod(lm[1]) > 0.5 * (b.y0 + b.y1));  // in the lower half of the area
   for (const auto& q : data_points(svg)) {
     CHECK(q.first >= b.x0 - 1e-9);
     CHECK(q.first <= b.x1 + 1e-9);

@@ -49,7 +49,8 @@ class Plot {
   // at their end.
   void hline(double yv, const Style& style, const std::string& note = "", const std::string& legend = "",
              double from = -1e300, double to = 1e300);
-  void vline(double xv, const Style& style, const std::string& note = "", const std::string& legend = "");
+  void vline(double xv, const Style& style, const std::string& note = "", const std::string& legend = "",
+             bool note_at_bottom = false);
   // A note at a data point, offset by (dx, dy) pixels; dropped when the point is outside the area.
   // Notes are moved up or down to clear earlier ones; an `optional` note that cannot clear them is
   // left out.
@@ -72,7 +73,8 @@ class Plot {
     double size = 6.0;
     std::string text, anchor;
     double dx = 0.0, dy = 0.0;
-    bool optional = false;
+    bool optional = false;          // notes: may be left out
+    bool note_bottom = false;       // vline: note at the bottom of the area
   };
   struct LegendEntry {
     std::string label;
