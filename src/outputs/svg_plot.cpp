@@ -229,7 +229,8 @@ std::string Plot::svg() const {
 
   std::ostringstream o;
   o << "<svg xmlns=\"http://www.w3.org/2000/svg\" class=\"pw-plot\"" << attr("viewBox", "0 0 " + svg_coord(width_) + " " + svg_coord(total_h))
-    << attr("width", width_) << attr("height", total_h) << " role=\"img\"" << attr("aria-label", title_) << ">\n";
+    << attr("width", width_) << attr("height", total_h)
+    << " font-family=\"DejaVu Sans, Liberation Sans, Helvetica Neue, Arial, sans-serif\" role=\"img\"" << attr("aria-label", title_) << ">\n";
   o << "<title>" << xml_escape(title_) << "</title>\n";
   o << "<rect" << attr("x", b.x0) << attr("y", b.y0) << attr("width", b.x1 - b.x0) << attr("height", b.y1 - b.y0)
     << attr("fill", colour::kPaper) << "/>\n";
