@@ -100,10 +100,10 @@ std::string report_splane_section(const ReportData& d) {
   Plot p(640, 480, "s-plane: allowed region, root locus and closed-loop poles");
   p.x.label = "real part \u03c3 (1/s)";
   p.y.label = "imaginary part \u03c9 (rad/s)";
-  p.x.lo = xmin - 0.12 * span;
-  p.x.hi = xmax + 0.12 * span;
-  p.y.lo = -ymax - 0.1 * span;
-  p.y.hi = ymax + 0.1 * span;
+  p.x.lo = xmin - 0.15 * span;
+  p.x.hi = xmax + 0.15 * span;
+  p.y.lo = -ymax - 0.2 * span;
+  p.y.hi = ymax + 0.2 * span;
   p.equal_aspect();
   const double far = 20.0 * std::max({std::abs(p.x.lo), std::abs(p.x.hi), std::abs(p.y.lo), std::abs(p.y.hi)});
 
@@ -122,8 +122,8 @@ std::string report_splane_section(const ReportData& d) {
   if (gi.lo && gi.hi) {
     Style wide;
     wide.stroke = colour;
-    wide.width = 7.0;
-    wide.opacity = 0.28;
+    wide.width = 8.0;
+    wide.opacity = 0.35;
     for (const auto& br : L.branches) {
       std::vector<double> xs, ys;
       for (size_t j = 0; j < br.size() && j < L.gains.size(); ++j) {
