@@ -3,6 +3,7 @@
 #include <memory>
 
 #include "commands.hpp"
+#include "polewright/outputs/report.hpp"
 #include "polewright/requirements/spec_parse.hpp"
 
 namespace pw::cli {
@@ -26,7 +27,7 @@ void register_validate(CLI::App& app) {
 void register_check(CLI::App& app) {
   auto* cmd = app.add_subcommand("check", "Evaluate a compensator against every requirement and plant variant");
   struct Args {
-    std::string spec, compensator, out;
+    std::string spec, compensator, out, report;
     bool json = false;
   };
   auto a = std::make_shared<Args>();
@@ -34,6 +35,7 @@ void register_check(CLI::App& app) {
   cmd->add_option("--compensator", a->compensator, "file holding a compensator object (default: the spec's current)");
   cmd->add_option("-o,--output", a->out, "write the report as JSON to this file (atomically)");
   cmd->add_flag("--json", a->json, "print the JSON report to stdout instead of the table");
+  cmd->add_option("--report", a->report, "also write the HTML report to this file (atomically)");
   cmd->callback([a] {
     select([a] {
       std::string file = a->spec;
@@ -52,6 +54,7 @@ void register_check(CLI::App& app) {
         const CheckReport report = run_check(spec, comp);
         const nlohmann::json j = check_report_json(report);
         if (!a->out.empty()) emit(a->out, j.dump(1) + "\n");
+        if (!a->report.empty()) emit(a->report, report_html(parse_result(j)));
         if (a->json) emit("-", j.dump(1) + "\n");
         else std::cout << check_report_text(report);
         return report.evaluation.all_met ? kExitMet : kExitNotMet;

@@ -2,6 +2,7 @@
 #include <memory>
 
 #include "commands.hpp"
+#include "polewright/outputs/report.hpp"
 #include "polewright/outputs/design_output.hpp"
 #include "polewright/requirements/spec_parse.hpp"
 
@@ -10,7 +11,7 @@ namespace pw::cli {
 void register_design(CLI::App& app) {
   auto* cmd = app.add_subcommand("design", "Search ranked, verified compensators for a spec");
   struct Args {
-    std::string spec, out, objective;
+    std::string spec, out, objective, report;
     bool json = false, timing = false;
     int keep = -1, threads = -1;
     long long seed = -1;
@@ -19,6 +20,7 @@ void register_design(CLI::App& app) {
   cmd->add_option("SPEC", a->spec, "spec file (JSON)")->required();
   cmd->add_option("-o,--output", a->out, "write the result as JSON to this file (atomically)");
   cmd->add_flag("--json", a->json, "print the JSON result to stdout instead of the table");
+  cmd->add_option("--report", a->report, "also write the HTML report to this file (atomically)");
   cmd->add_flag("--timing", a->timing, "add the timings to the JSON (they vary from run to run; without them the "
                                        "JSON is byte-identical for the same spec and seed on any thread count)");
   cmd->add_option("--keep", a->keep, "number of candidates (overrides search.keep)")->check(CLI::Range(1, 100));
@@ -41,6 +43,7 @@ void register_design(CLI::App& app) {
         const DesignReport rep = run_design(spec, o);
         const nlohmann::json j = design_report_json(rep, a->timing);
         if (!a->out.empty()) emit(a->out, j.dump(1) + "\n");
+        if (!a->report.empty()) emit(a->report, report_html(parse_result(j)));
         if (a->json) emit("-", j.dump(1) + "\n");
         else std::cout << design_report_text(rep);
         return rep.met() ? kExitMet : kExitNotMet;

@@ -21,6 +21,7 @@ void register_check(CLI::App& app);
 void register_design(CLI::App& app);
 void register_retune(CLI::App& app);
 void register_sweep(CLI::App& app);  // sweep and merge
+void register_report(CLI::App& app);
 
 // Sets the action of the subcommand that was parsed.
 void select(std::function<int()> action);

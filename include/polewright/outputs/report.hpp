@@ -1,0 +1,63 @@
+// The HTML report: one self-contained file (inline SVG and CSS, no scripts, nothing fetched) for a
+// check or design result. The figures are recomputed from the result's embedded spec and its
+// compensators through the analysis library, never read from the stored numbers.
+//
+// The page is a list of sections chosen by the result's job (`report_sections`); a section is a
+// function from the prepared data to an HTML fragment. Retune and sweep results add their own
+// sections to that table (see DEVELOPERS.md).
+#pragma once
+
+#include <functional>
+#include <string>
+#include <vector>
+
+#include "polewright/analysis/locus.hpp"
+#include "polewright/requirements/evaluate.hpp"
+#include "polewright/requirements/result_parse.hpp"
+
+namespace pw {
+
+// One compensator of the result, evaluated over every plant with the step traces kept.
+struct ReportDesign {
+  std::string label;      // "rank 1: lead + notch", or "checked compensator"
+  Zpk compensator;
+  Evaluation evaluation;  // nominal first, then the variants
+  int colour = 0;         // palette index (candidate_colour)
+};
+
+struct ReportData {
+  std::string job;                  // "check" or "design"
+  std::string name;                 // the spec's name
+  Spec spec;
+  Region region;
+  std::vector<ReportDesign> designs;  // rank order; designs[0] is the chosen one (may be empty for a design that found none)
+  Locus locus;                        // of the chosen design's nominal loop
+  nlohmann::json document;            // the result file as read
+  bool met() const { return !designs.empty() && designs.front().evaluation.all_met; }
+};
+
+// Recomputes everything a report shows. Throws SpecError naming the field when the result cannot
+// be reported (no embedded spec, a bare compensator).
+ReportData prepare_report(const ResultInput& result);
+
+struct ReportSection {
+  std::string id;     // HTML id of the section
+  std::string title;  // heading
+  std::function<std::string(const ReportData&)> build;  // the section's HTML body ("" = left out)
+};
+
+// The sections of a job's report, in page order.
+std::vector<ReportSection> report_sections(const std::string& job);
+
+// The whole page.
+std::string report_html(const ReportData& data);
+std::string report_html(const ResultInput& result);
+
+// Section bodies (each an HTML fragment with its own inline SVG).
+std::string report_summary_section(const ReportData& d);
+std::string report_splane_section(const ReportData& d);
+std::string report_time_section(const ReportData& d);
+std::string report_frequency_section(const ReportData& d);
+std::string report_candidates_section(const ReportData& d);
+
+}  // namespace pw
