@@ -77,3 +77,25 @@ TEST_CASE("a point whose spec is invalid is reported, not fatal", "[jobs][sweep]
   CHECK_THAT(bad.message, Catch::StartsWith("$.plant.denominator"));
   CHECK_FALSE(bad.top);
 }
+
+TEST_CASE("retune and design points carry their top candidate", "[jobs][sweep]") {
+  for (const char* job : {"retune", "design"}) {
+    const SweepFile f = small_sweep(job);
+    const SweepPoints pts(f);
+    const SweepPointResult r = run_sweep_point(f, pts, 4);
+    INFO(job << ": " << r.message);
+    REQUIRE(r.top);
+    CHECK((r.status == "met" || r.status == "not_met"));
+    CHECK(r.status == (r.top->meets ? "met" : "not_met"));
+    if (std::string(job) == "retune") {
+      CHECK(r.structure.rfind("current", 0) == 0);
+      REQUIRE(r.change_decades);
+      CHECK(*r.change_decades >= 0.0);
+    } else {
+      CHECK_FALSE(r.change_decades);
+    }
+    // The same point twice gives the same answer (its seed comes from the sweep seed and index).
+    const SweepPointResult again = run_sweep_point(f, pts, 4);
+    CHECK(again.top->compensator.gain == r.top->compensator.gain);
+  }
+}
