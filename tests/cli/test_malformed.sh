@@ -131,5 +131,41 @@ printf '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": {}, "current": 
 run_case retune-improper-current '$.current.zeros: improper compensator' -- "$bin" retune "$tmp/retune-improper.json"
 run_case retune-unstable-cancellation '$.current: compensator zero at 3' -- "$bin" retune "$tmp/unstable-cancellation.json"
 
+# Result files read back (report; export reads them the same way): exit 2, one line, nothing written.
+"$bin" check "$src/specs/greenhouse-heater.json" -o "$tmp/check-result.json" >/dev/null
+result_case() {  # result_case NAME PATH PYTHON-EDIT (applied to the check result as `d`)
+  /usr/bin/python3 -c "
+import json, sys
+d = json.load(open(sys.argv[1]))
+$3
+open(sys.argv[2], 'w').write(d if isinstance(d, str) else json.dumps(d))" "$tmp/check-result.json" "$tmp/$1.json"
+  run_case "$1" "$2" -- "$bin" report "$tmp/$1.json"
+}
+result_case result-not-object '$: must be a JSON object' 'd = [1, 2]'
+result_case result-broken '$: invalid JSON' 'd = json.dumps(d)[:-20]'
+result_case result-unknown-job '$.tool.job: is "plot"' 'd["tool"]["job"] = "plot"'
+result_case result-no-job '$.tool.job: is missing' 'del d["tool"]["job"]'
+result_case result-no-spec '$.spec: is missing' 'del d["spec"]'
+result_case result-null-spec '$.spec: is missing' 'd["spec"] = None'
+result_case result-bad-spec '$.spec.plant.denominator' 'd["spec"]["plant"]["denominator"] = [0, 0]'
+result_case result-spec-typo '$.spec.requirements.overshot_pct: unknown key' 'd["spec"]["requirements"]["overshot_pct"] = {"max": 5}'
+result_case result-no-compensator '$.compensator: is missing' 'del d["compensator"]'
+result_case result-improper-compensator '$.compensator.zeros: improper compensator' 'd["compensator"] = {"gain": 1, "zeros": [-1, -2], "poles": [-3]}'
+result_case result-nan-gain '$.compensator.gain: must be a number, not the string' 'd["compensator"]["gain"] = "NaN"'
+result_case result-bare-compensator '$.tool.job' 'd = d["compensator"]'
+"$bin" design "$src/specs/greenhouse-heater.json" -o "$tmp/design-result.json" --threads 1 >/dev/null
+/usr/bin/python3 -c "
+import json, sys
+d = json.load(open(sys.argv[1])); d['candidates'][0]['compensator'] = {'gain': 1, 'zeros': [-1, -2], 'poles': [-3]}
+json.dump(d, open(sys.argv[2], 'w'))" "$tmp/design-result.json" "$tmp/design-bad-candidate.json"
+run_case result-bad-candidate '$.candidates[0].compensator.zeros' -- "$bin" report "$tmp/design-bad-candidate.json"
+/usr/bin/python3 -c "
+import json, sys
+d = json.load(open(sys.argv[1])); d['candidates'] = {'rank': 1}
+json.dump(d, open(sys.argv[2], 'w'))" "$tmp/design-result.json" "$tmp/design-candidates-object.json"
+run_case result-candidates-not-array '$.candidates: is missing or not an array' -- "$bin" report "$tmp/design-candidates-object.json"
+mkdir -p "$tmp/result-dir.json"
+run_case result-directory 'is a directory' -- "$bin" report "$tmp/result-dir.json"
+
 echo "$pass passed, $fail failed"
 [ "$fail" = 0 ]
