@@ -57,9 +57,28 @@ std::vector<double> from_unit(const ParamSpace& ps, const std::vector<double>& u
   return x;
 }
 
+std::optional<double> crossover_target(const RequirementSet& req) {
+  auto target = [](std::optional<double> lo, std::optional<double> hi) -> std::optional<double> {
+    if (lo && hi) return std::sqrt(*lo * *hi);
+    if (lo) return 1.5 * *lo;
+    if (hi) return 0.6 * *hi;
+    return std::nullopt;
+  };
+  if (auto w = target(req.limit(MetricId::Crossover, Sense::AtLeast), req.limit(MetricId::Crossover, Sense::AtMost))) return w;
+  // A closed-loop bandwidth is about 1.4 times the crossover of a well-damped loop (common practice).
+  if (auto w = target(req.limit(MetricId::Bandwidth, Sense::AtLeast), req.limit(MetricId::Bandwidth, Sense::AtMost)))
+    return *w / 1.4;
+  return std::nullopt;
+}
+
 std::vector<Seed> published_seeds(const ParamSpace& ps, const Plant& nominal, const Region& region,
                                   const RequirementSet& req) {
-  const Complex s = target_pole(region, nominal, {ps.freq_lo, ps.freq_hi});
+  // A region without a speed bound leaves the target pole to the plant's scale; a crossover or
+  // bandwidth requirement says more, so the target sits at that frequency instead.
+  Region guided = region;
+  if (region.min_frequency <= 0.0 && region.min_decay <= 0.0)
+    if (auto w = crossover_target(req)) guided.min_frequency = *w / 1.05;
+  const Complex s = target_pole(guided, nominal, {ps.freq_lo, ps.freq_hi});
   const double wn = std::abs(s);
   std::vector<Seed> out;
   for (int variant = 0; variant < 2; ++variant) {  // 0: zero below s*, 1: bisector rule

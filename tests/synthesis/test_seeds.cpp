@@ -60,3 +60,15 @@ TEST_CASE("Halton points are in the unit cube and well spread", "[synthesis][see
   CHECK(halton_point(0, 1, {})[0] == Approx(0.5));  // base 2: 1/2, 1/4, 3/4, ...
   CHECK(halton_point(1, 1, {})[0] == Approx(0.25));
 }
+
+TEST_CASE("the crossover target follows the frequency-domain requirements (common practice)", "[synthesis][seeds]") {
+  RequirementSet req;
+  CHECK_FALSE(crossover_target(req));
+  req.items.push_back({MetricId::Crossover, Sense::AtLeast, 2.0});
+  CHECK(*crossover_target(req) == Approx(3.0));
+  req.items.push_back({MetricId::Crossover, Sense::AtMost, 8.0});
+  CHECK(*crossover_target(req) == Approx(4.0));  // sqrt(2 * 8)
+  RequirementSet bw;
+  bw.items.push_back({MetricId::Bandwidth, Sense::AtMost, 14.0});
+  CHECK(*crossover_target(bw) == Approx(0.6 * 14.0 / 1.4));
+}

@@ -1,6 +1,7 @@
 // Starting points: the published constructions, then low-discrepancy points.
 #pragma once
 
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -17,6 +18,12 @@ struct Seed {
 // The dominant-pole target at the corner of the region: damping and natural frequency just inside
 // the region's bounds (with a 5 % allowance), or from the plant's scale when the region is open.
 Complex target_pole(const Region& region, const Plant& plant, std::pair<double, double> range);
+
+// The crossover a frequency-domain requirement asks for: the geometric mean of a crossover
+// interval, 1.5 times a lower bound, 0.6 times an upper bound; else the same from a bandwidth
+// bound divided by 1.4 (common practice). Used as the target's natural frequency when the region
+// sets no speed.
+std::optional<double> crossover_target(const RequirementSet& req);
 
 // Seeds from the root-locus construction: the target pole s* at the corner of the region, the angle
 // deficit of the loop there split over the lead stages (zero below s*, or on the bisector), the lag
