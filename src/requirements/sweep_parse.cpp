@@ -180,7 +180,7 @@ SweepFile parse_sweep(const json& doc) {
       throw SpecError("$.sample.count", "is for sobol and latin samples; the grid takes every combination");
     if (f.sample != SweepSample::Grid) {
       if (!member(*s, "count")) throw SpecError("$.sample.count", "is missing: sobol and latin samples need a count");
-      f.sample_count = read_integer((*s)["count"], "$.sample.count", 1, kMaxSweepPoints);
+      f.sample_count = read_integer((*s)["count"], "$.sample.count", 1, kMaxSampledPoints);
     }
     if (f.sample == SweepSample::Sobol && f.parameters.size() > static_cast<size_t>(kMaxSobolDimensions))
       throw SpecError("$.parameters", "has more than 40 parameters: too many for a Sobol sample");
@@ -261,6 +261,7 @@ std::vector<double> SweepPoints::at(long long index) const {
 json point_spec(const SweepFile& f, const std::vector<double>& values, unsigned long long seed) {
   json spec = f.base;
   for (const ExpressionSite& site : f.expressions) spec[site.pointer] = evaluate(site, f.parameters, values);
+  if (spec.contains("search") && !spec["search"].is_object()) throw SpecError("$.base.search", "must be an object");
   spec["search"]["seed"] = seed;
   spec["search"]["threads"] = 1;  // points run in parallel, each on one thread
   return spec;

@@ -118,6 +118,8 @@ sweep_case sweep-negative-seed '$.seed' "{ $base, \"parameters\": { \"k\": { \"v
 sweep_case sweep-base-typo '$.base.plant.denominatr: unknown key' "{ \"base\": { \"plant\": { \"numerator\": [\"k\"], \"denominatr\": [1, 1] }, \"requirements\": {} }, \"parameters\": { \"k\": { \"values\": [1] } } }"
 sweep_case sweep-base-improper '$.base.plant.numerator: improper plant' "{ \"base\": { \"plant\": { \"numerator\": [\"k\", 1, 1], \"denominator\": [1, 1] }, \"requirements\": {} }, \"parameters\": { \"k\": { \"values\": [1] } } }"
 sweep_case sweep-base-negative-limit '$.base.requirements.settling_time_s.max' "{ \"base\": { \"plant\": { \"numerator\": [1], \"denominator\": [1, 1] }, \"requirements\": { \"settling_time_s\": { \"max\": \"-t\" } } }, \"parameters\": { \"t\": { \"values\": [1] } } }"
+sweep_case sweep-search-not-object '$.base.search: must be an object' "{ \"base\": { \"plant\": { \"numerator\": [\"k\"], \"denominator\": [1, 1] }, \"requirements\": {}, \"search\": 3 }, \"parameters\": { \"k\": { \"values\": [1] } } }"
+sweep_case sweep-sample-too-many '$.sample.count' "{ $base, \"parameters\": { \"k\": { \"values\": [1] }, \"a\": { \"values\": [2] } }, \"sample\": { \"method\": \"latin\", \"count\": 2000000 } }"
 sweep_case sweep-deep '$: nesting deeper than 64' "{ \"base\": $deep$deepc, \"parameters\": {} }"
 mkdir -p "$tmp/sweepdir.json"
 rm -rf "$tmp/sweep-out"

@@ -48,8 +48,10 @@ struct SweepFile {
   long long point_count() const;
 };
 
-// Largest number of points a sweep may have.
+// Largest number of points a sweep may have: a grid, and a Sobol or Latin sample (whose unit
+// points are held in memory: at most 1e6 x 40 coordinates).
 constexpr long long kMaxSweepPoints = 10'000'000;
+constexpr long long kMaxSampledPoints = 1'000'000;
 
 // Throws SpecError naming the field. Every expression is compiled and evaluated once (at the first
 // grid point) so that syntax errors and unknown names are reported before any point runs.
