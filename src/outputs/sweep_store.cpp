@@ -182,7 +182,7 @@ SweepStore::SweepStore(const std::string& dir, const SweepFile& f, Shard shard, 
   namespace fs = std::filesystem;
   std::error_code ec;
   fs::create_directories(dir, ec);
-  if (!fs::is_directory(dir)) throw std::runtime_error(dir + ": cannot create the output directory");
+  if (!fs::is_directory(dir)) throw SpecError("--out", dir + " is not a directory and cannot be created");
   const std::string header = dir + "/sweep.json", points = dir + "/points.jsonl";
   const bool has_points = fs::exists(points) && fs::file_size(points) > 0;
   if (fs::exists(header)) {

@@ -125,6 +125,9 @@ mkdir -p "$tmp/sweepdir.json"
 rm -rf "$tmp/sweep-out"
 "$bin" sweep "$tmp/sweepdir.json" --out "$tmp/sweep-out" --quiet >/dev/null 2>"$tmp/err"
 [ $? = 2 ] && [ "$(wc -l <"$tmp/err")" = 1 ] && grep -q "is a directory" "$tmp/err" && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: sweep file that is a directory"; cat "$tmp/err"; }
+echo file >"$tmp/a-file"
+"$bin" sweep "$src/specs/sweeps/joint-inertia.json" --out "$tmp/a-file" --quiet >/dev/null 2>"$tmp/err"
+[ $? = 2 ] && [ "$(wc -l <"$tmp/err")" = 1 ] && grep -qF -- "--out" "$tmp/err" && [ "$(cat "$tmp/a-file")" = file ] && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: sweep --out naming a file"; cat "$tmp/err"; }
 
 # Retune: the same spec checks, and a current compensator it needs.
 printf '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": {} }' >"$tmp/retune-nocur.json"
