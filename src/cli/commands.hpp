@@ -18,6 +18,7 @@ constexpr int kExitInternal = 3;
 void register_validate(CLI::App& app);
 void register_check(CLI::App& app);
 void register_design(CLI::App& app);
+void register_export(CLI::App& app);
 
 // Sets the action of the subcommand that was parsed.
 void select(std::function<int()> action);

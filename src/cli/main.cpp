@@ -13,6 +13,7 @@ int main(int argc, char** argv) {
   pw::cli::register_validate(app);
   pw::cli::register_check(app);
   pw::cli::register_design(app);
+  pw::cli::register_export(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::CallForHelp& e) {
