@@ -23,6 +23,7 @@ bool ExportOptions::IsValid(std::string* error) const {
   if (clamp && !(std::isfinite(clamp->first) && std::isfinite(clamp->second) && clamp->first < clamp->second))
     return fail("--clamp needs two finite numbers LO < HI");
   if (!(max_phase_margin_drop_deg >= 0.0) || !(max_gain_margin_drop_db >= 0.0) || !(min_rate_ratio > 0.0) ||
+      !(unbounded_gain_margin_floor_db >= 0.0) ||
       !(float_radius_fraction > 0.0 && float_radius_fraction < 1.0))
     return fail("warning thresholds must be >= 0 (rate ratio > 0, float fraction within (0, 1))");
   return true;
@@ -229,12 +230,19 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
     const auto& cg = L.continuous[static_cast<size_t>(MetricId::GainMargin)];
     const auto& dg = L.discrete[static_cast<size_t>(MetricId::GainMargin)];
     const double cgv = cg.infinite ? INFINITY : cg.value.value_or(NAN);
-    if (dg.value && (cg.value || cg.infinite) && cgv - *dg.value > o.max_gain_margin_drop_db)
+    if (dg.value && cg.infinite) {
+      // Sampling always bounds the gain margin: warn only when it ends below the floor.
+      const std::string msg = L.plant_name + ": " + fmt("the unbounded gain margin becomes %.4g dB in discrete time", *dg.value);
+      if (*dg.value < o.unbounded_gain_margin_floor_db)
+        r.warnings.push_back(msg + fmt(", under %.3g dB", o.unbounded_gain_margin_floor_db));
+      else
+        r.notes.push_back(msg);
+    } else if (dg.value && cg.value && cgv - *dg.value > o.max_gain_margin_drop_db) {
       r.warnings.push_back(L.plant_name + ": " +
-                           (cg.infinite ? fmt("gain margin drops from unbounded to %.4g dB in discrete time", *dg.value)
-                                        : fmt("gain margin drops by %.3g dB (%.4g -> %.4g dB) in discrete time",
-                                              cgv - *dg.value, cgv, *dg.value)) +
+                           fmt("gain margin drops by %.3g dB (%.4g -> %.4g dB) in discrete time", cgv - *dg.value, cgv,
+                               *dg.value) +
                            fmt(", more than %.3g dB", o.max_gain_margin_drop_db));
+    }
   }
   if (r.crossover_rad_s) {
     const double ratio = (2.0 * M_PI / T) / *r.crossover_rad_s;

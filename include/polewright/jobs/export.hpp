@@ -29,6 +29,8 @@ struct ExportOptions {
   // Warnings (common practice thresholds).
   double max_phase_margin_drop_deg = 5.0;           // discrete phase margin below the continuous one by more
   double max_gain_margin_drop_db = 2.0;             // discrete gain margin below the continuous one by more
+  // An unbounded continuous gain margin always becomes finite once sampled: warn when it ends below this.
+  double unbounded_gain_margin_floor_db = 10.0;
   double min_rate_ratio = 10.0;                     // sample rate 2 pi / T under this times the crossover
   // A section is close to instability in float when rounding a1, a2 to float moves its pole radius
   // by more than this fraction of its distance to the unit circle (or onto or past the circle).
