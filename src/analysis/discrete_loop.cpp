@@ -289,6 +289,30 @@ SteadyState discrete_steady_state(const Zpk& cd, const Plant& plant, double T, T
 
 }  // namespace
 
+DiscretePoles discrete_closed_loop_poles(const Zpk& cd, const SampledPlant& sp, double k, double share) {
+  const StateSpace g = sampled_plant_state_space(sp);
+  const StateSpace c = realize(cd);
+  if (g.states() + c.states() > kMaxDiscreteStates)
+    throw std::invalid_argument("the sampled loop would need " + std::to_string(g.states() + c.states()) +
+                                " states, at most " + std::to_string(kMaxDiscreteStates));
+  const ClosedLoop cl = close_loop(c, g, k);
+  DiscretePoles out;
+  out.well_posed = cl.well_posed;
+  if (!cl.well_posed) return out;
+  const CVec ev = closed_loop_eigenvalues(cl);
+  out.stable = true;
+  for (int i = 0; i < ev.size(); ++i) out.stable = out.stable && std::abs(ev(i)) < 1.0;
+  double y_final = 0.0;
+  const int n = cl.states();
+  if (out.stable && n > 0) {
+    const Eigen::MatrixXd I = Eigen::MatrixXd::Identity(n, n);
+    const Eigen::VectorXd xf = (I - Eigen::MatrixXd(cl.A)).partialPivLu().solve(Eigen::VectorXd(cl.B));
+    y_final = cl.Cy.dot(Vec(xf)) + cl.Dy;
+  }
+  out.poles = poles_with_shares(cl, y_final, sp.sample_time_s, share);
+  return out;
+}
+
 DiscreteLoopAnalysis analyze_discrete_loop(const Zpk& cd, const Plant& plant, const DiscreteLoopOptions& o) {
   std::string err;
   if (!o.IsValid(&err)) throw std::invalid_argument(err);

@@ -77,6 +77,15 @@ constexpr int kMaxDiscreteStates = kMaxStates;
 // L(e^{jwT}) = Cd(e^{jwT}) Gd(e^{jwT}).
 Complex sampled_loop_response(const Zpk& cd, const SampledPlant& p, double w);
 
+// Closed-loop poles of the sampled loop with the compensator scaled by gain_scale, largest |z| first,
+// with their shares of the sampled step response (the gain-tolerance scan of the export uses it).
+struct DiscretePoles {
+  bool well_posed = true;
+  bool stable = false;
+  std::vector<DiscretePole> poles;
+};
+DiscretePoles discrete_closed_loop_poles(const Zpk& cd, const SampledPlant& p, double gain_scale, double residue_share);
+
 // Throws std::invalid_argument for invalid options or a loop with more than kMaxDiscreteStates
 // states (a dead time of many samples).
 DiscreteLoopAnalysis analyze_discrete_loop(const Zpk& cd, const Plant& plant, const DiscreteLoopOptions& options);

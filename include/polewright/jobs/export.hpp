@@ -54,7 +54,7 @@ struct ExportOutcome {
   MetricValue continuous;  // worst over the plants
   MetricValue discrete;    // worst over the plants
   int worst_plant = 0;
-  bool checked = true;     // false: not re-verified in discrete time (gain tolerance)
+  bool checked = true;     // false: not re-verified in discrete time (none at present)
   bool met = false;
 };
 
@@ -80,7 +80,11 @@ struct ExportReport {
   std::vector<std::string> notes;
 };
 
-// The figures of a sampled loop as metric values (gain tolerance is left missing).
+// Gain tolerance of the sampled loop (the continuous definition, poles mapped by s = ln(z) / T).
+GainToleranceResult discrete_gain_tolerance(const Zpk& cd, const SampledPlant& sp, const Region& region, double share);
+
+// The figures of a sampled loop as metric values (gain tolerance is left missing: see
+// discrete_gain_tolerance).
 std::array<MetricValue, kMetricCount> discrete_metric_values(const DiscreteLoopAnalysis& a);
 
 // Throws SpecError naming the option ("--sample-time", "--prewarp-rad-s", ...) for bad options
