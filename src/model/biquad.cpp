@@ -35,7 +35,7 @@ std::array<double, 3> coefficients(const Roots& roots, int delay) {
     c1 = -(roots[0] + roots[1]).real();
     c2 = (roots[0] * roots[1]).real();
   }
-  const double in[3] = {c0, c1, c2};
+  const double in[3] = {c0, c1 + 0.0, c2 + 0.0};  // + 0.0 turns -0 into 0
   for (int i = 0; i + delay < 3; ++i) c[static_cast<size_t>(i + delay)] = in[i];
   return c;
 }

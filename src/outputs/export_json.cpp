@@ -30,15 +30,18 @@ json discrete_pole_json(const DiscretePole& p) {
 
 }  // namespace
 
-json export_json(const ExportReport& r) {
-  json j;
+nlohmann::ordered_json export_json(const ExportReport& r) {
+  nlohmann::ordered_json j;
   j["sample_time_s"] = json_number(r.options.sample_time_s);
   j["method"] = discrete_method_name(r.options.method);
   j["gain"] = json_number(r.cascade.gain);
-  json secs = json::array();
-  for (const Biquad& s : r.cascade.sections)
-    secs.push_back({{"b", {json_number(s.b[0]), json_number(s.b[1]), json_number(s.b[2])}},
-                    {"a", {json_number(s.a[0]), json_number(s.a[1]), json_number(s.a[2])}}});
+  nlohmann::ordered_json secs = nlohmann::ordered_json::array();
+  for (const Biquad& s : r.cascade.sections) {
+    nlohmann::ordered_json sec;
+    sec["b"] = {json_number(s.b[0]), json_number(s.b[1]), json_number(s.b[2])};
+    sec["a"] = {json_number(s.a[0]), json_number(s.a[1]), json_number(s.a[2])};
+    secs.push_back(sec);
+  }
   j["sections"] = secs;
   j["tool"] = {{"name", "polewright"}, {"job", "export"}};
   j["design"] = {{"name", r.design_name}, {"source_job", r.source_job}, {"rank", r.rank}};

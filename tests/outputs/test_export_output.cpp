@@ -39,14 +39,18 @@ TEST_CASE("C identifiers and literals", "[export][export_output]") {
 
 TEST_CASE("the JSON holds g and sections so that H(z) = g prod b(z^-1)/a(z^-1)", "[export][export_output]") {
   const ExportReport r = pi_report();
-  const json j = export_json(r);
+  const nlohmann::ordered_json j = export_json(r);
+  // The keys first, in its order.
+  std::vector<std::string> keys;
+  for (auto it = j.begin(); it != j.end() && keys.size() < 4; ++it) keys.push_back(it.key());
+  CHECK(keys == std::vector<std::string>{"sample_time_s", "method", "gain", "sections"});
   CHECK(j.at("sample_time_s") == 1e-3);
   CHECK(j.at("method") == "tustin");
   CHECK(j.at("cautions") == kCautions);
   const double g = j.at("gain");
   const Complex z = std::polar(1.0, 0.7), w = 1.0 / z;
   Complex h(g, 0.0);
-  for (const json& s : j.at("sections")) {
+  for (const auto& s : j.at("sections")) {
     const auto b = s.at("b").get<std::vector<double>>();
     const auto a = s.at("a").get<std::vector<double>>();
     REQUIRE(b.size() == 3);

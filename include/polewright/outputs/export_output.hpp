@@ -25,8 +25,9 @@ std::string c_literal(double v, Precision p);
 std::string export_c_header(const ExportReport& r, const std::string& name);
 std::string export_c_source(const ExportReport& r, const std::string& name);
 
-// {"sample_time_s", "method", "gain", "sections": [{"b": [...], "a": [1, a1, a2]}], ...}.
-nlohmann::json export_json(const ExportReport& r);
+// {"sample_time_s", "method", "gain", "sections": [{"b": [...], "a": [1, a1, a2]}], ...}, keys in
+// that order, then the further keys.
+nlohmann::ordered_json export_json(const ExportReport& r);
 
 // Comment lines (#), a header, the gain as section 0 (b = [g, 0, 0], a = [1, 0, 0]), then the sections.
 std::string export_csv(const ExportReport& r);
