@@ -161,6 +161,7 @@ std::vector<DiscretePole> poles_with_shares(const ClosedLoop& cl, double y_final
   std::vector<DiscretePole> out;
   for (int i = 0; i < n; ++i) {
     DiscretePole p = make_pole(ed.values(i), T);
+    if (reliable) p.residue = std::abs(c(i));
     if (reliable && total > 0.0) {
       p.share = std::abs(c(i)) / total;
       p.matters = p.share >= threshold;
@@ -177,17 +178,33 @@ std::vector<DiscretePole> poles_with_shares(const ClosedLoop& cl, double y_final
 // The sampled unit-step response and its figures at the sample instants (rise and settling
 // interpolated linearly between samples, as the continuous figures are between their samples).
 StepMetrics sampled_step(const ClosedLoop& cl, double y_final, const std::vector<DiscretePole>& poles, double T,
-                         const DiscreteLoopOptions& o) {
-  // Horizon: twice the samples the slowest pole needs to decay from |y_f| + 10 to a tenth of the
-  // band (generous; a loop still outside the band at the end has no settling time).
-  double slowest = 0.0;
-  for (const DiscretePole& p : poles) slowest = std::max(slowest, std::abs(p.z));
+                         const DiscreteLoopOptions& o, bool& truncated) {
+  // Horizon, as in continuous time: the first k with sum |c_i| |z_i|^k below a tenth of the band
+  // (the remaining transient is then provably inside it), found by bisection below the bound where
+  // every term is under a tenth of the band over the pole count. Without reliable residues each
+  // |c_i| is taken as |y_f| + 10 (generous). A loop still outside the band at the end has no
+  // settling time.
   const double target = 0.1 * o.band * std::max(std::abs(y_final), 1e-12);
-  int n = 10;
-  if (slowest > 0.0 && slowest < 1.0) {
-    const double k = std::log(target / (std::abs(y_final) + 10.0)) / std::log(slowest);
-    n = static_cast<int>(std::min<double>(o.max_samples, std::max(10.0, std::ceil(2.0 * k))));
+  const double each = target / static_cast<double>(std::max<size_t>(poles.size(), 1));
+  auto coef = [&](const DiscretePole& p) { return p.residue >= 0.0 ? p.residue : std::abs(y_final) + 10.0; };
+  double hi = 10.0;
+  for (const DiscretePole& p : poles) {
+    const double r = std::abs(p.z), c = coef(p);
+    if (r > 0.0 && r < 1.0 && c > each) hi = std::max(hi, std::log(each / c) / std::log(r));
   }
+  auto envelope = [&](double k) {
+    double sum = 0.0;
+    for (const DiscretePole& p : poles) sum += coef(p) * std::pow(std::abs(p.z), k);
+    return sum;
+  };
+  double lo_k = 0.0;
+  for (int it = 0; it < 60 && hi - lo_k > 0.5; ++it) {
+    const double m = 0.5 * (lo_k + hi);
+    (envelope(m) <= target ? hi : lo_k) = m;
+  }
+  const double k = std::max(10.0, std::ceil(hi) + 1.0);
+  truncated = k > o.max_samples;
+  int n = static_cast<int>(std::min<double>(o.max_samples, k));
   n = std::min(o.max_samples, std::max(n, o.min_samples));
   StepMetrics m;
   m.samples = n;
@@ -349,7 +366,7 @@ DiscreteLoopAnalysis analyze_discrete_loop(const Zpk& cd, const Plant& plant, co
       a.dominant = p;
       break;
     }
-  if (a.stable) a.step = sampled_step(cl, y_final, a.poles, T, o);
+  if (a.stable) a.step = sampled_step(cl, y_final, a.poles, T, o, a.step_truncated);
 
   // Frequency response on (0, pi / T): frequency_grid placed by the plant's roots and the
   // s-plane equivalents ln(z) / T of the compensator's roots, limited below Nyquist, plus a dense

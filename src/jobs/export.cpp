@@ -196,6 +196,7 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
   for (size_t i = 0; i < spec.plants.size(); ++i) {
     ExportLoop& L = r.loops[i];
     const auto& cs = L.continuous_eval.step;
+    lo.min_samples = 0;
     if (cs) lo.min_samples = std::min(lo.max_samples, static_cast<int>(std::ceil(cs->horizon_s / T)) + 1);
     try {
       L.discrete_eval = analyze_discrete_loop(r.discrete, spec.plants[i], lo);
@@ -203,6 +204,10 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
       bad("--sample-time", e.what());
     }
     L.discrete = discrete_metric_values(L.discrete_eval);
+    if (L.discrete_eval.step_truncated)
+      r.notes.push_back(L.plant_name + ": " +
+                        fmt("the sampled step stops at %.0f samples (%.4g s) before its slowest pole has decayed",
+                            static_cast<double>(lo.max_samples), (lo.max_samples - 1) * T));
     if (spec.requirements.has(MetricId::GainTolerance) && L.discrete_eval.stable) {
       const SampledPlant sp = sample_plant(spec.plants[i], T, o.compute_delay);
       const GainToleranceResult g = discrete_gain_tolerance(r.discrete, sp, region, spec.analysis.residue_share);

@@ -56,6 +56,7 @@ struct DiscretePole {
   double damping = 1.0;         // of s (1 for z = 0)
   double natural_frequency = 0; // |s| (infinite for z = 0)
   double share = 1.0;           // share of the sampled step response
+  double residue = -1.0;        // |c_i| in y[k] = y_f + sum c_i z_i^k (-1 when the expansion is unreliable)
   bool matters = true;
 };
 
@@ -66,6 +67,7 @@ struct DiscreteLoopAnalysis {
   std::vector<DiscretePole> poles;     // by |z|, largest first
   std::optional<DiscretePole> dominant;  // the largest |z| among the poles that matter
   std::optional<StepMetrics> step;     // sampled unit-step response (stable loops)
+  bool step_truncated = false;         // the horizon wanted more than max_samples samples
   FrequencyMetrics frequency;          // of L(e^{jwT}) on (0, pi / T]
   SteadyState steady_state;            // from the discrete error constants
   double nyquist_rad_s = 0.0;
