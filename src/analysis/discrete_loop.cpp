@@ -50,6 +50,7 @@ SampledPlant sample_plant(const Plant& plant, double T, int compute_delay) {
   SampledPlant p;
   p.sample_time_s = T;
   const double ratio = plant.delay_s / T;
+  if (!(ratio < 1e6)) throw std::invalid_argument("the dead time spans more than a million samples");
   double whole = std::floor(ratio + 1e-9);
   double frac = ratio - whole;
   if (frac < 1e-9) frac = 0.0;
@@ -354,10 +355,11 @@ DiscreteLoopAnalysis analyze_discrete_loop(const Zpk& cd, const Plant& plant, co
     const CVec ev = closed_loop_eigenvalues(cl);
     a.stable = true;
     for (int i = 0; i < ev.size(); ++i) a.stable = a.stable && std::abs(ev(i)) < 1.0;
-    if (a.stable) {
+    if (a.stable && n == 0) y_final = cl.Dy;
+    if (a.stable && n > 0) {
       const Eigen::MatrixXd I = Eigen::MatrixXd::Identity(n, n);
       const Eigen::VectorXd xf = (I - Eigen::MatrixXd(cl.A)).partialPivLu().solve(Eigen::VectorXd(cl.B));
-      y_final = n > 0 ? cl.Cy.dot(Vec(xf)) + cl.Dy : cl.Dy;
+      y_final = cl.Cy.dot(Vec(xf)) + cl.Dy;
     }
   }
   a.poles = poles_with_shares(cl, a.stable ? y_final : 0.0, T, o.residue_share);

@@ -155,7 +155,22 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
   } catch (const std::invalid_argument& e) {
     bad("--sample-time", e.what());
   }
+  auto finite_zpk = [](const Zpk& z) {
+    bool ok = std::isfinite(z.gain);
+    for (const Roots* set : {&z.zeros, &z.poles})
+      for (const Complex& c : *set) ok = ok && std::isfinite(c.real()) && std::isfinite(c.imag());
+    return ok;
+  };
+  if (!finite_zpk(r.discrete))
+    bad("--sample-time", "the discrete compensator overflows at this sample time (a root or the gain is beyond double range)");
   r.cascade = biquad_cascade(r.discrete);
+  const double limit = o.precision == Precision::Float ? 3.0e38 : 1.0e300;
+  bool in_range = std::abs(r.cascade.gain) < limit;
+  for (const Biquad& s : r.cascade.sections)
+    for (double c : {s.b[0], s.b[1], s.b[2], s.a[1], s.a[2]}) in_range = in_range && std::abs(c) < limit;
+  if (!in_range)
+    bad(o.precision == Precision::Float ? "--precision" : "--sample-time",
+        "a section coefficient or the gain is beyond the range of the chosen precision");
   for (const Biquad& s : r.cascade.sections) r.radii.push_back(section_pole_radius(s));
 
   // Warnings that need no spec.
@@ -197,7 +212,7 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
     ExportLoop& L = r.loops[i];
     const auto& cs = L.continuous_eval.step;
     lo.min_samples = 0;
-    if (cs) lo.min_samples = std::min(lo.max_samples, static_cast<int>(std::ceil(cs->horizon_s / T)) + 1);
+    if (cs) lo.min_samples = static_cast<int>(std::min<double>(lo.max_samples, std::ceil(cs->horizon_s / T) + 1.0));
     try {
       L.discrete_eval = analyze_discrete_loop(r.discrete, spec.plants[i], lo);
     } catch (const std::invalid_argument& e) {

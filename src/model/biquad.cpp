@@ -209,6 +209,10 @@ SectionRadius section_pole_radius(const Biquad& s) {
   };
   SectionRadius r;
   r.double_radius = radius(s.a[1], s.a[2]);
+  if (!(std::abs(s.a[1]) < 3e38 && std::abs(s.a[2]) < 3e38)) {  // beyond float range: no float value
+    r.float_radius = INFINITY;
+    return r;
+  }
   r.float_radius = radius(static_cast<double>(static_cast<float>(s.a[1])), static_cast<double>(static_cast<float>(s.a[2])));
   return r;
 }

@@ -7,9 +7,11 @@
 //    can freeze exactly that state; each complex pole pair is a section; the remaining real poles
 //    are sorted by radius and paired neighbour with neighbour (an odd one is a first-order section);
 //  * zeros go to the sections in order of decreasing pole radius (the section nearest the unit
-//    circle chooses first): complex zero pairs first, to the two-pole section whose pole is nearest,
-//    then real zeros, each to the section with room whose nearest pole is nearest; a section left
-//    with fewer zeros than poles carries the difference as a delay (leading b coefficients 0);
+//    circle chooses first): each two-pole section takes the complex zero pair nearest its poles
+//    (pairs left over go to the nearest section with room; first-order sections are merged when
+//    none has room), then each section takes the real zeros nearest its poles while it has room;
+//    a section left with fewer zeros than poles carries the difference as a delay (leading b
+//    coefficients 0);
 //  * sections are ordered by increasing pole radius (the most resonant section last), ties by
 //    pole angle;
 //  * each section is scaled to unit gain at z = 1 (DC) when that gain is finite and non-zero, else
