@@ -114,7 +114,7 @@ std::string export_c_source(const ExportReport& r, const std::string& name) {
     s += "static const " + real + " kLo = " + c_literal(r.options.clamp->first, p) + ";\n";
     s += "static const " + real + " kHi = " + c_literal(r.options.clamp->second, p) + ";\n";
     s += "/* Sign of the integrators' low-frequency gain: a positive error drives them this way. */\n";
-    s += "static const int kIntegratorSign = " + std::to_string(integrator_sign(r.discrete)) + ";\n";
+    s += "static const " + real + " kIntegratorSign = " + c_literal(integrator_sign(r.discrete), p) + ";\n";
   }
   s += "\nvoid " + name + "_reset(" + name + "_state* st) {\n  int i;\n";
   s += "  for (i = 0; i < " + N + "_SECTIONS + 1; ++i) {\n    st->s[i][0] = " + c_literal(0.0, p) + ";\n    st->s[i][1] = " +
@@ -131,7 +131,8 @@ std::string export_c_source(const ExportReport& r, const std::string& name) {
     s += "  {\n    const int high = u > kHi, low = u < kLo;\n";
     s += "    /* Conditional integration: hold the integrators while the clamp is active and the error\n"
          "       pushes further into it. */\n";
-    s += "    const int hold = (high && kIntegratorSign * e > 0) || (low && kIntegratorSign * e < 0);\n";
+    const std::string zero = c_literal(0.0, p);
+    s += "    const int hold = (high && kIntegratorSign * e > " + zero + ") || (low && kIntegratorSign * e < " + zero + ");\n";
     s += "    for (i = 0; i < " + N + "_SECTIONS; ++i) {\n      if (hold && kIntegrator[i]) continue;\n";
     s += "      st->s[i][0] = next[i][0];\n      st->s[i][1] = next[i][1];\n    }\n";
     s += "    if (high) u = kHi;\n    if (low) u = kLo;\n  }\n";

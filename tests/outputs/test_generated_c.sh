@@ -1,5 +1,5 @@
 #!/usr/bin/env bash
-# The generated C (double, float, clamped) is compiled with gcc, run on a step, and compared sample
+# The generated C (double, float, clamped in double and float) is compiled with gcc, run on a step, and compared sample
 # by sample with scipy (tests/outputs/check_generated_c.py): scipy.signal.sosfilt of the exported
 # JSON sections, and scipy.signal.cont2discrete(method="bilinear") + dlsim of the continuous
 # compensator. Skips (77) without gcc or Debian's python3-scipy.
@@ -26,7 +26,8 @@ run --format json -o "$tmp/sections.json"
 run --format c -o "$tmp/heater"
 run --format c --precision float -o "$tmp/heaterf.c"
 run --format c --clamp -2.5 2.5 -o "$tmp/heaterc"
-for f in heater.h heater.c heaterf.h heaterf.c heaterc.h heaterc.c; do
+run --format c --clamp -2.5 2.5 --precision float -o "$tmp/heatercf"
+for f in heater.h heater.c heaterf.h heaterf.c heaterc.h heaterc.c heatercf.h heatercf.c; do
   [ -s "$tmp/$f" ] || { echo "FAIL: $f not written"; fail=1; }
 done
 # Driver: N samples of e = +1, then M samples of e = -1 (M = 0 for the plain step).
@@ -42,12 +43,13 @@ int main(void) {
   return 0;
 }
 C
-  gcc -std=c99 -Wall -Wextra -Werror -pedantic -I"$tmp" "$tmp/drv_$1.c" "$tmp/$1.c" -o "$tmp/drv_$1" -lm ||
+  gcc -std=c99 -Wall -Wextra -Wconversion -Wdouble-promotion -Werror -pedantic -I"$tmp" "$tmp/drv_$1.c" "$tmp/$1.c" -o "$tmp/drv_$1" -lm ||
     { echo "FAIL: gcc could not compile $1.c"; fail=1; return; }
   "$tmp/drv_$1" >"$tmp/$1.out"
 }
 driver heater 400 0
 driver heaterf 400 0
 driver heaterc 1200 100
+driver heatercf 1200 100
 [ $fail = 0 ] || exit 1
-"$py" "$here/check_generated_c.py" "$tmp/sections.json" "$tmp/heater.out" "$tmp/heaterf.out" "$tmp/heaterc.out" -2.5 2.5 1200
+"$py" "$here/check_generated_c.py" "$tmp/sections.json" "$tmp/heater.out" "$tmp/heaterf.out" "$tmp/heaterc.out" -2.5 2.5 1200 "$tmp/heatercf.out"
