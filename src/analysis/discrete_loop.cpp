@@ -4,6 +4,7 @@
 #include <cmath>
 #include <stdexcept>
 
+#include <Eigen/Sparse>
 #include <unsupported/Eigen/MatrixFunctions>
 
 #include "polewright/analysis/closed_loop.hpp"
@@ -17,7 +18,7 @@ bool DiscreteLoopOptions::IsValid(std::string* error) const {
     return false;
   };
   if (!(sample_time_s > 0.0) || !std::isfinite(sample_time_s)) return fail("sample_time_s must be > 0 and finite");
-  if (compute_delay < 0 || compute_delay > kMaxDiscreteStates) return fail("compute_delay must be within 0..62 samples");
+  if (compute_delay < 0 || compute_delay > kMaxDiscreteStates) return fail("compute_delay must be within 0..400 samples");
   if (!(band > 0.0 && band < 1.0)) return fail("band must be within (0, 1)");
   if (!(residue_share > 0.0 && residue_share < 1.0)) return fail("residue_share must be within (0, 1)");
   if (min_samples < 0 || max_samples < 10 || min_samples > max_samples) return fail("need 0 <= min_samples <= max_samples, max_samples >= 10");
@@ -69,18 +70,54 @@ SampledPlant sample_plant(const Plant& plant, double T, int compute_delay) {
   return p;
 }
 
-StateSpace sampled_plant_state_space(const SampledPlant& p) {
+namespace {
+
+using DMat = Eigen::MatrixXd;
+using DVec = Eigen::VectorXd;
+using DRow = Eigen::RowVectorXd;
+
+// Dynamic-size state space: a dead time of many samples needs more states than Mat holds.
+struct DSys {
+  DMat A;
+  DVec B;
+  DRow C;
+  double D = 0.0;
+  int states() const { return static_cast<int>(A.rows()); }
+};
+
+// The closed loop r -> y, u, as ClosedLoop but of dynamic size.
+struct DLoop {
+  DMat A;
+  DVec B;
+  DRow Cy;
+  double Dy = 0.0;
+  DRow Cu;
+  double Du = 0.0;
+  bool well_posed = true;
+  int states() const { return static_cast<int>(A.rows()); }
+};
+
+DSys to_dynamic(const StateSpace& s) {
+  DSys d;
+  d.A = s.A;
+  d.B = s.B;
+  d.C = s.C;
+  d.D = s.D;
+  return d;
+}
+
+DSys plant_system(const SampledPlant& p) {
   const int nx = p.core.states();
   const bool frac = p.gamma1.size() > 0;
-  const int m = p.delay_samples + (frac || (p.fraction > 0.0) ? 1 : 0);
+  const int m = p.delay_samples + (frac || p.fraction > 0.0 ? 1 : 0);
   if (nx + m > kMaxDiscreteStates)
     throw std::invalid_argument("the dead time spans " + std::to_string(m) + " samples: the sampled plant would need " +
                                 std::to_string(nx + m) + " states, at most " + std::to_string(kMaxDiscreteStates));
   const int n = nx + m;
-  StateSpace s;
-  s.A = Mat::Zero(n, n);
-  s.B = Vec::Zero(n);
-  s.C = RowVec::Zero(n);
+  DSys s;
+  s.A = DMat::Zero(n, n);
+  s.B = DVec::Zero(n);
+  s.C = DRow::Zero(n);
   s.A.topLeftCorner(nx, nx) = p.core.A;
   s.C.head(nx) = p.core.C;
   // Register i (1-based) holds u[k - i], at state index nx + i - 1.
@@ -96,6 +133,62 @@ StateSpace sampled_plant_state_space(const SampledPlant& p) {
   const int nd = n0 + (p.fraction > 0.0 ? 1 : 0);
   if (nd == 0) s.D = p.core.D;
   else s.C(reg(nd)) += p.core.D;
+  return s;
+}
+
+// The interconnection algebra of close_loop (closed_loop.cpp) on dynamic-size matrices: the same
+// in discrete time; 1 + Dc Dg = 0 is an algebraic loop with no solution.
+DLoop close_dynamic(const DSys& c, const DSys& g, double k) {
+  const int nc = c.states(), ng = g.states(), n = nc + ng;
+  DLoop cl;
+  const double Dc = k * c.D;
+  const double delta = 1.0 + Dc * g.D;
+  cl.well_posed = std::abs(delta) > 1e-12;
+  const double inv = cl.well_posed ? 1.0 / delta : 0.0;
+  const DRow Fc = (k * inv) * c.C;     // u = Fc xc + Fg xg + Fr r
+  const DRow Fg = (-Dc * inv) * g.C;
+  const double Fr = Dc * inv;
+  const DRow Yg = g.C + g.D * Fg;      // y = Dg Fc xc + Yg xg + Dg Fr r
+  cl.A = DMat(n, n);
+  cl.A.topLeftCorner(nc, nc) = c.A - (c.B * g.D) * Fc;
+  cl.A.topRightCorner(nc, ng) = -c.B * Yg;
+  cl.A.bottomLeftCorner(ng, nc) = g.B * Fc;
+  cl.A.bottomRightCorner(ng, ng) = g.A + g.B * Fg;
+  cl.B = DVec(n);
+  cl.B.head(nc) = c.B * (1.0 - g.D * Fr);
+  cl.B.tail(ng) = g.B * Fr;
+  cl.Cy = DRow(n);
+  cl.Cy.head(nc) = g.D * Fc;
+  cl.Cy.tail(ng) = Yg;
+  cl.Dy = g.D * Fr;
+  cl.Cu = DRow(n);
+  cl.Cu.head(nc) = Fc;
+  cl.Cu.tail(ng) = Fg;
+  cl.Du = Fr;
+  return cl;
+}
+
+DLoop sampled_closed_loop(const Zpk& cd, const SampledPlant& sp, double k) {
+  const DSys g = plant_system(sp);
+  const DSys c = to_dynamic(realize(cd));
+  if (g.states() + c.states() > kMaxDiscreteStates)
+    throw std::invalid_argument("the sampled loop would need " + std::to_string(g.states() + c.states()) +
+                                " states, at most " + std::to_string(kMaxDiscreteStates));
+  return close_dynamic(c, g, k);
+}
+
+}  // namespace
+
+StateSpace sampled_plant_state_space(const SampledPlant& p) {
+  const DSys d = plant_system(p);
+  if (d.states() > kMaxStates)
+    throw std::invalid_argument("the sampled plant has " + std::to_string(d.states()) +
+                                " states, more than a StateSpace holds (" + std::to_string(kMaxStates) + ")");
+  StateSpace s;
+  s.A = d.A;
+  s.B = d.B;
+  s.C = d.C;
+  s.D = d.D;
   return s;
 }
 
@@ -140,7 +233,7 @@ DiscretePole make_pole(Complex z, double T) {
 // Poles with their shares of the sampled step response y[k] = y_f + sum c_i z_i^k, where
 // c_i = -(Cy v_i)(w_i B) / (1 - z_i) (v_i, w_i right and left eigenvectors). When y[0] = Dy does
 // not hold for the expansion (a nearly defective basis) every pole counts as one that matters.
-std::vector<DiscretePole> poles_with_shares(const ClosedLoop& cl, double y_final, double T, double threshold) {
+std::vector<DiscretePole> poles_with_shares(const DLoop& cl, double y_final, double T, double threshold) {
   const EigenDecomposition ed = eigen_decompose(cl.A);
   const int n = static_cast<int>(ed.values.size());
   bool reliable = ed.ok;
@@ -178,7 +271,7 @@ std::vector<DiscretePole> poles_with_shares(const ClosedLoop& cl, double y_final
 
 // The sampled unit-step response and its figures at the sample instants (rise and settling
 // interpolated linearly between samples, as the continuous figures are between their samples).
-StepMetrics sampled_step(const ClosedLoop& cl, double y_final, const std::vector<DiscretePole>& poles, double T,
+StepMetrics sampled_step(const DLoop& cl, double y_final, const std::vector<DiscretePole>& poles, double T,
                          const DiscreteLoopOptions& o, bool& truncated) {
   // Horizon, as in continuous time: the first k with sum |c_i| |z_i|^k below a tenth of the band
   // (the remaining transient is then provably inside it), found by bisection below the bound where
@@ -212,14 +305,13 @@ StepMetrics sampled_step(const ClosedLoop& cl, double y_final, const std::vector
   m.horizon_s = (n - 1) * T;
   m.final_value = y_final;
   std::vector<double> y(static_cast<size_t>(n)), u(static_cast<size_t>(n));
+  // The delayed samples make A mostly a shift: a sparse copy keeps long dead times cheap.
   Eigen::VectorXd x = Eigen::VectorXd::Zero(cl.states());
-  const Eigen::MatrixXd A = cl.A;
-  const Eigen::VectorXd B = cl.B;
-  const Eigen::RowVectorXd Cy = cl.Cy, Cu = cl.Cu;
+  const Eigen::SparseMatrix<double> A = cl.A.sparseView();
   for (int k = 0; k < n; ++k) {
-    y[static_cast<size_t>(k)] = Cy.dot(x) + cl.Dy;
-    u[static_cast<size_t>(k)] = Cu.dot(x) + cl.Du;
-    x = A * x + B;
+    y[static_cast<size_t>(k)] = cl.Cy.dot(x) + cl.Dy;
+    u[static_cast<size_t>(k)] = cl.Cu.dot(x) + cl.Du;
+    x = A * x + cl.B;
   }
   const double yf = y_final, ay = std::abs(yf), sg = yf >= 0.0 ? 1.0 : -1.0;
   double peak = -INFINITY, effort = 0.0, under = 0.0;
@@ -308,24 +400,19 @@ SteadyState discrete_steady_state(const Zpk& cd, const Plant& plant, double T, T
 }  // namespace
 
 DiscretePoles discrete_closed_loop_poles(const Zpk& cd, const SampledPlant& sp, double k, double share) {
-  const StateSpace g = sampled_plant_state_space(sp);
-  const StateSpace c = realize(cd);
-  if (g.states() + c.states() > kMaxDiscreteStates)
-    throw std::invalid_argument("the sampled loop would need " + std::to_string(g.states() + c.states()) +
-                                " states, at most " + std::to_string(kMaxDiscreteStates));
-  const ClosedLoop cl = close_loop(c, g, k);
+  const DLoop cl = sampled_closed_loop(cd, sp, k);
   DiscretePoles out;
   out.well_posed = cl.well_posed;
   if (!cl.well_posed) return out;
-  const CVec ev = closed_loop_eigenvalues(cl);
+  const CVec ev = eigenvalues_balanced(cl.A);
   out.stable = true;
   for (int i = 0; i < ev.size(); ++i) out.stable = out.stable && std::abs(ev(i)) < 1.0;
   double y_final = 0.0;
   const int n = cl.states();
   if (out.stable && n > 0) {
     const Eigen::MatrixXd I = Eigen::MatrixXd::Identity(n, n);
-    const Eigen::VectorXd xf = (I - Eigen::MatrixXd(cl.A)).partialPivLu().solve(Eigen::VectorXd(cl.B));
-    y_final = cl.Cy.dot(Vec(xf)) + cl.Dy;
+    const Eigen::VectorXd xf = (I - cl.A).partialPivLu().solve(cl.B);
+    y_final = cl.Cy.dot(xf) + cl.Dy;
   }
   out.poles = poles_with_shares(cl, y_final, sp.sample_time_s, share);
   return out;
@@ -338,12 +425,7 @@ DiscreteLoopAnalysis analyze_discrete_loop(const Zpk& cd, const Plant& plant, co
   DiscreteLoopAnalysis a;
   a.nyquist_rad_s = M_PI / T;
   const SampledPlant sp = sample_plant(plant, T, o.compute_delay);
-  const StateSpace g = sampled_plant_state_space(sp);
-  const StateSpace c = realize(cd);
-  if (g.states() + c.states() > kMaxDiscreteStates)
-    throw std::invalid_argument("the sampled loop would need " + std::to_string(g.states() + c.states()) +
-                                " states, at most " + std::to_string(kMaxDiscreteStates));
-  const ClosedLoop cl = close_loop(c, g, 1.0);
+  const DLoop cl = sampled_closed_loop(cd, sp, 1.0);
   a.states = cl.states();
   a.well_posed = cl.well_posed;
   if (!a.well_posed) return a;
@@ -352,14 +434,14 @@ DiscreteLoopAnalysis analyze_discrete_loop(const Zpk& cd, const Plant& plant, co
   const int n = cl.states();
   double y_final = NAN;
   {
-    const CVec ev = closed_loop_eigenvalues(cl);
+    const CVec ev = eigenvalues_balanced(cl.A);
     a.stable = true;
     for (int i = 0; i < ev.size(); ++i) a.stable = a.stable && std::abs(ev(i)) < 1.0;
     if (a.stable && n == 0) y_final = cl.Dy;
     if (a.stable && n > 0) {
       const Eigen::MatrixXd I = Eigen::MatrixXd::Identity(n, n);
-      const Eigen::VectorXd xf = (I - Eigen::MatrixXd(cl.A)).partialPivLu().solve(Eigen::VectorXd(cl.B));
-      y_final = cl.Cy.dot(Vec(xf)) + cl.Dy;
+      const Eigen::VectorXd xf = (I - cl.A).partialPivLu().solve(cl.B);
+      y_final = cl.Cy.dot(xf) + cl.Dy;
     }
   }
   a.poles = poles_with_shares(cl, a.stable ? y_final : 0.0, T, o.residue_share);

@@ -145,3 +145,24 @@ TEST_CASE("discrete loop options are validated", "[export][discrete_loop]") {
   CHECK(sampled_loop_response(make(2.0, {}, {}), sample_plant(plant_of(make(1.0, {}, {-1.0})), 0.1, 0), 0.0).real() ==
         Approx(2.0).epsilon(1e-14));
 }
+
+TEST_CASE("a dead time of many samples: 91 delayed samples in the loop", "[export][discrete_loop]") {
+  // Greenhouse-like loop: 1 / (600 s + 1) e^(-90 s) under a PI 4 (s + 0.0025) / s, sampled at 1 s
+  // with one sample of computation delay. Field notes (common practice): the hold and the delay cost
+  // about wT/2 + wT of phase; the continuous margin comes from frequency_metrics with the exact delay.
+  const Plant g = plant_of(make(1.0 / 600.0, {}, {-1.0 / 600.0}), 90.0);
+  const Zpk c = make(4.0, {-0.0025}, {0.0});
+  const FrequencyMetrics fc = frequency_metrics(zpk_series(c, g.tf), 90.0, FrequencyOptions{});
+  const double T = 1.0;
+  DiscretizeOptions d;
+  d.sample_time_s = T;
+  const DiscreteLoopAnalysis a = analyze_discrete_loop(discretize(c, d), g, loop_opts(T, 1));
+  CHECK(a.states == 1 + 91 + 1);
+  REQUIRE(a.stable);
+  REQUIRE(a.frequency.phase_margin_deg);
+  const double w = *a.frequency.crossover_rad_s;
+  const double predicted = 1.5 * w * T * 180.0 / M_PI;
+  CHECK(*fc.phase_margin_deg - *a.frequency.phase_margin_deg == Approx(predicted).epsilon(0.1));
+  REQUIRE(a.step);
+  CHECK(a.step->final_value == Approx(1.0).epsilon(1e-9));  // PI: no steady-state error
+}

@@ -30,7 +30,8 @@ struct SampledPlant {
 // Throws std::invalid_argument for T <= 0 or compute_delay < 0.
 SampledPlant sample_plant(const Plant& plant, double sample_time_s, int compute_delay);
 
-// The same as one state space u[k] -> y[k] with the delayed inputs as extra states.
+// The same as one state space u[k] -> y[k] with the delayed inputs as extra states (throws
+// std::invalid_argument beyond kMaxStates, the most a StateSpace holds).
 StateSpace sampled_plant_state_space(const SampledPlant& p);
 
 // Gd(z) = z^-n (C (zI - Phi)^-1 (Gamma0 + Gamma1 z^-1) + D z^-f).
@@ -73,8 +74,10 @@ struct DiscreteLoopAnalysis {
   double nyquist_rad_s = 0.0;
 };
 
-// Largest closed-loop state count the analysis takes (plant + delayed inputs + compensator).
-constexpr int kMaxDiscreteStates = kMaxStates;
+// Largest closed-loop state count the analysis takes (plant + delayed inputs + compensator). The
+// analysis uses dynamic-size matrices, so a dead time of up to a few hundred samples fits; the
+// eigen-decompositions grow as the cube of this.
+constexpr int kMaxDiscreteStates = 400;
 
 // L(e^{jwT}) = Cd(e^{jwT}) Gd(e^{jwT}).
 Complex sampled_loop_response(const Zpk& cd, const SampledPlant& p, double w);
