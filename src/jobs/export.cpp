@@ -254,7 +254,7 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
         out.continuous = cv;
       }
     }
-    if (out.checked) out.met = worst <= 0.0 && r.discrete_stable;
+    out.met = worst <= 0.0 && r.discrete_stable;
     r.all_met = r.all_met && out.met;
     r.outcomes.push_back(out);
   }

@@ -69,7 +69,6 @@ nlohmann::ordered_json export_json(const ExportReport& r) {
                       {"limit", json_number(o.requirement.limit)},
                       {"continuous", metric_value_json(o.continuous)},
                       {"discrete", metric_value_json(o.discrete)},
-                      {"checked", o.checked},
                       {"met", o.met},
                       {"worst_variant", o.worst_plant}});
     }

@@ -49,8 +49,8 @@ std::string export_text(const ExportReport& r) {
       t.add({info.label,
              std::string(o.requirement.sense == Sense::AtMost ? "<= " : ">= ") + fmt_number(o.requirement.limit) +
                  (*info.unit ? std::string(" ") + info.unit : ""),
-             value_text(o.continuous, info.unit), o.checked ? value_text(o.discrete, info.unit) : "not checked",
-             !o.checked ? "-" : (o.met ? "yes" : "NO"), r.plants[static_cast<size_t>(o.worst_plant)].name});
+             value_text(o.continuous, info.unit), value_text(o.discrete, info.unit), o.met ? "yes" : "NO",
+             r.plants[static_cast<size_t>(o.worst_plant)].name});
     }
     out += t.render() + "\n";
     TextTable f({"plant", "figure", "continuous", "discrete"});

@@ -54,7 +54,6 @@ struct ExportOutcome {
   MetricValue continuous;  // worst over the plants
   MetricValue discrete;    // worst over the plants
   int worst_plant = 0;
-  bool checked = true;     // false: not re-verified in discrete time (none at present)
   bool met = false;
 };
 
