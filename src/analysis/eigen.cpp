@@ -6,9 +6,12 @@
 
 namespace pw {
 
-void balance(Mat& A, Vec& scale) {
+namespace {
+
+template <class M, class V>
+void balance_impl(M& A, V& scale) {
   const int n = static_cast<int>(A.rows());
-  scale = Vec::Ones(n);
+  scale = V::Ones(n);
   constexpr double radix = 2.0;
   bool converged = false;
   for (int sweep = 0; sweep < 100 && !converged; ++sweep) {
@@ -36,16 +39,18 @@ void balance(Mat& A, Vec& scale) {
   }
 }
 
-CVec eigenvalues_balanced(const Mat& A_in) {
+template <class M, class V>
+CVec eigenvalues_impl(const M& A_in) {
   if (A_in.rows() == 0) return CVec(0);
-  Mat A = A_in;
-  Vec d;
-  balance(A, d);
+  M A = A_in;
+  V d;
+  balance_impl(A, d);
   Eigen::EigenSolver<Eigen::MatrixXd> es(Eigen::MatrixXd(A), false);
   return es.eigenvalues();
 }
 
-EigenDecomposition eigen_decompose(const Mat& A_in) {
+template <class M, class V>
+EigenDecomposition decompose_impl(const M& A_in) {
   EigenDecomposition out;
   if (A_in.rows() == 0) {
     out.values = CVec(0);
@@ -53,9 +58,9 @@ EigenDecomposition eigen_decompose(const Mat& A_in) {
     out.ok = true;
     return out;
   }
-  Mat A = A_in;
-  Vec d;
-  balance(A, d);
+  M A = A_in;
+  V d;
+  balance_impl(A, d);
   Eigen::EigenSolver<Eigen::MatrixXd> es(Eigen::MatrixXd(A), true);
   out.ok = es.info() == Eigen::Success;
   out.values = es.eigenvalues();
@@ -63,5 +68,14 @@ EigenDecomposition eigen_decompose(const Mat& A_in) {
   for (int i = 0; i < out.vectors.rows(); ++i) out.vectors.row(i) *= d(i);
   return out;
 }
+
+}  // namespace
+
+void balance(Mat& A, Vec& scale) { balance_impl(A, scale); }
+void balance(Eigen::MatrixXd& A, Eigen::VectorXd& scale) { balance_impl(A, scale); }
+CVec eigenvalues_balanced(const Mat& A) { return eigenvalues_impl<Mat, Vec>(A); }
+CVec eigenvalues_balanced(const Eigen::MatrixXd& A) { return eigenvalues_impl<Eigen::MatrixXd, Eigen::VectorXd>(A); }
+EigenDecomposition eigen_decompose(const Mat& A) { return decompose_impl<Mat, Vec>(A); }
+EigenDecomposition eigen_decompose(const Eigen::MatrixXd& A) { return decompose_impl<Eigen::MatrixXd, Eigen::VectorXd>(A); }
 
 }  // namespace pw

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <functional>
+#include <stdexcept>
 
 namespace pw {
 
@@ -205,23 +206,23 @@ std::pair<double, double> maximise_log(const F& f, double a, double b) {
   return {w, f(w)};
 }
 
-}  // namespace
-
-FrequencyMetrics frequency_metrics(const Zpk& loop, double delay_s, const FrequencyOptions& opt) {
+// The margins, crossovers, bandwidth and peaks of any loop response Lw over the grid w; `lim`
+// carries what the grid cannot show (the loop type, L(0), a crossing at the upper end).
+template <class F>
+FrequencyMetrics metrics_core(const F& Lw, const std::vector<double>& w, const ResponseLimits& lim,
+                              const FrequencyOptions& opt) {
   FrequencyMetrics m;
-  const std::vector<double> w = frequency_grid(loop, delay_s, opt);
   m.grid_min_rad_s = w.front();
   m.grid_max_rad_s = w.back();
-  const LoopResponse Lw(loop, delay_s);
   std::vector<Complex> L(w.size());
   for (size_t i = 0; i < w.size(); ++i) L[i] = Lw(w[i]);
 
   auto logmag = [&](double x) { return 0.5 * std::log(std::norm(Lw(x))); };
   auto imag_part = [&](double x) { return Lw(x).imag(); };
 
-  const int type = zpk_integrators(loop);
+  const int type = lim.type;
   if (type == 0) {
-    const double L0 = zpk_low_frequency_gain(loop);
+    const double L0 = lim.low_frequency_gain;
     if (L0 < 0.0) {
       m.phase_crossovers_rad_s.push_back(0.0);
       m.critical_gains.push_back(1.0 / -L0);
@@ -245,10 +246,9 @@ FrequencyMetrics frequency_metrics(const Zpk& loop, double delay_s, const Freque
       }
     }
   }
-  if (loop.relative_degree() == 0 && loop.gain != 0.0 && (delay_s > 0.0 || loop.gain < 0.0)) {
-    // Biproper loop: the high-frequency limit |L| -> |gain| is a boundary as well.
-    m.phase_crossovers_rad_s.push_back(INFINITY);
-    m.critical_gains.push_back(1.0 / std::abs(loop.gain));
+  if (lim.upper_crossing) {
+    m.phase_crossovers_rad_s.push_back(lim.upper_crossing->first);
+    m.critical_gains.push_back(lim.upper_crossing->second);
   }
 
   for (size_t i = 0; i < m.phase_margins_deg.size(); ++i) {
@@ -280,7 +280,7 @@ FrequencyMetrics frequency_metrics(const Zpk& loop, double delay_s, const Freque
   double T0 = 0.0;
   if (type > 0) T0 = 1.0;
   else if (type == 0) {
-    const double L0 = zpk_low_frequency_gain(loop);
+    const double L0 = lim.low_frequency_gain;
     T0 = std::abs(L0 / (1.0 + L0));
   }
   if (T0 > 0.0 && std::isfinite(T0)) {
@@ -338,6 +338,25 @@ FrequencyMetrics frequency_metrics(const Zpk& loop, double delay_s, const Freque
   for (auto* o : {&m.peak_sensitivity, &m.peak_complementary})
     if (*o && !std::isfinite(**o)) o->reset();
   return m;
+}
+
+}  // namespace
+
+FrequencyMetrics frequency_metrics(const Zpk& loop, double delay_s, const FrequencyOptions& opt) {
+  ResponseLimits lim;
+  lim.type = zpk_integrators(loop);
+  if (lim.type == 0) lim.low_frequency_gain = zpk_low_frequency_gain(loop);
+  if (loop.relative_degree() == 0 && loop.gain != 0.0 && (delay_s > 0.0 || loop.gain < 0.0)) {
+    // Biproper loop: the high-frequency limit |L| -> |gain| is a boundary as well.
+    lim.upper_crossing = std::make_pair(INFINITY, 1.0 / std::abs(loop.gain));
+  }
+  return metrics_core(LoopResponse(loop, delay_s), frequency_grid(loop, delay_s, opt), lim, opt);
+}
+
+FrequencyMetrics frequency_metrics_of(const std::function<Complex(double)>& response, const std::vector<double>& grid,
+                                      const ResponseLimits& limits, const FrequencyOptions& options) {
+  if (grid.size() < 2) throw std::invalid_argument("frequency_metrics_of: the grid needs two points or more");
+  return metrics_core(response, grid, limits, options);
 }
 
 }  // namespace pw

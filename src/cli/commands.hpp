@@ -22,6 +22,7 @@ void register_design(CLI::App& app);
 void register_retune(CLI::App& app);
 void register_sweep(CLI::App& app);  // sweep and merge
 void register_report(CLI::App& app);
+void register_export(CLI::App& app);
 
 // Sets the action of the subcommand that was parsed.
 void select(std::function<int()> action);

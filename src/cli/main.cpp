@@ -16,6 +16,7 @@ int main(int argc, char** argv) {
   pw::cli::register_retune(app);
   pw::cli::register_sweep(app);
   pw::cli::register_report(app);
+  pw::cli::register_export(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::CallForHelp& e) {

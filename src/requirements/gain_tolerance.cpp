@@ -1,4 +1,5 @@
 #include <cmath>
+#include <functional>
 
 #include "polewright/requirements/evaluate.hpp"
 
@@ -15,17 +16,17 @@ bool inside(const LoopParts& parts, double k, const Region& region, double share
 }
 
 // Walks from 1 towards `limit` by `ratio` steps, then bisects the first change in log gain.
-double edge(const LoopParts& parts, const Region& region, double share, double limit, double ratio, bool& at_limit) {
+double edge(const std::function<bool(double)>& ok, double limit, double ratio, bool& at_limit) {
   const bool up = limit > 1.0;
   double good = 1.0;
   for (;;) {
     double next = up ? good * ratio : good / ratio;
     if (up ? next >= limit : next <= limit) next = limit;
-    if (!inside(parts, next, region, share)) {
+    if (!ok(next)) {
       double a = std::log(good), b = std::log(next);
       for (int it = 0; it < 40; ++it) {
         const double m = 0.5 * (a + b);
-        (inside(parts, std::exp(m), region, share) ? a : b) = m;
+        (ok(std::exp(m)) ? a : b) = m;
       }
       at_limit = false;
       return std::exp(a);
@@ -58,13 +59,17 @@ GainToleranceResult gain_tolerance_screen(const LoopParts& parts, const Region& 
   return g;
 }
 
-GainToleranceResult gain_tolerance(const LoopParts& parts, const Region& region, double share, double ratio) {
+GainToleranceResult gain_tolerance_scan(const std::function<bool(double)>& ok, double ratio) {
   GainToleranceResult g;
-  if (!inside(parts, 1.0, region, share)) return g;
-  g.hi = edge(parts, region, share, kGainScanMax, ratio, g.hi_at_limit);
-  g.lo = edge(parts, region, share, kGainScanMin, ratio, g.lo_at_limit);
+  if (!ok(1.0)) return g;
+  g.hi = edge(ok, kGainScanMax, ratio, g.hi_at_limit);
+  g.lo = edge(ok, kGainScanMin, ratio, g.lo_at_limit);
   g.tolerance_pct = 100.0 * std::min(*g.hi - 1.0, 1.0 - *g.lo);
   return g;
+}
+
+GainToleranceResult gain_tolerance(const LoopParts& parts, const Region& region, double share, double ratio) {
+  return gain_tolerance_scan([&](double k) { return inside(parts, k, region, share); }, ratio);
 }
 
 }  // namespace pw

@@ -33,3 +33,28 @@ TEST_CASE("eigenvalues of a badly scaled matrix and eigenvectors of the original
   const CMat r = A.cast<Complex>() * ed.vectors - ed.vectors * ed.values.asDiagonal();
   CHECK(r.norm() <= 1e-8 * A.norm() * ed.vectors.norm());
 }
+
+TEST_CASE("dynamic-size overloads: beyond the fixed maximum size", "[analysis][eigen][export]") {
+  // An upper-triangular 100 x 100 matrix has its diagonal as eigenvalues (closed form); the entries
+  // above the diagonal spread over many decades so balancing has work to do.
+  const int n = 100;
+  Eigen::MatrixXd A = Eigen::MatrixXd::Zero(n, n);
+  for (int i = 0; i < n; ++i) {
+    A(i, i) = -(i + 1.0);
+    for (int j = i + 1; j < n; ++j) A(i, j) = std::pow(10.0, (j - i) % 7 - 3);
+  }
+  CVec ev = eigenvalues_balanced(A);
+  std::vector<double> re;
+  for (int i = 0; i < n; ++i) re.push_back(ev(i).real());
+  std::sort(re.begin(), re.end());
+  for (int i = 0; i < n; ++i) CHECK(re[static_cast<size_t>(i)] == Approx(-(n - i)).epsilon(1e-6));
+  Eigen::MatrixXd B = A;
+  Eigen::VectorXd d;
+  balance(B, d);
+  CHECK((d.asDiagonal().inverse() * A * d.asDiagonal() - B).norm() <= 1e-12 * A.norm());
+  const EigenDecomposition ed = eigen_decompose(A);
+  REQUIRE(ed.ok);
+  for (int i = 0; i < n; i += 17)
+    CHECK((A * ed.vectors.col(i).real() - ed.values(i).real() * ed.vectors.col(i).real()).norm() <=
+          1e-8 * ed.vectors.col(i).norm() * A.norm());
+}

@@ -28,3 +28,18 @@ TEST_CASE("gain tolerance of the standard loop against a damping bound", "[requi
   CHECK_FALSE(e.lo);
   CHECK(e.tolerance_pct == 0.0);
 }
+
+TEST_CASE("gain_tolerance_scan finds the edges of any predicate", "[requirements][gain_tolerance][export]") {
+  // ok(k) holds exactly on [0.5, 1.8]: the scan must find both edges (to its 40 bisections) and
+  // report 100 min(0.8, 0.5) = 50 %.
+  const GainToleranceResult g = gain_tolerance_scan([](double k) { return k >= 0.5 && k <= 1.8; });
+  REQUIRE(g.hi);
+  REQUIRE(g.lo);
+  CHECK(*g.hi == Approx(1.8).epsilon(1e-9));
+  CHECK(*g.lo == Approx(0.5).epsilon(1e-9));
+  CHECK(g.tolerance_pct == Approx(50.0).epsilon(1e-8));
+  CHECK(!gain_tolerance_scan([](double k) { return k > 2.0; }).hi);  // the nominal loop fails
+  const GainToleranceResult all = gain_tolerance_scan([](double) { return true; });
+  CHECK(all.hi_at_limit);
+  CHECK(all.lo_at_limit);
+}

@@ -20,4 +20,9 @@ struct EigenDecomposition {
 };
 EigenDecomposition eigen_decompose(const Mat& A);
 
+// The same for dynamic-size matrices (a sampled loop with a long dead time holds more states than Mat).
+void balance(Eigen::MatrixXd& A, Eigen::VectorXd& scale);
+CVec eigenvalues_balanced(const Eigen::MatrixXd& A);
+EigenDecomposition eigen_decompose(const Eigen::MatrixXd& A);
+
 }  // namespace pw

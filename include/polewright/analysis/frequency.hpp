@@ -1,7 +1,9 @@
 // Loop frequency response L(jw) = C(jw) G(jw) e^(-jwT) with the exact delay, and the margins.
 #pragma once
 
+#include <functional>
 #include <optional>
+#include <utility>
 #include <string>
 #include <vector>
 
@@ -69,6 +71,20 @@ struct FrequencyMetrics {
 };
 
 FrequencyMetrics frequency_metrics(const Zpk& loop, double delay_s, const FrequencyOptions& options);
+
+// What the margin code needs to know about a loop beyond its values on the grid.
+struct ResponseLimits {
+  int type = 0;                   // integrators in the loop
+  double low_frequency_gain = 0;  // L(0) when type == 0 (a negative L(0) is a phase crossover at 0)
+  // A phase crossover at the upper end of the grid: (frequency, critical gain 1 / |L|), e.g. the
+  // high-frequency limit of a biproper loop or the Nyquist frequency of a sampled loop.
+  std::optional<std::pair<double, double>> upper_crossing;
+};
+
+// The same figures for any loop response (for example a sampled loop L(e^{jwT})) on a given
+// ascending grid of positive frequencies; the crossings and peaks are refined exactly as above.
+FrequencyMetrics frequency_metrics_of(const std::function<Complex(double)>& response, const std::vector<double>& grid,
+                                      const ResponseLimits& limits, const FrequencyOptions& options);
 
 // 180 + angle wrapped into (-180, 180].
 double wrap_degrees(double deg);

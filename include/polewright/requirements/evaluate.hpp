@@ -3,6 +3,7 @@
 #pragma once
 
 #include <array>
+#include <functional>
 #include <optional>
 #include <string>
 #include <vector>
@@ -31,6 +32,10 @@ struct GainToleranceResult {
 // `step_ratio` is the outward step before bisecting the first change (40 bisections).
 GainToleranceResult gain_tolerance(const LoopParts& parts, const Region& region, double residue_share,
                                    double step_ratio = 1.05);
+
+// The same scan for any loop: `ok(k)` tells whether the loop with its compensator scaled by k is
+// stable with the poles that matter inside the region (the sampled loop of the export uses it).
+GainToleranceResult gain_tolerance_scan(const std::function<bool(double)>& ok, double step_ratio = 1.05);
 
 // The search's screening version for a required tolerance t (fraction): it tests the scale factors
 // 1 - t and 1 + t and only bisects (8 steps) towards a side that fails, so a loop that holds the

@@ -1,0 +1,98 @@
+// The sampled loop: a discrete compensator Cd(z) (z-plane zeros/poles/gain), a computation delay of
+// d samples, and the plant behind a zero-order hold at the sample time T, sampled exactly (matrix
+// exponential), including a dead time that is not a whole number of samples (the modified ZOH).
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "polewright/analysis/frequency.hpp"
+#include "polewright/analysis/steady_state.hpp"
+#include "polewright/analysis/step.hpp"
+#include "polewright/model/plant.hpp"
+#include "polewright/model/state_space.hpp"
+
+namespace pw {
+
+// x[k+1] = Phi x[k] + Gamma0 u[k - n] + Gamma1 u[k - n - 1], y[k] = C x[k] + D u[k - n - f], where
+// the plant dead time plus d samples is n T + delta (0 <= delta < T), f = 1 when delta > 0,
+// Gamma0 = int_0^{T - delta} e^(A s) ds B and Gamma1 = e^(A (T - delta)) int_0^delta e^(A s) ds B.
+// Exact for a piecewise-constant input.
+struct SampledPlant {
+  StateSpace core;       // A = Phi, B = Gamma0, C, D of the plant's own states
+  Vec gamma1;            // Gamma1 (empty when delta = 0)
+  int delay_samples = 0; // n
+  double fraction = 0.0; // delta / T
+  double sample_time_s = 0.0;
+};
+
+// Throws std::invalid_argument for T <= 0 or compute_delay < 0.
+SampledPlant sample_plant(const Plant& plant, double sample_time_s, int compute_delay);
+
+// The same as one state space u[k] -> y[k] with the delayed inputs as extra states (throws
+// std::invalid_argument beyond kMaxStates, the most a StateSpace holds).
+StateSpace sampled_plant_state_space(const SampledPlant& p);
+
+// Gd(z) = z^-n (C (zI - Phi)^-1 (Gamma0 + Gamma1 z^-1) + D z^-f).
+Complex sampled_plant_response(const SampledPlant& p, Complex z);
+
+struct DiscreteLoopOptions {
+  double sample_time_s = 0.0;  // T > 0 (required)
+  int compute_delay = 0;       // d >= 0 samples between sampling y and applying u
+  double band = 0.02;          // settling band (fraction of the final value)
+  double residue_share = 0.02; // a pole "matters" at this share of the step response or more
+  int min_samples = 0;         // simulate at least this many samples
+  int max_samples = 200000;    // and at most this many
+  bool keep_trace = false;
+  TestSignal error_signal = TestSignal::Step;
+  FrequencyOptions frequency;
+
+  bool IsValid(std::string* error) const;
+};
+
+struct DiscretePole {
+  Complex z;
+  Complex s;                    // equivalent s-plane pole ln(z) / T (principal branch)
+  double damping = 1.0;         // of s (1 for z = 0)
+  double natural_frequency = 0; // |s| (infinite for z = 0)
+  double share = 1.0;           // share of the sampled step response
+  double residue = -1.0;        // |c_i| in y[k] = y_f + sum c_i z_i^k (-1 when the expansion is unreliable)
+  bool matters = true;
+};
+
+struct DiscreteLoopAnalysis {
+  bool well_posed = true;
+  bool stable = false;                 // every closed-loop pole has |z| < 1
+  int states = 0;
+  std::vector<DiscretePole> poles;     // by |z|, largest first
+  std::optional<DiscretePole> dominant;  // the largest |z| among the poles that matter
+  std::optional<StepMetrics> step;     // sampled unit-step response (stable loops)
+  bool step_truncated = false;         // the horizon wanted more than max_samples samples
+  FrequencyMetrics frequency;          // of L(e^{jwT}) on (0, pi / T]
+  SteadyState steady_state;            // from the discrete error constants
+  double nyquist_rad_s = 0.0;
+};
+
+// Largest closed-loop state count the analysis takes (plant + delayed inputs + compensator). The
+// analysis uses dynamic-size matrices, so a dead time of up to a few hundred samples fits; the
+// eigen-decompositions grow as the cube of this.
+constexpr int kMaxDiscreteStates = 400;
+
+// L(e^{jwT}) = Cd(e^{jwT}) Gd(e^{jwT}).
+Complex sampled_loop_response(const Zpk& cd, const SampledPlant& p, double w);
+
+// Closed-loop poles of the sampled loop with the compensator scaled by gain_scale, largest |z| first,
+// with their shares of the sampled step response (the gain-tolerance scan of the export uses it).
+struct DiscretePoles {
+  bool well_posed = true;
+  bool stable = false;
+  std::vector<DiscretePole> poles;
+};
+DiscretePoles discrete_closed_loop_poles(const Zpk& cd, const SampledPlant& p, double gain_scale, double residue_share);
+
+// Throws std::invalid_argument for invalid options or a loop with more than kMaxDiscreteStates
+// states (a dead time of many samples).
+DiscreteLoopAnalysis analyze_discrete_loop(const Zpk& cd, const Plant& plant, const DiscreteLoopOptions& options);
+
+}  // namespace pw

@@ -1,0 +1,93 @@
+// The export job: a continuous compensator to a discrete one at a sample time, realised as
+// biquads, and the sampled loop re-verified against the spec's requirements.
+#pragma once
+
+#include <optional>
+#include <string>
+#include <utility>
+#include <vector>
+
+#include "polewright/analysis/discrete_loop.hpp"
+#include "polewright/model/biquad.hpp"
+#include "polewright/model/discretize.hpp"
+#include "polewright/requirements/evaluate.hpp"
+#include "polewright/requirements/result_parse.hpp"
+
+namespace pw {
+
+enum class Precision { Double, Float };
+
+struct ExportOptions {
+  double sample_time_s = 0.0;                       // T > 0, required
+  DiscreteMethod method = DiscreteMethod::Tustin;   // default Tustin
+  // Prewarp: the warp point; default the highest gain crossover of the nominal continuous loop
+  // (needs a spec). Notches are always warped at their own centre.
+  std::optional<double> prewarp_rad_s;
+  int compute_delay = 0;                            // samples between sampling y and applying u
+  Precision precision = Precision::Double;          // of the generated C code
+  std::optional<std::pair<double, double>> clamp;   // output limits lo < hi (C code)
+  // Warnings (common practice thresholds).
+  double max_phase_margin_drop_deg = 5.0;           // discrete phase margin below the continuous one by more
+  double max_gain_margin_drop_db = 2.0;             // discrete gain margin below the continuous one by more
+  // An unbounded continuous gain margin always becomes finite once sampled: warn when it ends below this.
+  double unbounded_gain_margin_floor_db = 10.0;
+  double min_rate_ratio = 10.0;                     // sample rate 2 pi / T under this times the crossover
+  // A section is close to instability in float when rounding a1, a2 to float moves its pole radius
+  // by more than this fraction of its distance to the unit circle (or onto or past the circle).
+  double float_radius_fraction = 0.5;
+
+  bool IsValid(std::string* error) const;
+};
+
+// Per plant (nominal first): the continuous and the discrete figures of the loop.
+struct ExportLoop {
+  std::string plant_name;
+  std::array<MetricValue, kMetricCount> continuous{};
+  std::array<MetricValue, kMetricCount> discrete{};
+  bool continuous_stable = false;
+  LoopEvaluation continuous_eval;
+  DiscreteLoopAnalysis discrete_eval;
+};
+
+struct ExportOutcome {
+  Requirement requirement;
+  MetricValue continuous;  // worst over the plants
+  MetricValue discrete;    // worst over the plants
+  int worst_plant = 0;
+  bool met = false;
+};
+
+struct ExportReport {
+  std::string design_name;   // spec name, or "compensator"
+  std::string source_job;    // check, design, retune or compensator
+  int rank = 1;
+  ExportOptions options;
+  std::optional<double> warp_rad_s;  // the warp point used (prewarp)
+  Zpk continuous;
+  Zpk discrete;
+  BiquadCascade cascade;
+  std::vector<SectionRadius> radii;  // per section
+  bool verified = false;             // a spec was available and the loop was re-checked
+  RequirementSet requirements;
+  std::vector<Plant> plants;
+  std::vector<ExportLoop> loops;
+  std::vector<ExportOutcome> outcomes;
+  bool discrete_stable = false;
+  bool all_met = false;
+  std::optional<double> crossover_rad_s;  // highest continuous crossover over the plants
+  std::vector<std::string> warnings;
+  std::vector<std::string> notes;
+};
+
+// Gain tolerance of the sampled loop (the continuous definition, poles mapped by s = ln(z) / T).
+GainToleranceResult discrete_gain_tolerance(const Zpk& cd, const SampledPlant& sp, const Region& region, double share);
+
+// The figures of a sampled loop as metric values (gain tolerance is left missing: see
+// discrete_gain_tolerance).
+std::array<MetricValue, kMetricCount> discrete_metric_values(const DiscreteLoopAnalysis& a);
+
+// Throws SpecError naming the option ("--sample-time", "--prewarp-rad-s", ...) for bad options
+// or a compensator the method cannot map.
+ExportReport run_export(const ResultInput& input, int rank, const ExportOptions& options);
+
+}  // namespace pw

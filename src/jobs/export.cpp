@@ -1,0 +1,299 @@
+#include "polewright/jobs/export.hpp"
+
+#include <cmath>
+#include <cstdio>
+#include <stdexcept>
+
+#include "polewright/jobs/check.hpp"
+#include "polewright/requirements/region.hpp"
+
+namespace pw {
+
+bool ExportOptions::IsValid(std::string* error) const {
+  auto fail = [&](const char* msg) {
+    if (error) *error = msg;
+    return false;
+  };
+  if (!(sample_time_s > 0.0) || !std::isfinite(sample_time_s)) return fail("--sample-time must be a number > 0");
+  if (prewarp_rad_s && (!(*prewarp_rad_s > 0.0) || !std::isfinite(*prewarp_rad_s)))
+    return fail("--prewarp-rad-s must be a number > 0");
+  if (prewarp_rad_s && !(*prewarp_rad_s * sample_time_s < M_PI))
+    return fail("--prewarp-rad-s must be below the Nyquist frequency pi / T");
+  if (compute_delay < 0 || compute_delay > 50) return fail("--compute-delay must be a whole number of samples within 0..50");
+  if (clamp && !(std::isfinite(clamp->first) && std::isfinite(clamp->second) && clamp->first < clamp->second))
+    return fail("--clamp needs two finite numbers LO < HI");
+  if (!(max_phase_margin_drop_deg >= 0.0) || !(max_gain_margin_drop_db >= 0.0) || !(min_rate_ratio > 0.0) ||
+      !(unbounded_gain_margin_floor_db >= 0.0) ||
+      !(float_radius_fraction > 0.0 && float_radius_fraction < 1.0))
+    return fail("warning thresholds must be >= 0 (rate ratio > 0, float fraction within (0, 1))");
+  return true;
+}
+
+namespace {
+
+MetricValue number(const std::optional<double>& v) {
+  MetricValue m;
+  if (v && std::isfinite(*v)) m.value = *v;
+  return m;
+}
+MetricValue infinite() {
+  MetricValue m;
+  m.infinite = true;
+  return m;
+}
+
+std::string fmt(const char* f, double a, double b = 0.0, double c = 0.0) {
+  char buf[256];
+  std::snprintf(buf, sizeof buf, f, a, b, c);
+  return buf;
+}
+
+// Option name for a message from discretize / the discrete analysis.
+[[noreturn]] void bad(const std::string& option, const std::string& msg) { throw SpecError(option, msg); }
+
+}  // namespace
+
+GainToleranceResult discrete_gain_tolerance(const Zpk& cd, const SampledPlant& sp, const Region& region, double share) {
+  // The continuous definition on the sampled loop: stable, and the poles that matter (mapped to
+  // s = ln(z) / T) inside the region. Poles at z = 0 are infinitely fast and always inside.
+  return gain_tolerance_scan([&](double k) {
+    const DiscretePoles dp = discrete_closed_loop_poles(cd, sp, k, share);
+    if (!dp.well_posed || !dp.stable) return false;
+    std::vector<PoleInfo> poles;
+    for (const DiscretePole& p : dp.poles) {
+      if (std::abs(p.z) == 0.0) continue;
+      PoleInfo q;
+      q.pole = p.s;
+      q.damping = p.damping;
+      q.natural_frequency = p.natural_frequency;
+      q.share = p.share;
+      q.matters = p.matters;
+      poles.push_back(q);
+    }
+    return region_holds(region, poles);
+  });
+}
+
+std::array<MetricValue, kMetricCount> discrete_metric_values(const DiscreteLoopAnalysis& a) {
+  std::array<MetricValue, kMetricCount> v{};
+  auto at = [&](MetricId id) -> MetricValue& { return v[static_cast<size_t>(id)]; };
+  double min_damping = INFINITY;
+  for (const DiscretePole& p : a.poles)
+    if (p.matters) min_damping = std::min(min_damping, p.damping);
+  if (std::isfinite(min_damping)) at(MetricId::DampingRatio).value = min_damping;
+  if (a.dominant) at(MetricId::NaturalFrequency) = number(a.dominant->natural_frequency);
+  const FrequencyMetrics& f = a.frequency;
+  if (a.well_posed) {
+    at(MetricId::PhaseMargin) = f.gain_crossovers_rad_s.empty() ? infinite() : number(f.phase_margin_deg);
+    at(MetricId::GainMargin) = f.critical_gains.empty() ? infinite() : number(f.gain_margin_db);
+    at(MetricId::Crossover) = number(f.crossover_rad_s);
+    at(MetricId::Bandwidth) = number(f.bandwidth_rad_s);
+    at(MetricId::PeakSensitivity) = number(f.peak_sensitivity);
+  }
+  if (!a.stable) return v;
+  at(MetricId::SteadyStateError) = a.steady_state.error ? number(a.steady_state.error) : infinite();
+  if (a.step) {
+    at(MetricId::Overshoot) = number(a.step->overshoot_pct);
+    at(MetricId::SettlingTime) = number(a.step->settling_time_s);
+    at(MetricId::RiseTime) = number(a.step->rise_time_s);
+    at(MetricId::PeakEffort) = number(a.step->peak_effort);
+  }
+  return v;
+}
+
+ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o) {
+  std::string err;
+  if (!o.IsValid(&err)) {
+    const std::string option = err.substr(0, err.find(' '));
+    bad(option.rfind("--", 0) == 0 ? option : "--options", err.substr(err.find(' ') + 1));
+  }
+  ExportReport r;
+  r.options = o;
+  r.rank = rank;
+  r.source_job = in.job;
+  r.continuous = result_compensator(in, rank);
+  r.verified = in.spec.has_value();
+  r.design_name = in.spec && !in.spec->name.empty() ? in.spec->name : (in.spec ? "unnamed spec" : "compensator");
+  const double T = o.sample_time_s;
+
+  // Continuous figures first: they give the default warp point and the figures to compare with.
+  Region region;
+  if (in.spec) {
+    const Spec& spec = *in.spec;
+    r.requirements = spec.requirements;
+    r.plants = spec.plants;
+    region = region_from_requirements(spec.requirements);
+    for (const Plant& p : spec.plants) check_cancellations(r.continuous, p, "$.compensator");
+    for (const Plant& p : spec.plants) {
+      ExportLoop L;
+      L.plant_name = p.name;
+      L.continuous_eval = evaluate_loop(r.continuous, p, spec.requirements, region, spec.analysis);
+      L.continuous = L.continuous_eval.values;
+      L.continuous_stable = L.continuous_eval.stable;
+      const auto& wc = L.continuous_eval.frequency.crossover_rad_s;
+      if (wc && (!r.crossover_rad_s || *wc > *r.crossover_rad_s)) r.crossover_rad_s = *wc;
+      r.loops.push_back(L);
+    }
+  }
+
+  DiscretizeOptions d;
+  d.sample_time_s = T;
+  d.method = o.method;
+  if (o.method == DiscreteMethod::Prewarp) {
+    if (o.prewarp_rad_s) r.warp_rad_s = *o.prewarp_rad_s;
+    else if (!r.loops.empty() && r.loops.front().continuous_eval.frequency.crossover_rad_s)
+      r.warp_rad_s = *r.loops.front().continuous_eval.frequency.crossover_rad_s;
+    else if (!in.spec) bad("--prewarp-rad-s", "is needed with --method prewarp for a bare compensator (no spec gives the crossover)");
+    else bad("--prewarp-rad-s", "is needed: the continuous loop has no gain crossover to warp at");
+    if (!(*r.warp_rad_s * T < M_PI))
+      bad("--sample-time", fmt("is too long: the warp point %.6g rad/s is at or above the Nyquist frequency %.6g rad/s",
+                               *r.warp_rad_s, M_PI / T));
+    d.prewarp_rad_s = *r.warp_rad_s;
+  }
+  try {
+    r.discrete = discretize(r.continuous, d);
+  } catch (const std::invalid_argument& e) {
+    bad("--sample-time", e.what());
+  }
+  auto finite_zpk = [](const Zpk& z) {
+    bool ok = std::isfinite(z.gain);
+    for (const Roots* set : {&z.zeros, &z.poles})
+      for (const Complex& c : *set) ok = ok && std::isfinite(c.real()) && std::isfinite(c.imag());
+    return ok;
+  };
+  if (!finite_zpk(r.discrete))
+    bad("--sample-time", "the discrete compensator overflows at this sample time (a root or the gain is beyond double range)");
+  r.cascade = biquad_cascade(r.discrete);
+  const double limit = o.precision == Precision::Float ? 3.0e38 : 1.0e300;
+  bool in_range = std::abs(r.cascade.gain) < limit;
+  for (const Biquad& s : r.cascade.sections)
+    for (double c : {s.b[0], s.b[1], s.b[2], s.a[1], s.a[2]}) in_range = in_range && std::abs(c) < limit;
+  if (!in_range)
+    bad(o.precision == Precision::Float ? "--precision" : "--sample-time",
+        "a section coefficient or the gain is beyond the range of the chosen precision");
+  for (const Biquad& s : r.cascade.sections) r.radii.push_back(section_pole_radius(s));
+
+  // Warnings that need no spec.
+  for (size_t i = 0; i < r.cascade.sections.size(); ++i) {
+    const Biquad& s = r.cascade.sections[i];
+    if (s.integrator) continue;
+    const SectionRadius& rad = r.radii[i];
+    const bool close = rad.float_radius >= 1.0 ||
+                       std::abs(rad.float_radius - rad.double_radius) > o.float_radius_fraction * (1.0 - rad.double_radius);
+    if (close) {
+      const std::string msg = fmt("section %.0f is close to instability in float: pole radius %.9g in double, %.9g with "
+                                  "a1, a2 rounded to float",
+                                  static_cast<double>(i + 1), rad.double_radius, rad.float_radius);
+      (o.precision == Precision::Float ? r.warnings : r.notes).push_back(msg);
+    }
+  }
+  for (const Complex& p : r.discrete.poles)
+    if (std::abs(p) >= 1.0 && std::abs(p - 1.0) > 1e-12)
+      r.notes.push_back(fmt("the compensator has a pole on or outside the unit circle (|z| = %.6g)", std::abs(p)));
+
+  if (!in.spec) {
+    r.notes.push_back("a bare compensator carries no spec: the sampled loop is not re-verified "
+                      "(export from a check or design result to re-verify it)");
+    return r;
+  }
+
+  // Re-verification in discrete time, for every plant.
+  const Spec& spec = *in.spec;
+  DiscreteLoopOptions lo;
+  lo.sample_time_s = T;
+  lo.compute_delay = o.compute_delay;
+  lo.band = spec.requirements.settling_band;
+  lo.residue_share = spec.analysis.residue_share;
+  lo.error_signal = spec.requirements.error_signal;
+  lo.frequency = spec.analysis.frequency;
+  lo.keep_trace = false;
+  r.discrete_stable = true;
+  for (size_t i = 0; i < spec.plants.size(); ++i) {
+    ExportLoop& L = r.loops[i];
+    const auto& cs = L.continuous_eval.step;
+    lo.min_samples = 0;
+    if (cs) lo.min_samples = static_cast<int>(std::min<double>(lo.max_samples, std::ceil(cs->horizon_s / T) + 1.0));
+    try {
+      L.discrete_eval = analyze_discrete_loop(r.discrete, spec.plants[i], lo);
+    } catch (const std::invalid_argument& e) {
+      bad("--sample-time", e.what());
+    }
+    L.discrete = discrete_metric_values(L.discrete_eval);
+    if (L.discrete_eval.step_truncated)
+      r.notes.push_back(L.plant_name + ": " +
+                        fmt("the sampled step stops at %.0f samples (%.4g s) before its slowest pole has decayed",
+                            static_cast<double>(lo.max_samples), (lo.max_samples - 1) * T));
+    if (spec.requirements.has(MetricId::GainTolerance) && L.discrete_eval.stable) {
+      const SampledPlant sp = sample_plant(spec.plants[i], T, o.compute_delay);
+      const GainToleranceResult g = discrete_gain_tolerance(r.discrete, sp, region, spec.analysis.residue_share);
+      L.discrete[static_cast<size_t>(MetricId::GainTolerance)].value = g.tolerance_pct;
+    }
+    r.discrete_stable = r.discrete_stable && L.discrete_eval.stable && L.discrete_eval.well_posed;
+  }
+  r.all_met = r.discrete_stable;
+  for (const Requirement& req : spec.requirements.items) {
+    ExportOutcome out;
+    out.requirement = req;
+    const size_t m = static_cast<size_t>(req.metric);
+    double worst = -INFINITY, worst_c = -INFINITY;
+    for (size_t i = 0; i < r.loops.size(); ++i) {
+      const MetricValue& dv = r.loops[i].discrete[m];
+      const MetricValue& cv = r.loops[i].continuous[m];
+      double viol = requirement_violation(req, dv);
+      if (!r.loops[i].discrete_eval.stable) viol = std::max(viol, 1e3);
+      const double key = viol > 0.0 ? viol : (dv.infinite ? -1e300 : -requirement_margin(req, *dv.value) * 1e-9);
+      if (key > worst) {
+        worst = key;
+        out.discrete = dv;
+        out.worst_plant = static_cast<int>(i);
+      }
+      const double vc = requirement_violation(req, cv);
+      const double kc = vc > 0.0 ? vc : (cv.infinite ? -1e300 : (cv.value ? -requirement_margin(req, *cv.value) * 1e-9 : 1e3));
+      if (kc > worst_c) {
+        worst_c = kc;
+        out.continuous = cv;
+      }
+    }
+    out.met = worst <= 0.0 && r.discrete_stable;
+    r.all_met = r.all_met && out.met;
+    r.outcomes.push_back(out);
+  }
+
+  // Warnings that compare the two loops.
+  if (!r.discrete_stable) r.warnings.push_back("the sampled loop is unstable (a closed-loop pole with |z| >= 1)");
+  for (const ExportLoop& L : r.loops) {
+    const auto& cp = L.continuous[static_cast<size_t>(MetricId::PhaseMargin)];
+    const auto& dp = L.discrete[static_cast<size_t>(MetricId::PhaseMargin)];
+    if (cp.value && dp.value && *cp.value - *dp.value > o.max_phase_margin_drop_deg)
+      r.warnings.push_back(L.plant_name + ": " +
+                           fmt("phase margin drops by %.3g deg (%.4g -> %.4g deg) in discrete time", *cp.value - *dp.value,
+                               *cp.value, *dp.value) + fmt(", more than %.3g deg", o.max_phase_margin_drop_deg));
+    const auto& cg = L.continuous[static_cast<size_t>(MetricId::GainMargin)];
+    const auto& dg = L.discrete[static_cast<size_t>(MetricId::GainMargin)];
+    const double cgv = cg.infinite ? INFINITY : cg.value.value_or(NAN);
+    if (dg.value && cg.infinite) {
+      // Sampling always bounds the gain margin: warn only when it ends below the floor.
+      const std::string msg = L.plant_name + ": " + fmt("the unbounded gain margin becomes %.4g dB in discrete time", *dg.value);
+      if (*dg.value < o.unbounded_gain_margin_floor_db)
+        r.warnings.push_back(msg + fmt(", under %.3g dB", o.unbounded_gain_margin_floor_db));
+      else
+        r.notes.push_back(msg);
+    } else if (dg.value && cg.value && cgv - *dg.value > o.max_gain_margin_drop_db) {
+      r.warnings.push_back(L.plant_name + ": " +
+                           fmt("gain margin drops by %.3g dB (%.4g -> %.4g dB) in discrete time", cgv - *dg.value, cgv,
+                               *dg.value) +
+                           fmt(", more than %.3g dB", o.max_gain_margin_drop_db));
+    }
+  }
+  if (r.crossover_rad_s) {
+    const double ratio = (2.0 * M_PI / T) / *r.crossover_rad_s;
+    if (ratio < o.min_rate_ratio)
+      r.warnings.push_back(fmt("the sample rate 2 pi / T = %.4g rad/s is only %.3g times the crossover %.4g rad/s",
+                               2.0 * M_PI / T, ratio, *r.crossover_rad_s) +
+                           fmt(" (under %.3g; common practice is 10 to 20 times or more)", o.min_rate_ratio));
+  }
+  r.notes.push_back("step figures are read at the sample instants; the plant output between samples is not checked");
+  return r;
+}
+
+}  // namespace pw

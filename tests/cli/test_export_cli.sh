@@ -1,0 +1,79 @@
+#!/usr/bin/env bash
+# Exit codes and one-line errors of `polewright export` (documented in the README).
+set -u
+bin=$1
+tmp=$(mktemp -d); trap 'rm -rf "$tmp"' EXIT
+pass=0; fail=0
+expect() {  # expect CODE DESCRIPTION -- command...
+  local want=$1 what=$2; shift 3
+  "$@" >"$tmp/out" 2>"$tmp/err"; local got=$?
+  if [ "$got" = "$want" ]; then pass=$((pass+1)); else fail=$((fail+1)); echo "FAIL: $what: exit $got, want $want"; cat "$tmp/err"; fi
+}
+one_line() {  # the last command's stderr is exactly one line naming $1
+  local n; n=$(wc -l <"$tmp/err")
+  if [ "$n" = 1 ] && grep -qF -- "$1" "$tmp/err"; then pass=$((pass+1)); else fail=$((fail+1)); echo "FAIL: stderr should be one line with '$1':"; cat "$tmp/err"; fi
+}
+untouched() {
+  if [ "$(cat "$tmp/keep.json")" = keep ]; then pass=$((pass+1)); else fail=$((fail+1)); echo "FAIL: output touched on bad input"; fi
+}
+
+cat >"$tmp/r.json" <<'J'
+{ "tool": { "job": "check" },
+  "spec": { "plant": { "gain": 4, "poles": [0, -2] },
+            "requirements": { "phase_margin_deg": { "min": 45 }, "overshoot_pct": { "max": 25 } } },
+  "compensator": { "gain": 4.68, "zeros": [-2.9], "poles": [-5.4] } }
+J
+echo '{ "gain": 2, "zeros": [-1], "poles": [0] }' >"$tmp/bare.json"
+echo keep >"$tmp/keep.json"
+
+expect 0 "fast sampling meets" -- "$bin" export "$tmp/r.json" --sample-time 0.001 --format json -o "$tmp/a.json"
+grep -q "MEETS" "$tmp/out" && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: no verdict line"; }
+/usr/bin/python3 -c "import json,sys; d=json.load(open('$tmp/a.json')); sys.exit(not (d['method']=='tustin' and d['sample_time_s']==0.001 and len(d['sections'])>=1))" \
+  && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: JSON format"; }
+expect 1 "slow sampling with a computation delay does not meet" -- "$bin" export "$tmp/r.json" --sample-time 0.2 --compute-delay 1 --format csv -o "$tmp/a.csv"
+grep -q "^warning: the sample rate" "$tmp/out" && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: no sample-rate warning"; cat "$tmp/out"; }
+expect 0 "bare compensator: written, not re-verified" -- "$bin" export "$tmp/bare.json" --sample-time 0.01 -o "$tmp/pi"
+[ -s "$tmp/pi.h" ] && [ -s "$tmp/pi.c" ] && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: OUT.h / OUT.c not written"; }
+grep -q "not re-verified" "$tmp/out" && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: no note for a bare compensator"; }
+cat >"$tmp/spec.json" <<'J'
+{ "plant": { "gain": 1, "poles": [-1] }, "requirements": { "phase_margin_deg": { "min": 45 } } }
+J
+expect 0 "bare compensator with --spec is re-verified" -- "$bin" export "$tmp/bare.json" --sample-time 0.01 --spec "$tmp/spec.json" --format json -o "$tmp/b.json"
+grep -q "MEETS" "$tmp/out" && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: --spec did not re-verify"; }
+
+# Bad input: exit 2, one line naming the option, the output untouched.
+for t in 0 -0.01 nan NaN inf abc ""; do
+  expect 2 "--sample-time '$t'" -- "$bin" export "$tmp/r.json" --sample-time "$t" --format json -o "$tmp/keep.json"
+  one_line "--sample-time"; untouched
+done
+for k in 0 2 -1 x 1.5; do
+  expect 2 "--rank '$k'" -- "$bin" export "$tmp/r.json" --rank "$k" --sample-time 0.001 --format json -o "$tmp/keep.json"
+  one_line "--rank"; untouched
+done
+expect 2 "unknown method" -- "$bin" export "$tmp/r.json" --sample-time 0.001 --method bilinear --format json -o "$tmp/keep.json"
+one_line '--method: is "bilinear": expected tustin, prewarp, zoh or matched'; untouched
+expect 2 "unknown format" -- "$bin" export "$tmp/r.json" --sample-time 0.001 --format xml -o "$tmp/keep.json"
+one_line "--format"; untouched
+expect 2 "unknown precision" -- "$bin" export "$tmp/r.json" --sample-time 0.001 --precision half -o "$tmp/keep"
+one_line "--precision"
+expect 2 "negative computation delay" -- "$bin" export "$tmp/r.json" --sample-time 0.001 --compute-delay -1 --format json -o "$tmp/keep.json"
+one_line "--compute-delay"; untouched
+expect 2 "clamp LO >= HI" -- "$bin" export "$tmp/r.json" --sample-time 0.001 --clamp 2 1 --format json -o "$tmp/keep.json"
+one_line "--clamp"; untouched
+expect 2 "prewarp above Nyquist" -- "$bin" export "$tmp/r.json" --sample-time 0.001 --method prewarp --prewarp-rad-s 5000 --format json -o "$tmp/keep.json"
+one_line "--prewarp-rad-s"; untouched
+expect 2 "prewarp without a spec needs a warp point" -- "$bin" export "$tmp/bare.json" --sample-time 0.01 --method prewarp --format json -o "$tmp/keep.json"
+one_line "--prewarp-rad-s"; untouched
+expect 2 "a dead time of too many samples" -- "$bin" export "$tmp/bare.json" --spec <(echo '{ "plant": { "gain": 1, "poles": [-1], "delay_s": 10 }, "requirements": { "phase_margin_deg": { "min": 45 } } }') --sample-time 0.01 --format json -o "$tmp/keep.json"
+one_line "--sample-time"; untouched
+expect 2 "missing --sample-time" -- "$bin" export "$tmp/r.json" --format json -o "$tmp/keep.json"
+one_line "sample-time"; untouched
+expect 2 "missing result file" -- "$bin" export "$tmp/nope.json" --sample-time 0.001 --format json -o "$tmp/keep.json"
+[ "$(wc -l <"$tmp/err")" = 1 ] && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: missing file: not one line"; cat "$tmp/err"; }
+# Same input, byte-identical output.
+"$bin" export "$tmp/r.json" --sample-time 0.002 --method zoh --format json -o "$tmp/d1.json" >/dev/null
+"$bin" export "$tmp/r.json" --sample-time 0.002 --method zoh --format json -o "$tmp/d2.json" >/dev/null
+cmp -s "$tmp/d1.json" "$tmp/d2.json" && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: output not deterministic"; }
+
+echo "export cli: $pass passed, $fail failed"
+[ "$fail" = 0 ]

@@ -1,0 +1,164 @@
+// The export job: options, re-verification verdicts and warnings.
+#include <catch2/catch.hpp>
+
+#include <cmath>
+
+#include "polewright/jobs/export.hpp"
+
+using namespace pw;
+using nlohmann::json;
+
+namespace {
+
+// A check-style result: 4 / (s (s + 2)) under a lead (the loop of the CLI's met example).
+ResultInput lead_result(double pm_min = 45.0, double os_max = 25.0) {
+  const json doc = {{"tool", {{"job", "check"}}},
+                    {"spec",
+                     {{"plant", {{"gain", 4}, {"poles", {0, -2}}}},
+                      {"requirements", {{"phase_margin_deg", {{"min", pm_min}}}, {"overshoot_pct", {{"max", os_max}}}}}}},
+                    {"compensator", {{"gain", 4.68}, {"zeros", {-2.9}}, {"poles", {-5.4}}}}};
+  return parse_result(doc);
+}
+
+ExportOptions at(double T) {
+  ExportOptions o;
+  o.sample_time_s = T;
+  return o;
+}
+
+bool has_warning(const ExportReport& r, const std::string& part) {
+  for (const std::string& w : r.warnings)
+    if (w.find(part) != std::string::npos) return true;
+  return false;
+}
+
+}  // namespace
+
+TEST_CASE("export options are validated", "[export][export_job]") {
+  std::string err;
+  CHECK(!at(0.0).IsValid(&err));
+  CHECK(err.find("--sample-time") == 0);
+  CHECK(!at(-1.0).IsValid(&err));
+  CHECK(!at(NAN).IsValid(&err));
+  ExportOptions o = at(1e-3);
+  CHECK(o.IsValid(&err));
+  o.clamp = std::make_pair(1.0, -1.0);
+  CHECK(!o.IsValid(&err));
+  o.clamp.reset();
+  o.prewarp_rad_s = 1e5;  // above pi / T
+  CHECK(!o.IsValid(&err));
+  CHECK_THROWS_AS(run_export(lead_result(), 1, at(0.0)), SpecError);
+  CHECK_THROWS_AS(run_export(lead_result(), 2, at(1e-3)), SpecError);  // one compensator only
+}
+
+TEST_CASE("a fast-sampled export meets what the continuous loop meets", "[export][export_job]") {
+  // Crossover about 4.4 rad/s: at T = 1 ms the rate is ~1400 times the crossover.
+  const ExportReport r = run_export(lead_result(), 1, at(1e-3));
+  REQUIRE(r.verified);
+  CHECK(r.discrete_stable);
+  CHECK(r.all_met);
+  CHECK(r.warnings.empty());
+  REQUIRE(r.loops.size() == 1);
+  const auto pm = static_cast<size_t>(MetricId::PhaseMargin);
+  // Field notes: the hold costs about wT/2 = 0.13 deg here.
+  CHECK(*r.loops[0].continuous[pm].value - *r.loops[0].discrete[pm].value == Approx(0.13).margin(0.1));
+  // The cascade reproduces the discrete transfer function.
+  const Complex z = std::polar(1.0, 0.3);
+  CHECK(std::abs(cascade_evaluate(r.cascade, z) - r.discrete.evaluate(z)) < 1e-12 * std::abs(r.discrete.evaluate(z)));
+}
+
+TEST_CASE("a slow-sampled export warns and fails the phase margin", "[export][export_job]") {
+  // 2 pi / T = 3.1 times the crossover with one sample of computation delay: the predicted loss
+  // wT/2 + wT (field notes) is ~150 deg at this crossover, far beyond the 5 deg threshold.
+  ExportOptions o = at(0.2);
+  o.compute_delay = 1;
+  const ExportReport r = run_export(lead_result(), 1, o);
+  CHECK(!r.all_met);
+  CHECK(has_warning(r, "sample rate"));
+  // Moderately slow (T = 30 ms, ~47 times the crossover, d = 1): the margin drops by about
+  // 1.5 wT = 11 deg: warned, while the rate is fine.
+  ExportOptions m = at(0.03);
+  m.compute_delay = 1;
+  const ExportReport q = run_export(lead_result(30.0, 40.0), 1, m);
+  CHECK(has_warning(q, "phase margin drops"));
+  CHECK(!has_warning(q, "sample rate"));
+  CHECK(q.all_met);  // 30 deg and 40 % are still met (overshoot grows from 21 % to 30 %)
+}
+
+TEST_CASE("prewarp defaults to the crossover; a bare compensator is not re-verified", "[export][export_job]") {
+  ExportOptions o = at(1e-2);
+  o.method = DiscreteMethod::Prewarp;
+  const ExportReport r = run_export(lead_result(), 1, o);
+  REQUIRE(r.warp_rad_s);
+  CHECK(*r.warp_rad_s == Approx(*r.loops[0].continuous_eval.frequency.crossover_rad_s));
+  // Exact at the warp point (analytic property of the prewarped map).
+  const Complex want = r.continuous.evaluate(Complex(0.0, *r.warp_rad_s));
+  CHECK(std::abs(discrete_response(r.discrete, *r.warp_rad_s, 1e-2) - want) < 1e-12 * std::abs(want));
+
+  const ResultInput bare = parse_result(json{{"gain", 2}, {"zeros", {-1}}, {"poles", {0}}});
+  CHECK_THROWS_AS(run_export(bare, 1, o), SpecError);  // no crossover to warp at
+  const ExportReport b = run_export(bare, 1, at(1e-2));
+  CHECK(!b.verified);
+  CHECK(b.cascade.sections.size() == 1);
+  CHECK(b.cascade.sections[0].integrator);
+  bool noted = false;
+  for (const std::string& n : b.notes) noted = noted || n.find("not re-verified") != std::string::npos;
+  CHECK(noted);
+}
+
+TEST_CASE("a section near the unit circle warns for float code", "[export][export_job]") {
+  // A slow double lag pole (0.02 rad/s) sampled at 10 kHz: p = exp(-2e-6), float rounding of a1, a2
+  // moves it by far more than its distance 2e-6 to the circle (see the biquad tests).
+  const ResultInput slow = parse_result(json{{"gain", 1}, {"zeros", {-0.5, -0.6}}, {"poles", {-0.02, -0.021}}});
+  ExportOptions o = at(1e-4);
+  o.precision = Precision::Float;
+  const ExportReport r = run_export(slow, 1, o);
+  CHECK(has_warning(r, "close to instability in float"));
+  o.precision = Precision::Double;
+  CHECK(!has_warning(run_export(slow, 1, o), "close to instability in float"));
+}
+
+TEST_CASE("discrete_metric_values maps the sampled figures", "[export][export_job]") {
+  const ExportReport r = run_export(lead_result(), 1, at(1e-3));
+  const auto& v = r.loops[0].discrete;
+  CHECK(v[static_cast<size_t>(MetricId::Overshoot)].value);
+  CHECK(v[static_cast<size_t>(MetricId::PhaseMargin)].value);
+  CHECK(!v[static_cast<size_t>(MetricId::GainTolerance)].known());  // not asked for by this spec
+  CHECK(discrete_metric_values(r.loops[0].discrete_eval)[static_cast<size_t>(MetricId::Overshoot)].value ==
+        v[static_cast<size_t>(MetricId::Overshoot)].value);
+}
+
+TEST_CASE("gain tolerance is re-verified on the sampled loop", "[export][export_job]") {
+  // Reference: the continuous gain tolerance of the same loop (the existing check path). The
+  // sampled figure converges to it as T shrinks (error of order wT): 1.2 points at T = 1 ms,
+  // 0.12 at 0.1 ms.
+  const json doc = {{"tool", {{"job", "check"}}},
+                    {"spec",
+                     {{"plant", {{"gain", 4}, {"poles", {0, -2}}}},
+                      {"requirements", {{"gain_tolerance_pct", {{"min", 10}}}, {"damping_ratio", {{"min", 0.4}}}}}}},
+                    {"compensator", {{"gain", 4.68}, {"zeros", {-2.9}}, {"poles", {-5.4}}}}};
+  const auto gt = static_cast<size_t>(MetricId::GainTolerance);
+  const ExportReport r = run_export(parse_result(doc), 1, at(1e-4));
+  REQUIRE(r.loops[0].continuous[gt].value);
+  REQUIRE(r.loops[0].discrete[gt].value);
+  CHECK(*r.loops[0].discrete[gt].value == Approx(*r.loops[0].continuous[gt].value).margin(0.3));
+  CHECK(r.all_met);
+  const ExportReport coarse = run_export(parse_result(doc), 1, at(1e-3));
+  CHECK(std::abs(*coarse.loops[0].discrete[gt].value - *coarse.loops[0].continuous[gt].value) >
+        std::abs(*r.loops[0].discrete[gt].value - *r.loops[0].continuous[gt].value));
+}
+
+TEST_CASE("discrete_closed_loop_poles scales the compensator", "[export][discrete_loop]") {
+  // K / (s (s + 1)) behind a ZOH at T = 1 reaches |z| = 1 at K = (1 - e^-1) / (1 - 2 e^-1) (Jury, see
+  // the discrete-loop tests): the product of the two poles is a + K b0 = 1 there.
+  Plant g;
+  g.tf.poles = {Complex(0.0, 0.0), Complex(-1.0, 0.0)};
+  const SampledPlant sp = sample_plant(g, 1.0, 0);
+  const double limit = (1.0 - std::exp(-1.0)) / (1.0 - 2.0 * std::exp(-1.0));
+  Zpk one;
+  const DiscretePoles at_limit = discrete_closed_loop_poles(one, sp, limit, 0.02);
+  REQUIRE(at_limit.poles.size() == 2);
+  CHECK(std::abs(at_limit.poles[0].z * at_limit.poles[1].z) == Approx(1.0).epsilon(1e-9));
+  CHECK(discrete_closed_loop_poles(one, sp, 0.9 * limit, 0.02).stable);
+  CHECK(!discrete_closed_loop_poles(one, sp, 1.1 * limit, 0.02).stable);
+}

@@ -1,0 +1,15 @@
+# Regenerates the discretisation fixture with scipy and compares the C++ export code with it live.
+# Skips (exit 77) when Debian's python3 with scipy is not installed.
+execute_process(COMMAND ${PYTHON} -c "import numpy, scipy" RESULT_VARIABLE have_scipy OUTPUT_QUIET ERROR_QUIET)
+if(NOT have_scipy EQUAL 0)
+  message("python3-scipy is not installed: skipping the live discretisation comparison")
+  cmake_language(EXIT 77)
+endif()
+execute_process(COMMAND ${PYTHON} ${SCRIPT} -o ${OUT} RESULT_VARIABLE rc)
+if(NOT rc EQUAL 0)
+  message(FATAL_ERROR "make_discrete_fixture.py failed (${rc})")
+endif()
+execute_process(COMMAND ${CMAKE_COMMAND} -E env POLEWRIGHT_DISCRETE_FIXTURE=${OUT} ${TESTS} "[discrete_fixture]" RESULT_VARIABLE rc)
+if(NOT rc EQUAL 0)
+  message(FATAL_ERROR "the discretisation disagrees with the live scipy reference")
+endif()
