@@ -36,7 +36,13 @@ void emit(const std::string& path, const std::string& content) {
     std::cout.flush();
     return;
   }
-  write_file_atomically(path, content);
+  try {
+    write_file_atomically(path, content);
+  } catch (const std::runtime_error& e) {
+    // A missing folder, a read-only place, a full disk: the output named on the command line
+    // cannot be written. That is the user's to fix (exit 2), not a fault of the program.
+    throw SpecError(path, e.what());
+  }
 }
 
 }  // namespace pw::cli

@@ -74,6 +74,9 @@ expect 2 "design with a bad objective" -- "$bin" design "$tmp/met.json" --object
 expect 0 "design --json" -- "$bin" design "$tmp/met.json" --json --keep 2 --objective most_robust
 /usr/bin/python3 -c "import json,sys; d=json.load(open('$tmp/out')); sys.exit(not (d['status']=='met' and len(d['candidates'])<=2 and d['objective']=='most_robust'))" 2>/dev/null && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: --json/--keep/--objective not honoured"; }
 
+expect 2 "an output in a folder that does not exist" -- "$bin" check "$tmp/met.json" -o "$tmp/no/such/dir/out.json"
+one_line "cannot write"
+
 # retune: already met -> 0 and unchanged; tightened -> 0 with a change list; no current -> 2
 expect 0 "retune of a loop that meets changes nothing" -- "$bin" retune "$tmp/met.json" --json
 /usr/bin/python3 -c "import json,sys; d=json.load(open('$tmp/out')); sys.exit(not (d['unchanged'] and d['candidates']==[] and d['tool']['job']=='retune'))" 2>/dev/null && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: retune of a met loop is not unchanged"; }
