@@ -25,20 +25,36 @@ nlohmann::json plant_json(const Plant& p) {
   return {{"name", p.name}, {"gain", z["gain"]}, {"zeros", z["zeros"]}, {"poles", z["poles"]}, {"delay_s", json_number(p.delay_s)}};
 }
 
+void add_metrics(nlohmann::json& j, const std::vector<MetricValue>& worst) {
+  nlohmann::json m = nlohmann::json::object(), unbounded = nlohmann::json::array();
+  for (const MetricInfo& info : metric_table()) {
+    const MetricValue& v = worst[static_cast<size_t>(info.id)];
+    m[info.key] = json_number(v);
+    if (v.infinite) unbounded.push_back(info.key);
+  }
+  j["metrics"] = m;
+  j["unbounded"] = unbounded;
+}
+
+void add_search_context(nlohmann::json& j, const Region& region, std::pair<double, double> range,
+                        const std::vector<Plant>& plants, const RequirementSet& req, const AnalysisOptions& analysis) {
+  j["region"] = region_json(region);
+  j["frequency_range_rad_s"] = {json_number(range.first), json_number(range.second)};
+  nlohmann::json list = nlohmann::json::array();
+  for (const Plant& p : plants) list.push_back(plant_json(p));
+  j["plants"] = list;
+  j["requirements"] = requirements_json(req);
+  j["analysis"] = {{"pade_order", analysis.pade_order}, {"settling_band", json_number(req.settling_band)},
+                   {"residue_share", json_number(analysis.residue_share)}};
+}
+
 nlohmann::json candidate_json(const Candidate& c, const RequirementSet& req) {
   nlohmann::json j;
   j["rank"] = c.rank;
   j["structure"] = c.structure.names();
   j["meets"] = c.meets;
   j["compensator"] = json_zpk(c.compensator);
-  nlohmann::json m = nlohmann::json::object(), unbounded = nlohmann::json::array();
-  for (const MetricInfo& info : metric_table()) {
-    const MetricValue& v = c.worst[static_cast<size_t>(info.id)];
-    m[info.key] = json_number(v);
-    if (v.infinite) unbounded.push_back(info.key);
-  }
-  j["metrics"] = m;
-  j["unbounded"] = unbounded;
+  add_metrics(j, c.worst);
   j["worst_variant"] = c.verification.worst_plant;
   const LoopEvaluation& nominal = c.verification.plants.front();
   j["closed_loop_poles"] = pole_list_json(nominal.poles);
@@ -64,14 +80,7 @@ nlohmann::json design_report_json(const DesignReport& r, bool include_timing) {
   j["name"] = r.spec_name;
   j["status"] = r.met() ? "met" : "not_met";
   j["objective"] = objective_name(r.objective);
-  j["region"] = region_json(r.region);
-  j["frequency_range_rad_s"] = {json_number(r.frequency_range.first), json_number(r.frequency_range.second)};
-  nlohmann::json plants = nlohmann::json::array();
-  for (const Plant& p : r.plants) plants.push_back(plant_json(p));
-  j["plants"] = plants;
-  j["requirements"] = requirements_json(r.requirements);
-  j["analysis"] = {{"pade_order", r.analysis.pade_order}, {"settling_band", json_number(r.requirements.settling_band)},
-                   {"residue_share", json_number(r.analysis.residue_share)}};
+  add_search_context(j, r.region, r.frequency_range, r.plants, r.requirements, r.analysis);
   nlohmann::json cands = nlohmann::json::array();
   for (const Candidate& c : r.candidates) cands.push_back(candidate_json(c, r.requirements));
   j["candidates"] = cands;

@@ -38,14 +38,7 @@ nlohmann::json retune_report_json(const RetuneReport& r, bool include_timing) {
   j["status"] = r.met() ? "met" : "not_met";
   j["unchanged"] = r.already_met;
   j["warnings"] = conditioning_warnings(r.spec_document);
-  j["region"] = region_json(r.region);
-  j["frequency_range_rad_s"] = {json_number(r.frequency_range.first), json_number(r.frequency_range.second)};
-  nlohmann::json plants = nlohmann::json::array();
-  for (const Plant& p : r.plants) plants.push_back(plant_json(p));
-  j["plants"] = plants;
-  j["requirements"] = requirements_json(r.requirements);
-  j["analysis"] = {{"pade_order", r.analysis.pade_order}, {"settling_band", json_number(r.requirements.settling_band)},
-                   {"residue_share", json_number(r.analysis.residue_share)}};
+  add_search_context(j, r.region, r.frequency_range, r.plants, r.requirements, r.analysis);
   nlohmann::json cur = candidate_json(r.current, r.requirements);
   cur.erase("rank");
   cur.erase("objective");

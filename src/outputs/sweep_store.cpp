@@ -18,6 +18,7 @@
 
 #include "polewright/outputs/atomic_file.hpp"
 #include "polewright/outputs/check_output.hpp"
+#include "polewright/outputs/design_output.hpp"
 #include "polewright/outputs/json_values.hpp"
 #include "polewright/requirements/metric.hpp"
 #include "polewright/requirements/spec.hpp"
@@ -94,14 +95,7 @@ std::string point_line(const SweepFile& f, const SweepPointResult& r) {
     j["structure"] = r.structure;
     j["meets"] = c.meets;
     j["compensator"] = json_zpk(c.compensator);
-    nlohmann::json m = nlohmann::json::object(), unbounded = nlohmann::json::array();
-    for (const MetricInfo& info : metric_table()) {
-      const MetricValue& v = c.worst[static_cast<size_t>(info.id)];
-      m[info.key] = json_number(v);
-      if (v.infinite) unbounded.push_back(info.key);
-    }
-    j["metrics"] = m;
-    j["unbounded"] = unbounded;
+    add_metrics(j, c.worst);
   }
   if (r.change_decades) j["change_decades"] = json_number(*r.change_decades);
   return j.dump();

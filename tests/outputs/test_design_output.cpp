@@ -44,3 +44,28 @@ TEST_CASE("design JSON and text carry the conditioning warnings of the spec", "[
   r.spec_document = {{"plant", {{"gain", 256}, {"poles", {-2, -2, -2, -2, -2, -2, -2, -2}}}}};
   CHECK(design_report_json(r, false).at("warnings").empty());
 }
+
+TEST_CASE("metrics and unbounded lists; the search context block", "[outputs][design_output]") {
+  std::vector<MetricValue> worst(kMetricCount);
+  worst[static_cast<size_t>(MetricId::Overshoot)].value = 4.5;
+  worst[static_cast<size_t>(MetricId::GainMargin)].infinite = true;
+  nlohmann::json j;
+  add_metrics(j, worst);
+  CHECK(j["metrics"]["overshoot_pct"] == 4.5);
+  CHECK(j["metrics"]["gain_margin_db"].is_null());
+  CHECK(j["metrics"]["settling_time_s"].is_null());
+  CHECK(j["unbounded"] == nlohmann::json::array({"gain_margin_db"}));
+  CHECK(j["metrics"].size() == kMetricCount);
+  RequirementSet req;
+  req.items.push_back({MetricId::Overshoot, Sense::AtMost, 10.0});
+  Plant p;
+  p.name = "nominal";
+  p.tf.poles = {Complex(-1, 0)};
+  nlohmann::json c;
+  add_search_context(c, region_from_requirements(req), {0.1, 100.0}, {p}, req, AnalysisOptions{});
+  CHECK(c["frequency_range_rad_s"] == nlohmann::json::array({0.1, 100.0}));
+  CHECK(c["plants"].size() == 1);
+  CHECK(c["requirements"]["overshoot_pct"]["max"] == 10.0);
+  CHECK(c["region"]["min_damping_ratio"].get<double>() == Approx(0.5912).epsilon(1e-3));  // zeta for 10 % (second order)
+  CHECK(c["analysis"]["pade_order"] == 6);
+}

@@ -15,6 +15,12 @@ nlohmann::json requirements_json(const RequirementSet& req);
 nlohmann::json plant_json(const Plant& p);
 
 nlohmann::json candidate_json(const Candidate& c, const RequirementSet& req);
+
+// "metrics" (every metric by key, null when missing or infinite) and "unbounded" (the infinite ones).
+void add_metrics(nlohmann::json& j, const std::vector<MetricValue>& worst);
+// "region", "frequency_range_rad_s", "plants", "requirements" and "analysis" of a search result.
+void add_search_context(nlohmann::json& j, const Region& region, std::pair<double, double> range,
+                        const std::vector<Plant>& plants, const RequirementSet& req, const AnalysisOptions& analysis);
 nlohmann::json design_report_json(const DesignReport& r, bool include_timing = true);
 std::string design_report_text(const DesignReport& r);
 
