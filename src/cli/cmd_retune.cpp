@@ -2,6 +2,7 @@
 #include <memory>
 
 #include "commands.hpp"
+#include "polewright/outputs/report.hpp"
 #include "polewright/outputs/retune_output.hpp"
 #include "polewright/requirements/spec_parse.hpp"
 
@@ -11,7 +12,7 @@ void register_retune(CLI::App& app) {
   auto* cmd = app.add_subcommand("retune", "Move the compensator in service (the spec's current) as little as "
                                            "possible until it meets the spec's requirements");
   struct Args {
-    std::string spec, out;
+    std::string spec, out, report;
     bool json = false, timing = false, allow_new = false;
     int keep = -1, threads = -1;
     long long seed = -1;
@@ -20,6 +21,7 @@ void register_retune(CLI::App& app) {
   cmd->add_option("SPEC", a->spec, "spec file (JSON) with a current compensator")->required();
   cmd->add_option("-o,--output", a->out, "write the result as JSON to this file (atomically)");
   cmd->add_flag("--json", a->json, "print the JSON result to stdout instead of the table");
+  cmd->add_option("--report", a->report, "also write the HTML report to this file (atomically)");
   cmd->add_flag("--timing", a->timing, "add the timings to the JSON");
   cmd->add_flag("--allow-new-stages", a->allow_new,
                 "when moving the existing corners is not enough, add a stage (lead/lag or integrator, then a notch)");
@@ -41,6 +43,7 @@ void register_retune(CLI::App& app) {
         const RetuneReport rep = run_retune(spec, o);
         const nlohmann::json j = retune_report_json(rep, a->timing);
         if (!a->out.empty()) emit(a->out, j.dump(1) + "\n");
+        if (!a->report.empty()) emit(a->report, report_html(parse_result(j)));
         if (a->json) emit("-", j.dump(1) + "\n");
         else std::cout << retune_report_text(rep);
         return rep.met() ? kExitMet : kExitNotMet;

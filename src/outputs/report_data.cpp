@@ -2,6 +2,8 @@
 
 #include "polewright/jobs/check.hpp"
 #include "polewright/outputs/report.hpp"
+#include "polewright/outputs/report_sweep.hpp"
+#include "polewright/requirements/spec_parse.hpp"
 
 namespace pw {
 
@@ -19,13 +21,30 @@ std::string structure_label(const nlohmann::json& doc, size_t i) {
   return s.empty() ? "gain only" : s;
 }
 
+// The compensator in service of a retune result.
+Zpk current_of(const nlohmann::json& doc) {
+  if (!doc.contains("current") || !doc["current"].is_object()) throw SpecError("$.current", "is missing: a retune result holds the compensator in service");
+  if (!doc["current"].contains("compensator")) throw SpecError("$.current.compensator", "is missing");
+  const nlohmann::json& j = doc["current"]["compensator"];
+  if (!j.is_object()) throw SpecError("$.current.compensator", "must be a compensator object");
+  nlohmann::json roots = nlohmann::json::object();  // results write both forms; zeros/poles/gain is the exact one
+  for (const char* k : {"gain", "zeros", "poles"})
+    if (j.contains(k)) roots[k] = j[k];
+  return parse_compensator(roots.empty() ? j : roots, "$.current.compensator");
+}
+
 }  // namespace
 
+bool ReportData::met() const {
+  if (sweep) return sweep->all_met();
+  return !designs.empty() && designs.front().evaluation.all_met;
+}
+
 ReportData prepare_report(const ResultInput& result) {
-  if (result.job != "check" && result.job != "design")
+  if (result.job != "check" && result.job != "design" && result.job != "retune")
     throw SpecError("$.tool.job", result.job == "compensator"
-                                      ? "is missing: a bare compensator has no spec to report on (give a check or design result)"
-                                      : "is \"" + result.job + "\": the report covers check and design results");
+                                      ? "is missing: a bare compensator has no spec to report on (give a check, design or retune result)"
+                                      : "is \"" + result.job + "\": the report covers check, design and retune results and sweep directories");
   if (!result.spec) throw SpecError("$.spec", "is missing: the result does not embed its spec");
   ReportData d;
   d.job = result.job;
@@ -35,9 +54,25 @@ ReportData prepare_report(const ResultInput& result) {
   d.region = region_from_requirements(d.spec.requirements);
   AnalysisOptions analysis = d.spec.analysis;
   analysis.step.keep_trace = true;
-  for (size_t i = 0; i < result.compensators.size(); ++i) {
+  std::vector<Zpk> compensators = result.compensators;
+  if (d.job == "retune") {
+    const Zpk current = current_of(d.document);
+    const nlohmann::json& u = d.document.contains("unchanged") ? d.document["unchanged"] : nlohmann::json();
+    d.unchanged = u.is_boolean() && u.get<bool>();
+    if (d.unchanged || compensators.empty()) {
+      compensators = {current};  // nothing changed: the page shows the design in service only
+    } else {
+      ReportDesign old;
+      old.label = "in service (old)";
+      old.compensator = current;
+      old.colour = -1;
+      old.evaluation = evaluate_all(current, d.spec.plants, d.spec.requirements, d.region, analysis);
+      d.previous = std::move(old);
+    }
+  }
+  for (size_t i = 0; i < compensators.size(); ++i) {
     ReportDesign rd;
-    rd.compensator = result.compensators[i];
+    rd.compensator = compensators[i];
     rd.colour = static_cast<int>(i);
     if (i == 0) {
       CheckOptions o;
@@ -50,6 +85,8 @@ ReportData prepare_report(const ResultInput& result) {
     }
     if (d.job == "check") {
       rd.label = "checked compensator";
+    } else if (d.job == "retune") {
+      rd.label = !d.previous ? std::string(d.unchanged ? "in service (unchanged)" : "in service") : (i == 0 ? "new: " : "rank " + std::to_string(i + 1) + ": ") + structure_label(d.document, i);
     } else {
       rd.label = "rank " + std::to_string(i + 1) + ": " + structure_label(d.document, i);
     }

@@ -109,6 +109,16 @@ std::string report_frequency_section(const ReportData& d) {
     bounds_of(r.mag_db, mlo, mhi, -120.0, 120.0);
     bounds_of(r.phase_deg, plo, phi, -1080.0, 720.0);
   }
+  // A retune: the old design (in service) on the nominal plant, muted and dashed.
+  Response previous;
+  if (d.previous) {
+    previous = respond(make_loop_parts(d.previous->compensator, d.spec.plants.front(), pade), w);
+    const Style s = report::previous_style();
+    pm.line(w, previous.mag_db, s, "old design (in service), nominal");
+    pp.line(w, previous.phase_deg, s, "old design (in service), nominal");
+    bounds_of(previous.mag_db, mlo, mhi, -120.0, 120.0);
+    bounds_of(previous.phase_deg, plo, phi, -1080.0, 720.0);
+  }
   Style sl;
   sl.stroke = colour;
   sl.width = 2.0;
@@ -118,6 +128,12 @@ std::string report_frequency_section(const ReportData& d) {
   tl.width = 1.6;
   tl.dash = "7 4";
   ps.line(w, nominal.t_db, tl, "|T|, nominal");
+  if (d.previous) {
+    Style so = report::previous_style();
+    so.dash = "2 3";
+    ps.line(w, previous.s_db, so, "|S|, old design");
+    bounds_of(previous.s_db, slo, shi, -80.0, 40.0);
+  }
   bounds_of(nominal.s_db, slo, shi, -80.0, 40.0);
   bounds_of(nominal.t_db, slo, shi, -80.0, 40.0);
 
@@ -221,7 +237,8 @@ std::string report_frequency_section(const ReportData& d) {
   t += "</tbody></table>\n";
 
   std::string h = "<div class=\"pw-figures\">\n<div class=\"pw-stack\">\n";
-  h += report::figure(pm.svg(), "L = C G with the exact dead time; solid: nominal plant, dashed and dotted: variants. Margins marked for the nominal loop.");
+  h += report::figure(pm.svg(), std::string("L = C G with the exact dead time; solid: nominal plant, dashed and dotted: variants. Margins marked for the nominal loop.") +
+                                    (d.previous ? " Grey dashes: the old design in service." : ""));
   h += report::figure(pp.svg(), "Phase unwrapped from its low-frequency value; the phase margin is the distance to the \u2212180\u00b0 line at crossover.");
   h += "</div>\n<div class=\"pw-stack\">\n";
   h += report::figure(ps.svg(), "S = 1/(1 + L): disturbance to error; T = L/(1 + L): reference to output (nominal plant).");

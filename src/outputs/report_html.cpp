@@ -1,5 +1,6 @@
 #include "polewright/outputs/json_values.hpp"
 #include "polewright/outputs/report.hpp"
+#include "polewright/outputs/report_sweep.hpp"
 #include "polewright/outputs/svg_palette.hpp"
 #include "polewright/outputs/svg_text.hpp"
 
@@ -24,6 +25,8 @@ section.pw-section > h2 { margin: 0 0 10px; font-size: 16px; font-weight: 600; b
 .pw-cautions { border: 2px solid #9a3412; background: #fff6ef; border-radius: 6px; padding: 9px 14px; margin: 0 0 18px; }
 .pw-cautions strong { color: #9a3412; }
 .pw-grid2 { display: grid; grid-template-columns: minmax(0, 1.4fr) minmax(0, 1fr); gap: 22px; }
+.pw-grid-even { display: grid; grid-template-columns: minmax(0, 1fr) minmax(0, 1fr); gap: 22px; }
+table.pw-table th.nowrap { white-space: nowrap; }
 table.pw-table { border-collapse: collapse; width: 100%; font-size: 13px; }
 table.pw-table th { text-align: left; font-weight: 600; color: var(--muted); border-bottom: 2px solid var(--line); padding: 4px 8px; }
 table.pw-table td { border-bottom: 1px solid var(--line); padding: 4px 8px; vertical-align: top; }
@@ -31,7 +34,9 @@ table.pw-table td.nowrap, table.pw-table td .pw-ok, table.pw-table td .pw-bad { 
 table.pw-table td.pw-roots { font-size: 12px; font-variant-numeric: tabular-nums; }
 .pw-root { white-space: nowrap; }
 table.pw-table td.num { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
-.pw-ok { color: #2f7d55; font-weight: 600; } .pw-bad { color: #b3261e; font-weight: 600; }
+.pw-ok { color: #2f7d55; font-weight: 600; } .pw-bad { color: #b3261e; font-weight: 600; } .pw-grey { color: var(--muted); font-weight: 600; }
+.pw-scroll { max-height: 560px; overflow: auto; border: 1px solid var(--line); border-radius: 4px; }
+.pw-scroll table.pw-table th { position: sticky; top: 0; background: var(--card); }
 .pw-tf { font-family: "DejaVu Sans Mono", "Liberation Mono", monospace; font-size: 13px; background: #f5f6f2; padding: 6px 9px; border-radius: 4px; overflow-wrap: anywhere; }
 .pw-kv { display: grid; grid-template-columns: max-content 1fr; gap: 3px 12px; font-size: 13px; }
 .pw-kv .k { color: var(--muted); }
@@ -51,7 +56,8 @@ footer { color: var(--muted); font-size: 12px; text-align: center; padding: 8px 
   main { max-width: none; padding: 6px 0; }
   section.pw-section, figure.pw-figure, .pw-cautions { break-inside: avoid; page-break-inside: avoid; }
   section.pw-section { border: none; padding: 4px 0; }
-  .pw-figures, .pw-split, .pw-grid2 { grid-template-columns: 1fr; }
+  .pw-figures, .pw-split, .pw-grid2, .pw-grid-even { grid-template-columns: 1fr; }
+  .pw-scroll { max-height: none; overflow: visible; border: none; }
   .pw-badge { border: 1px solid var(--ink); color: var(--ink); background: none !important; }
   @page { size: A4; margin: 14mm; }
 }
@@ -60,6 +66,10 @@ footer { color: var(--muted); font-size: 12px; text-align: center; padding: 8px 
 }  // namespace
 
 std::vector<ReportSection> report_sections(const std::string& job) {
+  if (job == "sweep")
+    return {{"summary", "Sweep at a glance", report_sweep_summary_section},
+            {"sweep-map", "Sweep map", report_sweep_map_section},
+            {"points", "Points of the sweep", report_sweep_points_section}};
   std::vector<ReportSection> s = {
       {"summary", "Verdict and compensator", report_summary_section},
       {"s-plane", "Closed-loop poles and root locus", report_splane_section},
@@ -67,7 +77,13 @@ std::vector<ReportSection> report_sections(const std::string& job) {
       {"frequency", "Loop frequency response", report_frequency_section},
   };
   if (job == "design") s.push_back({"candidates", "Ranked candidates", report_candidates_section});
-  // A retune result adds {"changes", "Old and new design", ...} here; a sweep {"sweep-map", ...}.
+  if (job == "retune") {
+    // The changes come first after the verdict; the ranked table only when there is more than one.
+    s.insert(s.begin() + 1, {"changes", "Old and new design", report_retune_section});
+    s.push_back({"candidates", "Ranked candidates", [](const ReportData& d) {
+                   return d.designs.size() > 1 ? report_candidates_section(d) : std::string();
+                 }});
+  }
   return s;
 }
 
@@ -79,16 +95,26 @@ std::string report_html(const ReportData& d) {
   h += "<style>" + std::string(kCss) + "</style>\n</head>\n<body>\n";
   const std::string status = d.met() ? "met" : "not_met";
   h += "<header class=\"pw-head\"><h1>" + xml_escape(d.name.empty() ? std::string("unnamed spec") : d.name) + "</h1>\n";
-  h += "<div class=\"pw-sub\">polewright " + xml_escape(d.job) + " report &#183; requirements <span class=\"pw-badge " + status +
-       "\">" + (d.met() ? "met" : "not met") + "</span> &#183; " + std::to_string(d.spec.plants.size()) +
-       " plant model(s) &#183; " + std::to_string(d.designs.size()) + " compensator(s)</div></header>\n<main>\n";
+  if (d.sweep) {
+    h += "<div class=\"pw-sub\">polewright sweep report &#183; <span class=\"pw-badge " + status + "\">" +
+         std::to_string(d.sweep->count("met")) + " of " + std::to_string(d.sweep->expected) + " points met</span> &#183; " +
+         std::to_string(d.sweep->file.parameters.size()) + " parameter(s) &#183; " + xml_escape(sweep_job_name(d.sweep->file.job)) +
+         " at every point</div></header>\n<main>\n";
+  } else {
+    std::string extra;
+    if (d.job == "retune") extra = d.previous ? " &#183; retuned from the design in service" : " &#183; design in service unchanged";
+    h += "<div class=\"pw-sub\">polewright " + xml_escape(d.job) + " report &#183; requirements <span class=\"pw-badge " + status +
+         "\">" + (d.met() ? "met" : "not met") + "</span> &#183; " + std::to_string(d.spec.plants.size()) +
+         " plant model(s) &#183; " + std::to_string(d.designs.size()) + " compensator(s)" + extra + "</div></header>\n<main>\n";
+  }
   h += "<div class=\"pw-cautions\" id=\"cautions\"><strong>Cautions.</strong> " + xml_escape(kCautions) + "</div>\n";
   for (const ReportSection& s : report_sections(d.job)) {
     const std::string body = s.build(d);
     if (body.empty()) continue;
     h += "<section class=\"pw-section\" id=\"" + xml_escape(s.id) + "\">\n<h2>" + xml_escape(s.title) + "</h2>\n" + body + "</section>\n";
   }
-  h += "</main>\n<footer>Made by polewright from the spec embedded in the result; every figure was recomputed. " +
+  h += std::string("</main>\n<footer>") +
+       (d.sweep ? "Made by polewright from the points the sweep wrote. " : "Made by polewright from the spec embedded in the result; every figure was recomputed. ") +
        xml_escape(kCautions) + "</footer>\n</body>\n</html>\n";
   return h;
 }

@@ -87,6 +87,9 @@ std::string report_splane_section(const ReportData& d) {
   for (const LoopEvaluation& e : rd.evaluation.plants)
     for (const PoleInfo& p : e.poles.poles)
       if (p.matters) take(p.pole);
+  if (d.previous && !d.previous->evaluation.plants.empty())
+    for (const PoleInfo& p : d.previous->evaluation.plants.front().poles.poles)
+      if (p.matters) take(p.pole);
   take(Complex(-d.region.min_decay, 0.0));
   take(Complex(-d.region.min_frequency, 0.0));
   // Compensator roots join the view when they are near it.
@@ -184,6 +187,18 @@ std::string report_splane_section(const ReportData& d) {
     v.stroke = colour;
     v.width = 1.3;
     p.markers(re, im, Marker::Diamond, 8, v, "closed-loop poles, plant variants");
+  }
+  if (d.previous && !d.previous->evaluation.plants.empty()) {  // a retune: where the old design put them
+    re.clear();
+    im.clear();
+    for (const PoleInfo& q : d.previous->evaluation.plants.front().poles.poles) {
+      re.push_back(q.pole.real());
+      im.push_back(q.pole.imag());
+    }
+    Style v;
+    v.stroke = colour::kMuted;
+    v.width = 1.5;
+    p.markers(re, im, Marker::Circle, 9, v, "closed-loop poles of the old design (nominal)");
   }
   re.clear();
   im.clear();

@@ -10,10 +10,21 @@ namespace pw {
 
 namespace report {
 
+Style previous_style() {
+  Style s;
+  s.stroke = colour::kMuted;
+  s.width = 1.8;
+  s.dash = "7 4";
+  return s;
+}
+
 double step_plot_end(const ReportData& d) {
   double horizon = 0.0, settle = 0.0, rise = 0.0;
-  for (const ReportDesign& rd : d.designs)
-    for (const LoopEvaluation& e : rd.evaluation.plants) {
+  std::vector<const ReportDesign*> all;
+  for (const ReportDesign& rd : d.designs) all.push_back(&rd);
+  if (d.previous) all.push_back(&*d.previous);
+  for (const ReportDesign* rd : all)
+    for (const LoopEvaluation& e : rd->evaluation.plants) {
       if (!e.step) continue;
       horizon = std::max(horizon, e.step->trace.dt * static_cast<double>(e.step->trace.y.size() > 0 ? e.step->trace.y.size() - 1 : 0));
       if (e.step->settling_time_s) settle = std::max(settle, *e.step->settling_time_s);
@@ -127,6 +138,19 @@ std::string report_time_section(const ReportData& d) {
     pu.line(t, v, s, name);
   }
   if (!any) return "<p class=\"pw-bad\">No step response: the nominal closed loop is unstable or not well posed.</p>\n";
+  // A retune: the compensator in service on the nominal plant, muted and dashed under the new one.
+  if (d.previous && !d.previous->evaluation.plants.empty()) {
+    const LoopEvaluation& old = d.previous->evaluation.plants.front();
+    if (old.step && !old.step->trace.y.empty()) {
+      const Style s = report::previous_style();
+      report::trace_xy(old.step->trace, false, t_end, t, v);
+      range_of(v, ylo, yhi);
+      py.line(t, v, s, "old design (in service), nominal");
+      report::trace_xy(old.step->trace, true, t_end, t, v);
+      range_of(v, ulo, uhi);
+      pu.line(t, v, s, "old design (in service), nominal");
+    }
+  }
   const auto os = d.spec.requirements.limit(MetricId::Overshoot, Sense::AtMost);
   if (os) yhi = std::max(yhi, yf * (1.0 + *os / 100.0));
   py.x.lo = pu.x.lo = 0.0;
@@ -193,7 +217,8 @@ std::string report_time_section(const ReportData& d) {
   pu.y.hi = e;
 
   std::string h = "<div class=\"pw-figures\">\n";
-  h += report::figure(py.svg(), "Solid: nominal plant; dashed and dotted: the plant variants. Bounds drawn from the requirements.");
+  h += report::figure(py.svg(), std::string("Solid: nominal plant; dashed and dotted: the plant variants. Bounds drawn from the requirements.") +
+                                    (d.previous ? " Grey dashes: the old design in service (nominal plant)." : ""));
   h += report::figure(pu.svg(), d.spec.requirements.has(MetricId::PeakEffort)
                                     ? "The compensator output for the same step; the dashed lines are the peak-effort limit."
                                     : "The compensator output for the same step (no peak-effort requirement is set).");

@@ -66,9 +66,13 @@ inline std::string powers_html(const std::string& escaped) {
 
 namespace pw {
 class Plot;
+struct Style;
 }
 
 namespace pw::report {
+
+// The line style of a retune's old design (the compensator in service): muted, long dashes.
+Style previous_style();
 
 // Time axis end for step plots: long enough to show the settling limit and every settling time,
 // never past the simulated horizon.

@@ -1,13 +1,16 @@
 // The HTML report: one self-contained file (inline SVG and CSS, no scripts, nothing fetched) for a
-// check or design result. The figures are recomputed from the result's embedded spec and its
+// check, design or retune result, or for a sweep directory. The figures are recomputed from the result's embedded spec and its
 // compensators through the analysis library, never read from the stored numbers.
 //
 // The page is a list of sections chosen by the result's job (`report_sections`); a section is a
 // function from the prepared data to an HTML fragment. Retune and sweep results add their own
-// sections to that table (see DEVELOPERS.md).
+// sections to that table (see DEVELOPERS.md); a sweep directory has its own preparation
+// (outputs/report_sweep.hpp) and sections.
 #pragma once
 
 #include <functional>
+#include <memory>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -25,15 +28,22 @@ struct ReportDesign {
   int colour = 0;         // palette index (candidate_colour)
 };
 
+struct SweepReport;  // outputs/report_sweep.hpp
+
 struct ReportData {
-  std::string job;                  // "check" or "design"
+  std::string job;                  // "check", "design", "retune" or "sweep"
   std::string name;                 // the spec's name
   Spec spec;
   Region region;
   std::vector<ReportDesign> designs;  // rank order; designs[0] is the chosen one (may be empty for a design that found none)
   Locus locus;                        // of the chosen design's nominal loop
   nlohmann::json document;            // the result file as read
-  bool met() const { return !designs.empty() && designs.front().evaluation.all_met; }
+  // retune: the compensator in service, drawn muted and dashed under the new design (absent when
+  // the retune changed nothing: then designs[0] is the current compensator itself).
+  std::optional<ReportDesign> previous;
+  bool unchanged = false;             // retune: the current compensator already met everything
+  std::shared_ptr<const SweepReport> sweep;  // sweep: the points (job "sweep"; no spec, no designs)
+  bool met() const;
 };
 
 // Recomputes everything a report shows. Throws SpecError naming the field when the result cannot
@@ -59,5 +69,6 @@ std::string report_splane_section(const ReportData& d);
 std::string report_time_section(const ReportData& d);
 std::string report_frequency_section(const ReportData& d);
 std::string report_candidates_section(const ReportData& d);
+std::string report_retune_section(const ReportData& d);  // retune: changes and old against new
 
 }  // namespace pw

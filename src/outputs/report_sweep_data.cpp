@@ -1,0 +1,209 @@
+#include <algorithm>
+#include <cmath>
+#include <filesystem>
+#include <fstream>
+#include <limits>
+#include <map>
+#include <sstream>
+
+#include "polewright/outputs/report_sweep.hpp"
+#include "polewright/outputs/svg_palette.hpp"
+#include "polewright/outputs/sweep_store.hpp"
+#include "polewright/requirements/spec.hpp"
+
+namespace pw {
+
+namespace {
+
+nlohmann::json read_header(const std::string& dir) {
+  const std::string path = dir + "/sweep.json";
+  if (!std::filesystem::is_regular_file(path)) throw SpecError(dir, "is not a sweep directory (no sweep.json)");
+  std::ifstream in(path, std::ios::binary);
+  std::stringstream ss;
+  ss << in.rdbuf();
+  const nlohmann::json h = nlohmann::json::parse(ss.str(), nullptr, false);
+  if (h.is_discarded() || !h.is_object() || !h.contains("sweep")) throw SpecError(path, "is not a sweep header");
+  return h;
+}
+
+SweepReportPoint point_of(const SweepFile& f, const nlohmann::json& p) {
+  SweepReportPoint q;
+  q.index = p["index"].get<long long>();
+  const nlohmann::json none;
+  const nlohmann::json& params = p.contains("parameters") && p["parameters"].is_object() ? p["parameters"] : none;
+  for (const SweepParameter& s : f.parameters) {
+    const nlohmann::json v = params.is_object() ? params.value(s.name, none) : none;
+    q.values.push_back(v.is_number() ? v.get<double>() : NAN);
+  }
+  q.status = p["status"].is_string() ? p["status"].get<std::string>() : "error";
+  if (p.contains("structure") && p["structure"].is_string()) q.structure = p["structure"].get<std::string>();
+  if (p.contains("message") && p["message"].is_string()) q.message = p["message"].get<std::string>();
+  const bool has_metrics = p.contains("metrics") && p["metrics"].is_object();
+  for (const MetricInfo& info : metric_table()) {
+    const size_t k = static_cast<size_t>(info.id);
+    const bool unbounded = p.contains("unbounded") && p["unbounded"].is_array() &&
+                           std::find(p["unbounded"].begin(), p["unbounded"].end(), info.key) != p["unbounded"].end();
+    if (unbounded) {
+      q.metrics[k] = std::numeric_limits<double>::infinity();
+    } else if (has_metrics && p["metrics"].contains(info.key) && p["metrics"][info.key].is_number()) {
+      const double v = p["metrics"][info.key].get<double>();
+      if (std::isfinite(v)) q.metrics[k] = v;
+    }
+  }
+  if (p.contains("change_decades") && p["change_decades"].is_number()) q.change_decades = p["change_decades"].get<double>();
+  return q;
+}
+
+std::string names_of(const SweepFile& f) {
+  std::string s;
+  for (const SweepParameter& p : f.parameters) s += (s.empty() ? "" : ", ") + p.name;
+  return s;
+}
+
+int parameter_index(const SweepFile& f, const std::string& name, const std::string& option) {
+  for (size_t i = 0; i < f.parameters.size(); ++i)
+    if (f.parameters[i].name == name) return static_cast<int>(i);
+  throw SpecError(option, "\"" + name + "\" is not a parameter of the sweep (" + names_of(f) + ")");
+}
+
+bool varies(const SweepFile& f, const SweepParameter& p) {
+  if (f.sample == SweepSample::Grid) return p.grid_count() > 1;
+  return p.is_range() || p.values.size() > 1;
+}
+
+}  // namespace
+
+long long SweepReport::count(const std::string& status) const {
+  long long n = 0;
+  for (const SweepReportPoint& p : points) n += p.status == status;
+  return n;
+}
+
+SweepReport read_sweep_report(const std::vector<std::string>& dirs, const SweepReportOptions& o) {
+  if (dirs.empty()) throw SpecError("DIR", "the report needs a sweep directory");
+  SweepReport r;
+  r.dirs = dirs;
+  nlohmann::json doc;
+  for (const std::string& d : dirs) {
+    const nlohmann::json h = read_header(d);
+    if (doc.is_null()) doc = h["sweep"];
+    else if (h["sweep"] != doc) throw SpecError(d, "holds a different sweep from " + dirs.front());
+  }
+  r.file = parse_sweep(doc);
+  r.expected = r.file.point_count();
+  const SweepFile& f = r.file;
+
+  // Axes and metric.
+  if (f.parameters.size() < 2) throw SpecError("--x", "the sweep has one parameter; the map needs two");
+  std::vector<int> varying;
+  for (size_t i = 0; i < f.parameters.size(); ++i)
+    if (varies(f, f.parameters[i])) varying.push_back(static_cast<int>(i));
+  for (size_t i = 0; i < f.parameters.size() && varying.size() < 2; ++i)
+    if (std::find(varying.begin(), varying.end(), static_cast<int>(i)) == varying.end()) varying.push_back(static_cast<int>(i));
+  r.x = o.x.empty() ? varying[0] : parameter_index(f, o.x, "--x");
+  if (!o.y.empty()) {
+    r.y = parameter_index(f, o.y, "--y");
+  } else {
+    r.y = varying[0] == r.x ? varying[1] : varying[0];
+    if (r.y == r.x) r.y = varying[1];
+  }
+  if (r.x == r.y) throw SpecError(o.y.empty() ? "--x" : "--y", "\"" + f.parameters[static_cast<size_t>(r.x)].name + "\" is on both axes: choose two different parameters");
+  const nlohmann::json req = f.base.contains("requirements") && f.base["requirements"].is_object() ? f.base["requirements"] : nlohmann::json::object();
+  if (!o.metric.empty()) {
+    bool found = false;
+    std::string keys;
+    for (const MetricInfo& info : metric_table()) {
+      keys += (keys.empty() ? "" : ", ") + std::string(info.key);
+      if (o.metric == info.key) {
+        r.metric = info.id;
+        found = true;
+      }
+    }
+    if (!found) throw SpecError("--metric", "\"" + o.metric + "\" is not a metric (one of " + keys + ")");
+  } else {
+    for (const MetricInfo& info : metric_table())
+      if (req.contains(info.key)) {
+        r.metric = info.id;
+        break;
+      }
+  }
+  const MetricInfo& mi = metric_info(r.metric);
+  const nlohmann::json* rq = req.contains(mi.key) ? &req[mi.key] : nullptr;
+  if (rq && rq->is_object() && rq->contains("min") && !rq->contains("max")) r.worst_is_max = false;
+  else if (rq && rq->is_object() && rq->contains("max")) r.worst_is_max = true;
+  else r.worst_is_max = mi.bounds != BoundKind::MinOnly;
+
+  // Points, merged by index.
+  std::map<long long, std::pair<std::string, SweepReportPoint>> by_index;
+  for (const std::string& d : dirs) {
+    const std::string path = d + "/points.jsonl";
+    if (!std::filesystem::is_regular_file(path)) throw SpecError(d, "holds no points.jsonl");
+    for_each_point(path, [&](const nlohmann::json& p) {
+      const long long i = p["index"].get<long long>();
+      std::string text = p.dump();
+      auto it = by_index.find(i);
+      if (it != by_index.end()) {
+        if (it->second.first != text) throw SpecError(d, "point " + std::to_string(i) + " differs from the same point in another directory");
+        return;
+      }
+      by_index.emplace(i, std::make_pair(std::move(text), point_of(f, p)));
+    });
+  }
+  for (auto& kv : by_index) r.points.push_back(std::move(kv.second.second));
+  return r;
+}
+
+std::vector<SweepCell> sweep_cells(const SweepReport& r) {
+  std::map<std::pair<double, double>, SweepCell> cells;
+  const size_t m = static_cast<size_t>(r.metric);
+  for (const SweepReportPoint& p : r.points) {
+    const double x = p.values[static_cast<size_t>(r.x)], y = p.values[static_cast<size_t>(r.y)];
+    if (!std::isfinite(x) || !std::isfinite(y)) continue;
+    SweepCell& c = cells[{x, y}];
+    c.x = x;
+    c.y = y;
+    ++c.points;
+    if (p.status == "met") ++c.met;
+    else if (p.status == "not_met") ++c.not_met;
+    else ++c.failed;
+    if (p.metrics[m]) {
+      const double v = *p.metrics[m];
+      if (!c.worst) c.worst = v;
+      else c.worst = r.worst_is_max ? std::max(*c.worst, v) : std::min(*c.worst, v);
+    }
+  }
+  std::vector<SweepCell> out;
+  for (auto& kv : cells) {
+    SweepCell& c = kv.second;
+    c.category = c.met == c.points ? 0 : c.not_met > 0 ? 1 : 2;
+    out.push_back(c);
+  }
+  return out;
+}
+
+std::vector<MapPoint> sweep_map_points(const std::vector<SweepCell>& cells) {
+  std::vector<MapPoint> out;
+  for (const SweepCell& c : cells) {
+    MapPoint p;
+    p.x = c.x;
+    p.y = c.y;
+    p.category = c.category;
+    if (c.worst && std::isfinite(*c.worst)) p.value = *c.worst;
+    p.feasible = c.category == 0;
+    out.push_back(p);
+  }
+  return out;
+}
+
+ReportData prepare_sweep_report(const std::vector<std::string>& dirs, const SweepReportOptions& options) {
+  ReportData d;
+  d.job = "sweep";
+  auto s = std::make_shared<SweepReport>(read_sweep_report(dirs, options));
+  d.name = s->file.document.contains("name") && s->file.document["name"].is_string() ? s->file.document["name"].get<std::string>()
+                                                                                       : std::filesystem::path(dirs.front()).filename().string();
+  d.document = s->file.document;
+  d.sweep = std::move(s);
+  return d;
+}
+
+}  // namespace pw

@@ -1,0 +1,192 @@
+#include <catch2/catch.hpp>
+
+#include <filesystem>
+#include <fstream>
+
+#include "polewright/jobs/sweep.hpp"
+#include "polewright/outputs/report_sweep.hpp"
+#include "polewright/outputs/sweep_store.hpp"
+#include "polewright/requirements/spec.hpp"
+#include "report_test_helpers.hpp"
+
+using namespace pw;
+using namespace pw_test_report;
+
+namespace {
+
+// A small check sweep: 1 / (s (s + a)) under a gain g, over a (4 values, log), g (3) and the
+// phase-margin limit pm (2): 24 points, 12 positions on the (a, g) map.
+const char* const kSweep = R"({
+  "name": "test sweep <a & g>",
+  "base": { "plant": { "gain": 1, "poles": [0, "-a"] },
+            "requirements": { "overshoot_pct": { "max": 25 }, "phase_margin_deg": { "min": "pm" } },
+            "current": { "gain": "g" } },
+  "parameters": { "a": { "from": 1, "to": 8, "count": 4, "scale": "log" },
+                  "g": { "values": [0.5, 2, 8] },
+                  "pm": { "values": [40, 60] } },
+  "sample": { "method": "grid" }, "job": "check", "seed": 3 })";
+
+std::string run_sweep_into(const std::string& json, const std::string& name, Shard shard = {1, 1}) {
+  const std::string dir = (std::filesystem::temp_directory_path() / ("pw-test-report-sweep-" + name)).string();
+  std::filesystem::remove_all(dir);
+  const SweepFile f = parse_sweep(nlohmann::json::parse(json));
+  SweepStore store(dir, f, shard, false);
+  SweepRunOptions o;
+  o.threads = 1;
+  o.todo = shard_indices(f.point_count(), shard.k, shard.n);
+  run_sweep(f, o, [&](const SweepPointResult& r) { store.append(r); });
+  store.finish();
+  return dir;
+}
+
+SweepReportPoint point(long long i, double x, double y, const std::string& status, std::optional<double> overshoot) {
+  SweepReportPoint p;
+  p.index = i;
+  p.values = {x, y, 0.0};
+  p.status = status;
+  p.metrics[static_cast<size_t>(MetricId::Overshoot)] = overshoot;
+  return p;
+}
+
+}  // namespace
+
+TEST_CASE("sweep report: both maps drawn, one cell per grid position, table and counts", "[outputs][report][sweep]") {
+  const std::string dir = run_sweep_into(kSweep, "grid");
+  const ReportData d = prepare_sweep_report({dir});
+  REQUIRE(d.sweep);
+  const SweepReport& r = *d.sweep;
+  CHECK(r.expected == 24);
+  CHECK(r.points.size() == 24);
+  CHECK(r.file.parameters[static_cast<size_t>(r.x)].name == "a");  // the defaults: first two varying
+  CHECK(r.file.parameters[static_cast<size_t>(r.y)].name == "g");
+  CHECK(r.metric == MetricId::Overshoot);  // the first requirement in metric-table order
+  CHECK(r.worst_is_max);
+  const std::vector<SweepCell> cells = sweep_cells(r);
+  REQUIRE(cells.size() == 12);
+  for (const SweepCell& c : cells) CHECK(c.points == 2);
+
+  const std::string html = report_html(d);
+  check_page(html, 2);
+  CHECK(html.find("test sweep &lt;a &amp; g&gt;") != std::string::npos);
+  const std::vector<std::string> maps = outer_svgs(report_sweep_map_section(d));
+  REQUIRE(maps.size() == 2);
+  // Every grid position is one cell on each map (4 x 3), drawn as one filled subpath.
+  CHECK(filled_subpaths(maps[0]) == 12);
+  CHECK(filled_subpaths(maps[1]) == 12);
+  // Table: one row per point; counts sum to the points.
+  const std::string table = report_sweep_points_section(d);
+  size_t rows = 0;
+  for (size_t p = table.find("<tr class=\"pw-point\">"); p != std::string::npos; p = table.find("<tr class=\"pw-point\">", p + 1)) ++rows;
+  CHECK(rows == 24);
+  CHECK(r.count("met") + r.count("not_met") + r.count("bad_point") + r.count("error") == 24);
+  CHECK(report_html(prepare_sweep_report({dir})) == html);  // deterministic
+  std::filesystem::remove_all(dir);
+}
+
+TEST_CASE("sweep report: the boundary is drawn when met and not-met cells meet", "[outputs][report][sweep]") {
+  const std::string dir = run_sweep_into(kSweep, "boundary");
+  const ReportData d = prepare_sweep_report({dir});
+  const std::vector<MapPoint> pts = sweep_map_points(sweep_cells(*d.sweep));
+  bool any_met = false, any_not = false;
+  for (const MapPoint& p : pts) (p.feasible ? any_met : any_not) = true;
+  const std::string map = report_sweep_map_section(d);
+  // The closed loop s^2 + a s + g has damping a / (2 sqrt(g)) (worked by hand): a = 8, g = 0.5 is
+  // overdamped and meets; a = 1, g = 8 (damping 0.18, about 57 % overshoot) misses the 25 % limit.
+  REQUIRE(any_met);
+  REQUIRE(any_not);
+  // With both kinds present on a full grid some cell edge separates them.
+  CHECK(map.find("boundary of the feasible area") != std::string::npos);
+  std::filesystem::remove_all(dir);
+}
+
+TEST_CASE("sweep aggregation: met only when every point met; worst metric over the hidden parameters", "[outputs][report][sweep]") {
+  SweepReport r;
+  r.file = parse_sweep(nlohmann::json::parse(kSweep));
+  r.x = 0;
+  r.y = 1;
+  r.metric = MetricId::Overshoot;
+  r.worst_is_max = true;
+  r.points = {point(0, 1, 1, "met", 5.0),     point(1, 1, 1, "met", 9.0),        // all met
+              point(2, 2, 1, "met", 3.0),     point(3, 2, 1, "not_met", 30.0),   // one missed
+              point(4, 1, 2, "met", 4.0),     point(5, 1, 2, "bad_point", {}),   // one could not run
+              point(6, 2, 2, "bad_point", {}), point(7, 2, 2, "not_met", 12.0)};
+  const std::vector<SweepCell> c = sweep_cells(r);
+  REQUIRE(c.size() == 4);  // ascending (x, y): (1,1) (1,2) (2,1) (2,2)
+  CHECK(c[0].category == 0);
+  CHECK(*c[0].worst == 9.0);
+  CHECK(c[1].category == 2);
+  CHECK(*c[1].worst == 4.0);
+  CHECK(c[2].category == 1);
+  CHECK(*c[2].worst == 30.0);
+  CHECK(c[3].category == 1);
+  r.worst_is_max = false;  // a metric bounded from below: the smallest is the worst
+  CHECK(*sweep_cells(r)[0].worst == 5.0);
+  const std::vector<MapPoint> m = sweep_map_points(c);
+  CHECK(m[0].feasible);
+  CHECK_FALSE(m[2].feasible);
+}
+
+TEST_CASE("sweep report: Sobol points become markers, no boundary", "[outputs][report][sweep]") {
+  nlohmann::json j = nlohmann::json::parse(kSweep);
+  j["sample"] = {{"method", "sobol"}, {"count", 16}};
+  const std::string dir = run_sweep_into(j.dump(), "sobol");
+  const ReportData d = prepare_sweep_report({dir}, {"a", "pm", "phase_margin_deg"});
+  CHECK(d.sweep->worst_is_max == false);  // phase margin has a "min" requirement
+  const std::vector<std::string> maps = outer_svgs(report_sweep_map_section(d));
+  REQUIRE(maps.size() == 2);
+  for (const std::string& s : maps) {
+    CHECK(has_drawn_data(s));
+    CHECK(filled_subpaths(s) == 0);
+    CHECK(s.find("boundary of the feasible area") == std::string::npos);
+  }
+  check_page(report_html(d), 2);
+  std::filesystem::remove_all(dir);
+}
+
+TEST_CASE("sweep report: shard directories are merged by index; missing points counted", "[outputs][report][sweep]") {
+  const std::string one = run_sweep_into(kSweep, "shard1", {1, 2}), two = run_sweep_into(kSweep, "shard2", {2, 2});
+  const ReportData half = prepare_sweep_report({one});
+  CHECK(half.sweep->points.size() == 12);
+  CHECK_FALSE(half.sweep->all_met());
+  const ReportData both = prepare_sweep_report({one, two});
+  CHECK(both.sweep->points.size() == 24);
+  CHECK(both.sweep->points.front().index == 0);
+  CHECK(both.sweep->points.back().index == 23);
+  const ReportData twice = prepare_sweep_report({one, two, one});  // a directory given twice agrees with itself
+  CHECK(twice.sweep->points.size() == 24);
+  std::filesystem::remove_all(one);
+  std::filesystem::remove_all(two);
+}
+
+TEST_CASE("sweep report: bad options and directories name the option or the directory", "[outputs][report][sweep]") {
+  const std::string dir = run_sweep_into(kSweep, "bad");
+  auto path_of = [&](const SweepReportOptions& o, const std::vector<std::string>& dirs) {
+    try {
+      prepare_sweep_report(dirs, o);
+    } catch (const SpecError& e) {
+      return e.path();
+    }
+    return std::string("no error");
+  };
+  CHECK(path_of({"Q", "", ""}, {dir}) == "--x");
+  CHECK(path_of({"", "Q", ""}, {dir}) == "--y");
+  CHECK(path_of({"a", "a", ""}, {dir}) == "--y");
+  CHECK(path_of({"", "", "speed"}, {dir}) == "--metric");
+  CHECK(path_of({}, {dir + "/none"}) == dir + "/none");
+  std::filesystem::remove_all(dir);
+}
+
+TEST_CASE("sweep table is cut at kSweepTableRows with a note", "[outputs][report][sweep]") {
+  auto r = std::make_shared<SweepReport>();
+  r->file = parse_sweep(nlohmann::json::parse(kSweep));
+  r->expected = 24;
+  for (long long i = 0; i < static_cast<long long>(kSweepTableRows) + 7; ++i) r->points.push_back(point(i, 1.0 + i, 1, "met", 1.0));
+  ReportData d;
+  d.job = "sweep";
+  d.sweep = r;
+  const std::string t = report_sweep_points_section(d);
+  size_t rows = 0;
+  for (size_t p = t.find("<tr class=\"pw-point\">"); p != std::string::npos; p = t.find("<tr class=\"pw-point\">", p + 1)) ++rows;
+  CHECK(rows == kSweepTableRows);
+  CHECK(t.find("first 500 of 507 points") != std::string::npos);
+}
