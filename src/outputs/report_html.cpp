@@ -25,8 +25,10 @@ section.pw-section > h2 { margin: 0 0 10px; font-size: 16px; font-weight: 600; b
 .pw-cautions { border: 2px solid #9a3412; background: #fff6ef; border-radius: 6px; padding: 9px 14px; margin: 0 0 18px; }
 .pw-cautions strong { color: #9a3412; }
 .pw-grid2 { display: grid; grid-template-columns: minmax(0, 1.4fr) minmax(0, 1fr); gap: 22px; }
-.pw-grid-even { display: grid; grid-template-columns: minmax(0, 1fr) minmax(0, 1fr); gap: 22px; }
 table.pw-table th.nowrap { white-space: nowrap; }
+.pw-flow { display: flex; flex-wrap: wrap; gap: 10px 34px; align-items: flex-start; }
+.pw-flow > div { flex: 0 0 auto; width: min-content; max-width: 100%; }
+table.pw-table.pw-compact { width: auto; }
 table.pw-table { border-collapse: collapse; width: 100%; font-size: 13px; }
 table.pw-table th { text-align: left; font-weight: 600; color: var(--muted); border-bottom: 2px solid var(--line); padding: 4px 8px; }
 table.pw-table td { border-bottom: 1px solid var(--line); padding: 4px 8px; vertical-align: top; }
@@ -56,7 +58,7 @@ footer { color: var(--muted); font-size: 12px; text-align: center; padding: 8px 
   main { max-width: none; padding: 6px 0; }
   section.pw-section, figure.pw-figure, .pw-cautions { break-inside: avoid; page-break-inside: avoid; }
   section.pw-section { border: none; padding: 4px 0; }
-  .pw-figures, .pw-split, .pw-grid2, .pw-grid-even { grid-template-columns: 1fr; }
+  .pw-figures, .pw-split, .pw-grid2 { grid-template-columns: 1fr; }
   .pw-scroll { max-height: none; overflow: visible; border: none; }
   .pw-badge { border: 1px solid var(--ink); color: var(--ink); background: none !important; }
   @page { size: A4; margin: 14mm; }

@@ -50,11 +50,11 @@ std::string report_retune_section(const ReportData& d) {
                                        !d.document["candidates"].empty()
                                    ? d.document["candidates"][0]
                                    : none;
-  std::string h = "<div class=\"pw-grid-even\">\n<div>\n";
+  std::string h = "<div class=\"pw-flow\">\n<div>\n";
   // The change list of the new design, as the result gives it.
   h += "<p style=\"margin:0 0 6px\">Changes from the design in service to <span class=\"pw-swatch\" style=\"background:" +
        std::string(candidate_colour(now.colour)) + "\"></span>" + xml_escape(now.label) + "</p>\n";
-  h += "<table class=\"pw-table pw-changes\"><thead><tr><th>item</th><th>old</th><th>new</th><th>change</th><th>driven by</th>"
+  h += "<table class=\"pw-table pw-changes pw-compact\"><thead><tr><th>item</th><th>old</th><th>new</th><th>change</th><th>driven by</th>"
        "</tr></thead><tbody>\n";
   size_t rows = 0;
   if (cand.is_object() && cand.contains("changes") && cand["changes"].is_array()) {
@@ -90,7 +90,7 @@ std::string report_retune_section(const ReportData& d) {
   }
   h += "</p>\n</div>\n<div>\n";
   // Every requirement: the old and the new worst value over the plants.
-  h += "<table class=\"pw-table\"><thead><tr><th>requirement</th><th>limit</th><th class=\"nowrap\">old worst</th><th></th><th class=\"nowrap\">new worst</th><th></th>"
+  h += "<table class=\"pw-table pw-compact\"><thead><tr><th>requirement</th><th>limit</th><th class=\"nowrap\">old worst</th><th></th><th class=\"nowrap\">new worst</th><th></th>"
        "</tr></thead><tbody>\n";
   for (const Requirement& r : d.spec.requirements.items) {
     const MetricInfo& info = metric_info(r.metric);

@@ -71,6 +71,13 @@ bool varies(const SweepFile& f, const SweepParameter& p) {
   return p.is_range() || p.values.size() > 1;
 }
 
+// "runs/joint/" -> "joint".
+std::string dir_name(const std::string& dir) {
+  std::filesystem::path p = std::filesystem::path(dir).lexically_normal();
+  if (p.filename().empty()) p = p.parent_path();
+  return p.filename().string();
+}
+
 }  // namespace
 
 long long SweepReport::count(const std::string& status) const {
@@ -100,13 +107,12 @@ SweepReport read_sweep_report(const std::vector<std::string>& dirs, const SweepR
     if (varies(f, f.parameters[i])) varying.push_back(static_cast<int>(i));
   for (size_t i = 0; i < f.parameters.size() && varying.size() < 2; ++i)
     if (std::find(varying.begin(), varying.end(), static_cast<int>(i)) == varying.end()) varying.push_back(static_cast<int>(i));
-  r.x = o.x.empty() ? varying[0] : parameter_index(f, o.x, "--x");
-  if (!o.y.empty()) {
-    r.y = parameter_index(f, o.y, "--y");
-  } else {
-    r.y = varying[0] == r.x ? varying[1] : varying[0];
-    if (r.y == r.x) r.y = varying[1];
-  }
+  // An axis left to its default takes the first varying parameter the other axis does not use.
+  const int given_x = o.x.empty() ? -1 : parameter_index(f, o.x, "--x");
+  const int given_y = o.y.empty() ? -1 : parameter_index(f, o.y, "--y");
+  auto first_other = [&](int used) { return varying[0] == used ? varying[1] : varying[0]; };
+  r.x = given_x >= 0 ? given_x : first_other(given_y);
+  r.y = given_y >= 0 ? given_y : first_other(r.x);
   if (r.x == r.y) throw SpecError(o.y.empty() ? "--x" : "--y", "\"" + f.parameters[static_cast<size_t>(r.x)].name + "\" is on both axes: choose two different parameters");
   const nlohmann::json req = f.base.contains("requirements") && f.base["requirements"].is_object() ? f.base["requirements"] : nlohmann::json::object();
   if (!o.metric.empty()) {
@@ -200,7 +206,7 @@ ReportData prepare_sweep_report(const std::vector<std::string>& dirs, const Swee
   d.job = "sweep";
   auto s = std::make_shared<SweepReport>(read_sweep_report(dirs, options));
   d.name = s->file.document.contains("name") && s->file.document["name"].is_string() ? s->file.document["name"].get<std::string>()
-                                                                                       : std::filesystem::path(dirs.front()).filename().string();
+                                                                                       : dir_name(dirs.front());
   d.document = s->file.document;
   d.sweep = std::move(s);
   return d;

@@ -173,6 +173,10 @@ TEST_CASE("sweep report: bad options and directories name the option or the dire
   CHECK(path_of({"a", "a", ""}, {dir}) == "--y");
   CHECK(path_of({"", "", "speed"}, {dir}) == "--metric");
   CHECK(path_of({}, {dir + "/none"}) == dir + "/none");
+  // Only --y given: the x axis defaults to the first varying parameter not on y.
+  const SweepReport r = read_sweep_report({dir}, {"", "a", ""});
+  CHECK(r.file.parameters[static_cast<size_t>(r.x)].name == "g");
+  CHECK(r.file.parameters[static_cast<size_t>(r.y)].name == "a");
   std::filesystem::remove_all(dir);
 }
 
