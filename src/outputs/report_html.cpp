@@ -34,7 +34,7 @@ table.pw-table th { text-align: left; font-weight: 600; color: var(--muted); bor
 table.pw-table td { border-bottom: 1px solid var(--line); padding: 4px 8px; vertical-align: top; }
 table.pw-table td.nowrap, table.pw-table td .pw-ok, table.pw-table td .pw-bad { white-space: nowrap; }
 table.pw-table td.pw-roots { font-size: 12px; font-variant-numeric: tabular-nums; }
-.pw-root { white-space: nowrap; }
+.pw-root, span.nowrap { white-space: nowrap; }
 table.pw-table td.num { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
 .pw-ok { color: #2f7d55; font-weight: 600; } .pw-bad { color: #b3261e; font-weight: 600; } .pw-grey { color: var(--muted); font-weight: 600; }
 .pw-scroll { max-height: 560px; overflow: auto; border: 1px solid var(--line); border-radius: 4px; }

@@ -32,6 +32,21 @@ std::string verdict(const RequirementOutcome* o) {
   return o->met ? "<span class=\"pw-ok\">met</span>" : "<span class=\"pw-bad\">not met</span>";
 }
 
+// "settling_time_s.max" as the requirement it names: "settling time &#8804; 0.6 s"; the key as
+// given when it names none of the spec's requirements.
+std::string driven_html(const ReportData& d, const std::string& key) {
+  const size_t dot = key.rfind('.');
+  const std::string metric = key.substr(0, dot), bound = dot == std::string::npos ? "" : key.substr(dot + 1);
+  for (const Requirement& r : d.spec.requirements.items) {
+    const MetricInfo& info = metric_info(r.metric);
+    if (metric != info.key) continue;
+    if ((bound == "max") != (r.sense == Sense::AtMost)) continue;
+    return "<span class=\"nowrap\">" + xml_escape(info.label) + (r.sense == Sense::AtMost ? " &#8804; " : " &#8805; ") +
+           xml_escape(format_number(r.limit, 4)) + (info.unit[0] ? " " + xml_escape(info.unit) : "") + "</span>";
+  }
+  return xml_escape(key);
+}
+
 }  // namespace
 
 std::string report_retune_section(const ReportData& d) {
@@ -71,7 +86,7 @@ std::string report_retune_section(const ReportData& d) {
       h += "<tr class=\"pw-change\"><td class=\"nowrap\">" + xml_escape(name) +
            "</td><td class=\"num\">" + change_value(c.contains("old") ? c["old"] : none) + damping_text(c, "old_damping") +
            "</td><td class=\"num\">" + change_value(c.contains("new") ? c["new"] : none) + damping_text(c, "new_damping") +
-           "</td><td class=\"num\">" + xml_escape(pct) + "</td><td>" + (driven.empty() ? "&#8212;" : xml_escape(driven)) + "</td></tr>\n";
+           "</td><td class=\"num\">" + xml_escape(pct) + "</td><td>" + (driven.empty() ? "&#8212;" : driven_html(d, driven)) + "</td></tr>\n";
     }
   }
   if (rows == 0) h += "<tr><td colspan=\"5\">no change listed</td></tr>\n";
@@ -96,7 +111,7 @@ std::string report_retune_section(const ReportData& d) {
     const MetricInfo& info = metric_info(r.metric);
     const RequirementOutcome* o = outcome_of(old.evaluation, r);
     const RequirementOutcome* n = outcome_of(now.evaluation, r);
-    h += "<tr><td>" + xml_escape(info.label) + "</td><td class=\"num\">" + (r.sense == Sense::AtMost ? "&#8804; " : "&#8805; ") +
+    h += "<tr><td class=\"nowrap\">" + xml_escape(info.label) + "</td><td class=\"num\">" + (r.sense == Sense::AtMost ? "&#8804; " : "&#8805; ") +
          xml_escape(format_number(r.limit, 4)) + (info.unit[0] ? " " + xml_escape(info.unit) : "") + "</td><td class=\"num\">" +
          (o ? xml_escape(report::metric_text(o->worst, info.unit)) : "n/a") + "</td><td>" + verdict(o) + "</td><td class=\"num\">" +
          (n ? xml_escape(report::metric_text(n->worst, info.unit)) : "n/a") + "</td><td>" + verdict(n) + "</td></tr>\n";

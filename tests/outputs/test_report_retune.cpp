@@ -32,7 +32,8 @@ nlohmann::json retune_doc(bool unchanged) {
          {"change_decades", 0.079},
          {"response_change_decades", 0.079},
          {"changes",
-          {{{"item", "gain"}, {"index", 0}, {"old", spec.current->gain}, {"new", next.gain}, {"percent_change", 20.0}, {"driven_by", "overshoot_pct"}},
+          {{{"item", "gain"}, {"index", 0}, {"old", spec.current->gain}, {"new", next.gain}, {"percent_change", 20.0}, {"driven_by", "overshoot_pct.max"}},
+           {{"item", "pole"}, {"index", 2}, {"old", nullptr}, {"new", -5.0}, {"percent_change", nullptr}, {"driven_by", "no_such.max"}},
            {{"item", "pole"}, {"index", 1}, {"old", -30.0}, {"new", -30.0}, {"percent_change", 0.0}, {"driven_by", nullptr}}}}});
   return doc;
 }
@@ -70,7 +71,10 @@ TEST_CASE("retune changes table: one row per change of the result", "[outputs][r
   const std::string s = report_retune_section(d);
   CHECK(count(s, "<tr class=\"pw-change\">") == doc["candidates"][0]["changes"].size());
   CHECK(s.find("+20 %") != std::string::npos);
-  CHECK(s.find("overshoot_pct") != std::string::npos);
+  // "overshoot_pct.max" is written as the requirement it names (wafer-stage: overshoot at most 5 %).
+  CHECK(s.find("overshoot &#8804; 5 %") != std::string::npos);
+  CHECK(s.find("no_such.max") != std::string::npos);  // an unknown key as given
+  CHECK(s.find("<td class=\"num\">new</td>") != std::string::npos);  // an added root has no percent change
   // Requirement table: a row per requirement of the spec, with old and new worst values.
   CHECK(count(s, "old worst") == 1);
   for (const Requirement& r : d.spec.requirements.items) CHECK(s.find(metric_info(r.metric).label) != std::string::npos);
