@@ -1,5 +1,6 @@
 #include <catch2/catch.hpp>
 
+#include <cmath>
 #include <filesystem>
 #include <fstream>
 
@@ -96,6 +97,36 @@ TEST_CASE("sweep report: the boundary is drawn when met and not-met cells meet",
   REQUIRE(any_not);
   // With both kinds present on a full grid some cell edge separates them.
   CHECK(map.find("boundary of the feasible area") != std::string::npos);
+  std::filesystem::remove_all(dir);
+}
+
+TEST_CASE("sweep map verdicts agree with the closed-form loop figures", "[outputs][report][sweep]") {
+  // L = g / (s (s + a)): crossover wc solves wc sqrt(wc^2 + a^2) = g, PM = 90 - atan(wc / a) deg;
+  // the closed loop s^2 + a s + g has damping z = a / (2 sqrt g) and overshoot exp(-pi z / sqrt(1 - z^2))
+  // (standard second-order results, worked by hand). A position holds pm = 40 and pm = 60, so it is
+  // met only when PM >= 60 and the overshoot <= 25 %. Positions within 1 deg or 1 % of a limit are
+  // skipped (the simulated figures may land either side).
+  const std::string dir = run_sweep_into(kSweep, "analytic");
+  const std::vector<SweepCell> cells = sweep_cells(*prepare_sweep_report({dir}).sweep);
+  REQUIRE(cells.size() == 12);
+  int compared = 0;
+  for (const SweepCell& c : cells) {
+    const double a = c.x, g = c.y;
+    double lo = 0.0, hi = std::sqrt(g) + g;  // bisection on wc sqrt(wc^2 + a^2) - g (increasing)
+    for (int i = 0; i < 200; ++i) {
+      const double m = 0.5 * (lo + hi);
+      (m * std::sqrt(m * m + a * a) > g ? hi : lo) = m;
+    }
+    const double pm = 90.0 - std::atan(lo / a) * 180.0 / 3.14159265358979323846;
+    const double z = a / (2.0 * std::sqrt(g));
+    const double os = z < 1.0 ? 100.0 * std::exp(-3.14159265358979323846 * z / std::sqrt(1.0 - z * z)) : 0.0;
+    if (std::abs(pm - 60.0) < 1.0 || std::abs(os - 25.0) < 1.0) continue;
+    const bool met = pm >= 60.0 && os <= 25.0;
+    INFO("a = " << a << ", g = " << g << ", PM = " << pm << ", overshoot = " << os);
+    CHECK(c.category == (met ? 0 : 1));
+    ++compared;
+  }
+  CHECK(compared >= 10);
   std::filesystem::remove_all(dir);
 }
 
