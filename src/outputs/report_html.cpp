@@ -81,7 +81,7 @@ std::vector<ReportSection> report_sections(const std::string& job) {
   if (job == "design") s.push_back({"candidates", "Ranked candidates", report_candidates_section});
   if (job == "retune") {
     // The changes come first after the verdict; the ranked table only when there is more than one.
-    s.insert(s.begin() + 1, {"changes", "Old and new design", report_retune_section});
+    s.insert(s.begin() + 1, {"changes", "Changes from the design in service", report_retune_section});
     s.push_back({"candidates", "Ranked candidates", [](const ReportData& d) {
                    return d.designs.size() > 1 ? report_candidates_section(d) : std::string();
                  }});

@@ -67,7 +67,7 @@ std::string report_retune_section(const ReportData& d) {
                                    : none;
   std::string h = "<div class=\"pw-flow\">\n<div>\n";
   // The change list of the new design, as the result gives it.
-  h += "<p style=\"margin:0 0 6px\">Changes from the design in service to <span class=\"pw-swatch\" style=\"background:" +
+  h += "<p style=\"margin:0 0 6px\">From the design in service (grey in the plots) to <span class=\"pw-swatch\" style=\"background:" +
        std::string(candidate_colour(now.colour)) + "\"></span>" + xml_escape(now.label) + "</p>\n";
   h += "<table class=\"pw-table pw-changes pw-compact\"><thead><tr><th>item</th><th>old</th><th>new</th><th>change</th><th>driven by</th>"
        "</tr></thead><tbody>\n";
