@@ -103,7 +103,11 @@ std::string report_sweep_summary_section(const ReportData& d) {
   row("not met", not_met, colour::kNotMet);
   row("bad point (the point's spec is invalid)", bad, colour::kMuted);
   row("error", err, colour::kMuted);
-  h += "</tbody></table>\n</div>\n<div>\n<div class=\"pw-kv\">";
+  h += "</tbody></table>\n";
+  for (const std::string& t : r.torn)
+    h += "<p class=\"pw-note\">" + xml_escape(t) + ": the points file ends in a torn or corrupt line (a run cut short); it was "
+         "skipped, and <code>sweep --resume</code> redoes that point.</p>\n";
+  h += "</div>\n<div>\n<div class=\"pw-kv\">";
   h += "<span class=\"k\">job at every point</span><span>" + xml_escape(sweep_job_name(f.job)) + "</span>";
   h += "<span class=\"k\">sampling</span><span>" + xml_escape(sample_name(f.sample)) +
        (f.sample == SweepSample::Grid ? "" : ", " + std::to_string(f.sample_count) + " points") + ", seed " + std::to_string(f.seed) + "</span>";

@@ -144,7 +144,7 @@ SweepReport read_sweep_report(const std::vector<std::string>& dirs, const SweepR
   for (const std::string& d : dirs) {
     const std::string path = d + "/points.jsonl";
     if (!std::filesystem::is_regular_file(path)) throw SpecError(d, "holds no points.jsonl");
-    for_each_point(path, [&](const nlohmann::json& p) {
+    const PointsScan scan = for_each_point(path, [&](const nlohmann::json& p) {
       const long long i = p["index"].get<long long>();
       std::string text = p.dump();
       auto it = by_index.find(i);
@@ -154,6 +154,7 @@ SweepReport read_sweep_report(const std::vector<std::string>& dirs, const SweepR
       }
       by_index.emplace(i, std::make_pair(std::move(text), point_of(f, p)));
     });
+    if (scan.torn) r.torn.push_back(d);
   }
   for (auto& kv : by_index) r.points.push_back(std::move(kv.second.second));
   return r;

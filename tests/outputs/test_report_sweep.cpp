@@ -211,6 +211,19 @@ TEST_CASE("sweep report: bad options and directories name the option or the dire
   std::filesystem::remove_all(dir);
 }
 
+TEST_CASE("sweep report: a torn last line is skipped and said so", "[outputs][report][sweep]") {
+  const std::string dir = run_sweep_into(kSweep, "torn");
+  {
+    std::ofstream out(dir + "/points.jsonl", std::ios::app | std::ios::binary);
+    out << "{\"index\": 24, \"status\": \"me";  // a write cut short by a crash
+  }
+  const ReportData d = prepare_sweep_report({dir});
+  CHECK(d.sweep->points.size() == 24);
+  REQUIRE(d.sweep->torn.size() == 1);
+  CHECK(report_sweep_summary_section(d).find("torn or corrupt line") != std::string::npos);
+  std::filesystem::remove_all(dir);
+}
+
 TEST_CASE("sweep table is cut at kSweepTableRows with a note", "[outputs][report][sweep]") {
   auto r = std::make_shared<SweepReport>();
   r->file = parse_sweep(nlohmann::json::parse(kSweep));

@@ -47,6 +47,7 @@ struct SweepReport {
   int x = 0, y = 1;                      // parameter indices of the map axes
   MetricId metric = MetricId::Overshoot;
   bool worst_is_max = true;              // how the metric is aggregated
+  std::vector<std::string> torn;         // directories whose points file ended in a torn line (skipped)
   long long count(const std::string& status) const;
   bool all_met() const { return expected > 0 && count("met") == expected; }
 };
