@@ -17,7 +17,7 @@ namespace {
 
 nlohmann::json read_header(const std::string& dir) {
   const std::string path = dir + "/sweep.json";
-  if (!std::filesystem::is_regular_file(path)) throw SpecError(dir, "is not a sweep directory (no sweep.json)");
+  if (!std::filesystem::is_regular_file(path)) throw SpecError(dir, "is a directory, but not a sweep directory (no sweep.json) nor a result file");
   std::ifstream in(path, std::ios::binary);
   std::stringstream ss;
   ss << in.rdbuf();

@@ -122,7 +122,7 @@ bad_opts same-axes '--y: "a" is on both axes' "$tmp/swdir" --x a --y a
 bad_opts unknown-metric '--metric: "speed" is not a metric' "$tmp/swdir" --metric speed
 bad_opts x-on-a-result '--x: applies to sweep directories only' "$tmp/check.json" --x a
 mkdir -p "$tmp/empty"
-bad_opts not-a-sweep 'is not a sweep directory (no sweep.json)' "$tmp/empty"
+bad_opts not-a-sweep 'is a directory, but not a sweep directory (no sweep.json)' "$tmp/empty"
 bad_opts mixed-inputs 'is not a sweep directory' "$tmp/swdir" "$tmp/check.json"
 cp -r "$tmp/swdir" "$tmp/other"
 /usr/bin/python3 - "$tmp/other/sweep.json" <<'PY'
