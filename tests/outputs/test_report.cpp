@@ -1,6 +1,5 @@
 #include <catch2/catch.hpp>
 
-#include <cctype>
 #include <regex>
 #include <vector>
 
@@ -9,8 +8,11 @@
 #include "polewright/outputs/json_values.hpp"
 #include "polewright/outputs/report.hpp"
 #include "polewright/requirements/spec_parse.hpp"
+#include "report_test_helpers.hpp"
 
 using namespace pw;
+using pw_test_report::check_page;
+using pw_test_report::outer_svgs;
 
 namespace {
 
@@ -34,92 +36,6 @@ ResultInput design_result() {
   doc["candidates"] = {{{"compensator", json_zpk(*spec.current)}, {"structure", {"lead", "notch"}}},
                        {{"compensator", json_zpk(second)}, {"structure", {"lead", "notch"}}}};
   return parse_result(doc);
-}
-
-// The outer <svg> elements (nested viewports excluded) as substrings.
-std::vector<std::string> outer_svgs(const std::string& html) {
-  std::vector<std::string> out;
-  size_t pos = 0;
-  while ((pos = html.find("<svg xmlns=", pos)) != std::string::npos) {
-    int depth = 0;
-    size_t i = pos;
-    for (;;) {
-      const size_t open = html.find("<svg", i + 1), close = html.find("</svg>", i + 1);
-      if (close == std::string::npos) return out;
-      if (open != std::string::npos && open < close) {
-        ++depth;
-        i = open;
-      } else if (depth == 0) {
-        out.push_back(html.substr(pos, close + 6 - pos));
-        pos = close + 6;
-        break;
-      } else {
-        --depth;
-        i = close;
-      }
-    }
-  }
-  return out;
-}
-
-// Tags balance like XML (the page is written as well-formed XHTML-style markup). A plain scanner:
-// std::regex recurses per character and long path data would exhaust the stack.
-bool tags_balance(const std::string& html, std::string* why) {
-  std::vector<std::string> stack;
-  size_t pos = html.find("<html");
-  while ((pos = html.find('<', pos)) != std::string::npos) {
-    const size_t end = html.find('>', pos);
-    if (end == std::string::npos) {
-      *why = "unterminated tag";
-      return false;
-    }
-    const bool closing = html[pos + 1] == '/';
-    size_t n = pos + (closing ? 2 : 1);
-    size_t k = n;
-    while (k < end && std::isalnum(static_cast<unsigned char>(html[k]))) ++k;
-    const std::string name = html.substr(n, k - n);
-    const bool self_closing = html[end - 1] == '/';
-    pos = end + 1;
-    if (name.empty() || self_closing) continue;
-    if (closing) {
-      if (stack.empty() || stack.back() != name) {
-        *why = "unexpected </" + name + "> (open: " + (stack.empty() ? std::string("none") : stack.back()) + ")";
-        return false;
-      }
-      stack.pop_back();
-    } else {
-      stack.push_back(name);
-    }
-  }
-  if (!stack.empty()) *why = "unclosed <" + stack.back() + ">";
-  return stack.empty();
-}
-
-// A data path (class "pw-data...") whose d attribute starts with a move command and has more.
-bool has_drawn_data(const std::string& svg) {
-  size_t pos = 0;
-  while ((pos = svg.find("class=\"pw-data", pos)) != std::string::npos) {
-    const size_t end = svg.find('>', pos);
-    const size_t d = svg.find(" d=\"M", pos);
-    if (d != std::string::npos && d < end && svg[d + 5] != '"' && svg[d + 6] != '"') return true;
-    pos = end;
-  }
-  return false;
-}
-
-void check_page(const std::string& html, size_t plots) {
-  std::string why;
-  CHECK(tags_balance(html, &why));
-  INFO(why);
-  const std::vector<std::string> svgs = outer_svgs(html);
-  CHECK(svgs.size() == plots);
-  for (const std::string& s : svgs) CHECK(has_drawn_data(s));
-  CHECK_FALSE(std::regex_search(html, std::regex("\\b(nan|inf|infinity)\\b", std::regex::icase)));
-  CHECK(html.find(kCautions) != std::string::npos);
-  CHECK(html.find("<script") == std::string::npos);
-  // Nothing fetched: the only URL is the SVG namespace name.
-  const std::string stripped = std::regex_replace(html, std::regex("http://www\\.w3\\.org/2000/svg"), "");
-  CHECK_FALSE(std::regex_search(stripped, std::regex("https?:|url\\(|@import|<link|src=")));
 }
 
 }  // namespace
