@@ -5,7 +5,6 @@
 #include <stdexcept>
 
 #include <Eigen/Sparse>
-#include <unsupported/Eigen/MatrixFunctions>
 
 #include "polewright/analysis/closed_loop.hpp"
 #include "polewright/analysis/eigen.hpp"
@@ -28,18 +27,7 @@ bool DiscreteLoopOptions::IsValid(std::string* error) const {
 namespace {
 
 // [[e^(A h), int_0^h e^(A s) ds B], [0, 1]], balanced before the exponential.
-Mat zoh_block(const StateSpace& g, double h) {
-  const int n = g.states();
-  Mat M = Mat::Zero(n + 1, n + 1);
-  M.topLeftCorner(n, n) = g.A * h;
-  M.topRightCorner(n, 1) = g.B * h;
-  Vec d;
-  balance(M, d);
-  Mat E = M.exp();
-  for (int i = 0; i < n + 1; ++i)
-    for (int j = 0; j < n + 1; ++j) E(i, j) *= d(i) / d(j);
-  return E;
-}
+Mat zoh_block(const StateSpace& g, double h) { return zoh_exponential(g.A, g.B, h); }
 
 }  // namespace
 

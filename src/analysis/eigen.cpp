@@ -1,5 +1,7 @@
 #include "polewright/analysis/eigen.hpp"
 
+#include <unsupported/Eigen/MatrixFunctions>
+
 #include <cmath>
 
 #include <Eigen/Eigenvalues>
@@ -77,5 +79,24 @@ CVec eigenvalues_balanced(const Mat& A) { return eigenvalues_impl<Mat, Vec>(A); 
 CVec eigenvalues_balanced(const Eigen::MatrixXd& A) { return eigenvalues_impl<Eigen::MatrixXd, Eigen::VectorXd>(A); }
 EigenDecomposition eigen_decompose(const Mat& A) { return decompose_impl<Mat, Vec>(A); }
 EigenDecomposition eigen_decompose(const Eigen::MatrixXd& A) { return decompose_impl<Eigen::MatrixXd, Eigen::VectorXd>(A); }
+
+Mat zoh_exponential(const Mat& A, const Vec& B, double h) {
+  const int n = static_cast<int>(A.rows());
+  // The input column is scaled to the size of A h first: the last row of M is zero, so the
+  // similarity diag(1, .., 1, 1/c) only scales that column of exp(M) by c, and balancing (which
+  // cannot act on a zero row) is left with a matrix whose squarings lose no digits to a huge B.
+  const double a = (A * h).cwiseAbs().maxCoeff(), b = (B * h).cwiseAbs().maxCoeff();
+  const double c = (n > 0 && a > 0.0 && b > 0.0) ? b / a : 1.0;
+  Mat M = Mat::Zero(n + 1, n + 1);
+  M.topLeftCorner(n, n) = A * h;
+  M.topRightCorner(n, 1) = B * (h / c);
+  Vec d;
+  balance(M, d);
+  Mat E = M.exp();
+  for (int i = 0; i < n + 1; ++i)
+    for (int j = 0; j < n + 1; ++j) E(i, j) *= d(i) / d(j);
+  E.topRightCorner(n, 1) *= c;
+  return E;
+}
 
 }  // namespace pw

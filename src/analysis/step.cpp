@@ -4,7 +4,6 @@
 #include <cmath>
 #include <string>
 
-#include <unsupported/Eigen/MatrixFunctions>
 
 #include "polewright/analysis/eigen.hpp"
 
@@ -23,21 +22,8 @@ bool StepOptions::IsValid(std::string* error) const {
 
 namespace {
 
-// z_{k+1} = E z_k with z = [x; 1]: exact for a constant input between samples. The matrix is
-// balanced first (exp(D^-1 M D) = D^-1 exp(M) D): a loop with large gains has entries spread over
-// many decades, and scaling-and-squaring on the unbalanced matrix loses the answer.
-Mat augmented_map(const ClosedLoop& L, double tau) {
-  const int n = L.states();
-  Mat M = Mat::Zero(n + 1, n + 1);
-  M.topLeftCorner(n, n) = L.A * tau;
-  M.topRightCorner(n, 1) = L.B * tau;
-  Vec d;
-  balance(M, d);
-  Mat E = M.exp();
-  for (int i = 0; i < n + 1; ++i)
-    for (int j = 0; j < n + 1; ++j) E(i, j) *= d(i) / d(j);
-  return E;
-}
+// z_{k+1} = E z_k with z = [x; 1]: exact for a constant input between samples.
+Mat augmented_map(const ClosedLoop& L, double tau) { return zoh_exponential(L.A, L.B, tau); }
 
 RowVec output_row(const RowVec& C, double D) {
   RowVec r(C.size() + 1);

@@ -5,7 +5,6 @@
 #include <stdexcept>
 
 #include <Eigen/Eigenvalues>
-#include <unsupported/Eigen/MatrixFunctions>
 
 #include "polewright/analysis/eigen.hpp"
 
@@ -172,15 +171,7 @@ StateSpace zoh_state_space(const StateSpace& sys, double T) {
   const int n = sys.states();
   StateSpace d = sys;
   if (n == 0) return d;
-  Mat M = Mat::Zero(n + 1, n + 1);
-  M.topLeftCorner(n, n) = sys.A * T;
-  M.topRightCorner(n, 1) = sys.B * T;
-  // Balanced first (exp(D^-1 M D) = D^-1 exp(M) D), as the step simulation does.
-  Vec scale;
-  balance(M, scale);
-  Mat E = M.exp();
-  for (int i = 0; i < n + 1; ++i)
-    for (int j = 0; j < n + 1; ++j) E(i, j) *= scale(i) / scale(j);
+  const Mat E = zoh_exponential(sys.A, sys.B, T);
   d.A = E.topLeftCorner(n, n);
   d.B = E.topRightCorner(n, 1);
   return d;

@@ -20,6 +20,12 @@ struct EigenDecomposition {
 };
 EigenDecomposition eigen_decompose(const Mat& A);
 
+// exp([[A h, B h], [0, 0]]) = [[e^(A h), int_0^h e^(A s) ds B], [0, 1]]: the exact zero-order-hold
+// map of x' = A x + B u over a step h. Balanced first (exp(D^-1 M D) = D^-1 exp(M) D): a loop with
+// large gains has entries spread over many decades, and scaling-and-squaring on the unbalanced
+// matrix loses the answer.
+Mat zoh_exponential(const Mat& A, const Vec& B, double h);
+
 // The same for dynamic-size matrices (a sampled loop with a long dead time holds more states than Mat).
 void balance(Eigen::MatrixXd& A, Eigen::VectorXd& scale);
 CVec eigenvalues_balanced(const Eigen::MatrixXd& A);
