@@ -104,6 +104,25 @@ class ResultsEqualTheCli(unittest.TestCase):
         with open(mine, "rb") as a, open(theirs, "rb") as b:
             self.assertEqual(a.read(), b.read())
 
+    def test_report_of_a_sweep_directory(self):
+        # A small check sweep of our kiln fan over the drive gain, run by the CLI; the module's page
+        # for the directory equals the CLI's.
+        sweep = {"name": "kiln fan drive gain", "base": kiln_fan(), "job": "check", "seed": 1,
+                 "parameters": {"g": {"from": 20, "to": 60, "count": 3}, "z": {"values": [2, 3]}},
+                 "sample": {"method": "grid"}}
+        sweep["base"]["plant"]["numerator"] = ["g"]
+        sweep["base"]["current"]["zeros"] = ["-z"]
+        path = self.tmp.write_json("sweep.json", sweep)
+        out = self.tmp.file("sweep-out")
+        rc, _, err = run_cli("sweep", path, "--out", out, "--threads", 1, "--quiet")
+        self.assertIn(rc, (0, 1), err)
+        mine, theirs = self.tmp.file("sweep-mine.html"), self.tmp.file("sweep-cli.html")
+        polewright.report(out, mine)
+        rc, _, err = run_cli("report", out, "-o", theirs)
+        self.assertEqual(rc, 0, err)
+        with open(mine, "rb") as a, open(theirs, "rb") as b:
+            self.assertEqual(a.read(), b.read())
+
     def test_version(self):
         self.assertEqual(polewright.__version__, self.cli_design["tool"]["version"])
 

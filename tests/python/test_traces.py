@@ -99,6 +99,19 @@ class Traces(unittest.TestCase):
         reported = design["candidates"][1]["metrics"]["phase_margin_deg"]
         self.assertAlmostEqual(pm, reported, delta=0.5)
 
+    def test_unstable_loop_has_no_step_samples(self):
+        # A negative gain on this positive-gain plant: the characteristic polynomial
+        # s (0.05 s^2 + 1.2 s + 4) - 24 (s + 3) = 0.05 s^3 + 1.2 s^2 - 20 s - 72 has coefficients of
+        # both signs, so it has a root with Re s > 0 (necessary condition for stability, from memory).
+        result = polewright.check(self.spec, compensator={"gain": -0.6, "zeros": [-3], "poles": [0]})
+        self.assertFalse(result["stable"])
+        tr = polewright.traces(result)
+        for p in tr["plants"]:
+            self.assertFalse(p["stable"])
+            for key in ("time_s", "y", "u"):
+                self.assertEqual(p[key].shape, (0,), key)
+            self.assertEqual(p["loop"].shape, tr["frequency_rad_s"].shape)
+
     def test_bare_compensator_needs_a_spec(self):
         comp = {"gain": 0.6, "zeros": [-3], "poles": [0]}
         with self.assertRaises(polewright.SpecError) as cm:
