@@ -9,6 +9,12 @@ from pw_support import TempDir, cli_json, kiln_fan, run_cli
 
 
 class ResultsEqualTheCli(unittest.TestCase):
+    def assertEqual(self, first, second, msg=None):
+        # Dicts and lists also compare as their JSON text, so that 1 and 1.0 differ.
+        super().assertEqual(first, second, msg)
+        if isinstance(first, (dict, list)):
+            super().assertEqual(json.dumps(first, sort_keys=True), json.dumps(second, sort_keys=True), msg)
+
     @classmethod
     def setUpClass(cls):
         cls.tmp = TempDir()
