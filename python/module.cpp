@@ -1,7 +1,9 @@
 // The Python module `polewright`: check, design, retune, export, report and traces on the same
 // library and JSON writers as the CLI, so a dict returned here equals the CLI's JSON for the same
 // spec and seed.
+#include <cmath>
 #include <filesystem>
+#include <limits>
 #include <optional>
 #include <string>
 
