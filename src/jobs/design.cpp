@@ -12,6 +12,7 @@
 #include <set>
 #include <tuple>
 #include <mutex>
+#include <thread>
 
 #include "polewright/synthesis/parallel.hpp"
 #include "polewright/synthesis/problem.hpp"
@@ -231,6 +232,24 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
   std::vector<int> pending(n_jobs, -1);
   std::condition_variable wake;
   int running = 0;
+  // An outside stop (o.cancel) is relayed to every job's flag, so that running local searches stop too.
+  auto stopped = [&] { return o.cancel && o.cancel->load(); };
+  std::atomic<bool> searching{true};
+  std::thread relay;
+  struct JoinRelay {  // also when a task throws
+    std::atomic<bool>& searching;
+    std::thread& relay;
+    ~JoinRelay() {
+      searching = false;
+      if (relay.joinable()) relay.join();
+    }
+  } join_relay{searching, relay};
+  if (o.cancel)
+    relay = std::thread([&] {
+      while (searching && !stopped()) std::this_thread::sleep_for(std::chrono::milliseconds(5));
+      if (stopped())
+        for (Job& job : jobs) job.cancel = true;
+    });
   parallel_for(static_cast<size_t>(threads), threads, [&](size_t) {
     std::unique_lock<std::mutex> lock(mutex);
     for (;;) {
@@ -249,9 +268,9 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
       lock.unlock();
       const size_t i = std::get<1>(task);
       Job& job = jobs[i];
-      const bool late = elapsed() >= o.time_limit_s;
+      const bool late = stopped() || elapsed() >= o.time_limit_s;
       if (late) {
-        out_of_time = true;
+        if (!stopped()) out_of_time = true;
       } else if (std::get<2>(task) == 0) {
         std::vector<PoolEntry> global;
         job.setup = prepare(structures[i], i, spec, rep.region, rep.frequency_range, screening, o, global);
@@ -281,6 +300,12 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
       wake.notify_all();
     }
   });
+  searching = false;
+  if (relay.joinable()) relay.join();
+  if (stopped()) {
+    rep.summary.seconds = elapsed();
+    return rep;
+  }
   // The levels used: complete ones up to the stop level.
   std::vector<StructureSetup> setups;
   std::vector<PoolEntry> pool;
@@ -390,6 +415,7 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
   if (!rep.met() && o.explain_failure && !rep.candidates.empty()) {
     for (const RequirementOutcome& out : rep.candidates.front().verification.outcomes) {
       if (out.met) continue;
+      if (stopped()) break;
       Spec relaxed = spec;
       relaxed.requirements.items.clear();
       for (const Requirement& r : spec.requirements.items)

@@ -58,6 +58,8 @@ struct RetuneProblem {
   const DesignProblem* screen;
   long long evaluations = 0;
   Point best;  // feasible with the least distance, else the least violation
+  const std::atomic<bool>* cancel = nullptr;  // RetuneOptions::cancel
+  bool stopped() const { return cancel && cancel->load(std::memory_order_relaxed); }
 
   Point score(const std::vector<double>& x) {
     ++evaluations;
@@ -80,6 +82,7 @@ struct PhaseData {
 double phase_objective(unsigned n, const double* x, double* grad, void* data) {
   (void)grad;
   PhaseData* d = static_cast<PhaseData*>(data);
+  if (d->problem->stopped()) throw nlopt::forced_stop();  // caught in run_phase
   const Point p = d->problem->score(std::vector<double>(x, x + n));
   const double d2 = p.distance * p.distance;
   if (d->barrier) return p.feasible ? d2 : 1e6 + p.violation;
@@ -122,10 +125,11 @@ void pull_back(RetuneProblem& rp, const std::vector<double>& feasible) {
 // distance, then the squared distance with the requirements as a barrier.
 Point local_retune(const RetuneSpace& rs, const DesignProblem& screen, const std::vector<double>& x0,
                    const RetuneOptions& o, long long& evaluations) {
-  RetuneProblem rp{&rs, &screen, 0, Point{}};
+  RetuneProblem rp{&rs, &screen, 0, Point{}, o.cancel};
   rp.score(x0);
+  if (rp.stopped()) return rp.best;
   if (!rp.best.feasible) run_phase(rp, x0, o.evaluations, 0.1, o.penalty, false);
-  if (rp.best.feasible) {
+  if (rp.best.feasible && !rp.stopped()) {
     pull_back(rp, rp.best.x);
     run_phase(rp, rp.best.x, o.evaluations, 0.02, o.penalty, true);
   }
@@ -332,6 +336,7 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
       results[i] = local_retune(spaces[tasks[i].space], screen, tasks[i].x0, o, evals[i]);
       results[i].origin = tasks[i].origin;
     });
+    if (o.cancel && o.cancel->load()) break;  // stopped from outside: the report is dropped
     for (long long e : evals) rep.summary.evaluations += e;
     rep.summary.local_runs += static_cast<int>(tasks.size());
     rep.summary.structures_searched += static_cast<int>(spaces.size());

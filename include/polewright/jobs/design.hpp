@@ -2,6 +2,7 @@
 // low-discrepancy starts, NLopt polish, full-accuracy verification, ranking with diversity.
 #pragma once
 
+#include <atomic>
 #include <optional>
 #include <string>
 #include <vector>
@@ -30,6 +31,9 @@ struct DesignOptions {
   int extra_levels = 0;                   // structure levels searched after the first one that fills `keep`
   bool explain_failure = true;            // binding requirements when nothing meets
   std::optional<Requirement> metric_objective;  // internal: optimise this metric instead (relaxed searches)
+  // Set from another thread to stop the search (checked between tasks and in every local search);
+  // the report returned after a stop is incomplete and is meant to be dropped.
+  const std::atomic<bool>* cancel = nullptr;
   bool IsValid(std::string* error) const;
   static DesignOptions FromSpec(const Spec& spec);
 };

@@ -25,6 +25,9 @@ struct RetuneOptions {
   double gain_decades = 2.0;         // how far the gain may move either way
   double penalty = 30.0;             // weight of the violation against the squared distance (phase 1)
   double distinct_decades = 0.02;    // least parameter distance (max norm) between two candidates
+  // Set from another thread to stop the search (checked between tasks and in every local run);
+  // the report returned after a stop is incomplete and is meant to be dropped.
+  const std::atomic<bool>* cancel = nullptr;
   bool IsValid(std::string* error) const;
   static RetuneOptions FromSpec(const Spec& spec);
 };
