@@ -112,8 +112,8 @@ TEST_CASE("bad sweep files: one line naming the field", "[requirements][sweep_pa
         "$.parameters.os.scales: unknown key (did you mean \"scale\"?)");
   CHECK(error_after([](json& j) { j["requirements"] = json::object(); }) ==
         "$.requirements: unknown key here (a spec key: it belongs in $.base)");
-  CHECK(error_after([](json& j) { j["base"]["requirements"]["overshoot"] = {{"max", 5}}; }) ==
-        "$.base.requirements.overshoot: unknown key (did you mean \"overshoot_pct\"?)");
+  CHECK_THAT(error_after([](json& j) { j["base"]["requirements"]["overshoot"] = {{"max", 5}}; }),
+             StartsWith("$.base.requirements.overshoot: unknown key (did you mean \"overshoot_pct\"?)"));
   CHECK_THAT(error_after([](json& j) { j["base"]["plant"]["denominatr"] = {1, 2}; }), StartsWith("$.base.plant.denominatr: unknown key"));
   CHECK_THAT(error_after([](json& j) { j["base"]["plant"]["denominator"][0] = "J - 0.1"; }),
              Catch::Contains("(at the first point)"));
