@@ -89,6 +89,7 @@ std::array<MetricValue, kMetricCount> discrete_metric_values(const DiscreteLoopA
     at(MetricId::Crossover) = number(f.crossover_rad_s);
     at(MetricId::Bandwidth) = number(f.bandwidth_rad_s);
     at(MetricId::PeakSensitivity) = number(f.peak_sensitivity);
+    at(MetricId::DelayMargin) = delay_margin_value(f);
   }
   if (!a.stable) return v;
   at(MetricId::SteadyStateError) = a.steady_state.error ? number(a.steady_state.error) : infinite();

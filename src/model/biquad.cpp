@@ -45,9 +45,70 @@ Complex poly_inv(const std::array<double, 3>& c, Complex z) {
   return c[0] + w * (c[1] + w * c[2]);
 }
 
+}  // namespace
+
 Complex section_value(const Biquad& s, Complex z) { return poly_inv(s.b, z) / poly_inv(s.a, z); }
 
-}  // namespace
+// Peak of |H(e^{jw})| over the first n sections, on a grid of 2048 frequencies in (0, pi] uniform in w plus
+// 256 log-spaced below 0.01 rad/sample, each pole angle, and golden-section refinement of the best.
+SectionPeak sections_peak(const std::vector<Biquad>& secs, size_t n) {
+  for (size_t i = 0; i < n; ++i)
+    if (secs[i].integrator) return {INFINITY, 0.0};
+  auto mag = [&](double w) {
+    const Complex z = std::polar(1.0, w);
+    double m = 1.0;
+    for (size_t i = 0; i < n; ++i) m *= std::abs(section_value(secs[i], z));
+    return std::isfinite(m) ? m : INFINITY;
+  };
+  std::vector<double> ws;
+  for (int k = 0; k <= 2048; ++k) ws.push_back(M_PI * k / 2048.0);
+  for (int k = 0; k < 256; ++k) ws.push_back(0.01 * std::pow(10.0, -8.0 * (1.0 - k / 255.0)));
+  for (size_t i = 0; i < n; ++i)
+    for (const Complex& p : secs[i].poles) ws.push_back(std::min(M_PI, std::abs(std::arg(p))));
+  std::sort(ws.begin(), ws.end());
+  size_t bi = 0;
+  double bm = -1.0;
+  std::vector<double> ms(ws.size());
+  for (size_t k = 0; k < ws.size(); ++k) {
+    ms[k] = mag(ws[k]);
+    if (ms[k] > bm) {
+      bm = ms[k];
+      bi = k;
+    }
+  }
+  if (!std::isfinite(bm)) return {INFINITY, ws[bi]};
+  double lo = ws[bi > 0 ? bi - 1 : 0], hi = ws[std::min(bi + 1, ws.size() - 1)];
+  const double phi = 0.5 * (std::sqrt(5.0) - 1.0);
+  double x1 = hi - phi * (hi - lo), x2 = lo + phi * (hi - lo), f1 = mag(x1), f2 = mag(x2);
+  for (int it = 0; it < 60 && hi - lo > 1e-15; ++it) {
+    if (f1 > f2) {
+      hi = x2;
+      x2 = x1;
+      f2 = f1;
+      x1 = hi - phi * (hi - lo);
+      f1 = mag(x1);
+    } else {
+      lo = x1;
+      x1 = x2;
+      f1 = f2;
+      x2 = lo + phi * (hi - lo);
+      f2 = mag(x2);
+    }
+  }
+  double w = ws[bi];
+  if (f1 > bm) {
+    bm = f1;
+    w = x1;
+  }
+  if (f2 > bm) {
+    bm = f2;
+    w = x2;
+  }
+  return {bm, w};
+}
+
+SectionPeak section_peak(const Biquad& s) { return sections_peak({s}, 1); }
+
 
 BiquadCascade biquad_cascade(const Zpk& d) {
   if (!d.is_proper()) throw std::invalid_argument("biquad_cascade: more zeros than poles (not causal)");
@@ -114,15 +175,31 @@ BiquadCascade biquad_cascade(const Zpk& d) {
     for (size_t i = 0; i < groups.size(); ++i) order.push_back(i);
     std::stable_sort(order.begin(), order.end(), [&](size_t x, size_t y) { return groups[x].radius() > groups[y].radius(); });
   };
-  // Each group in turn (nearest the circle first) takes its nearest complex pair.
-  for (size_t k : order) {
-    if (pairs.empty()) break;
-    if (groups[k].poles.size() != 2) continue;
-    size_t best = 0;
-    for (size_t i = 1; i < pairs.size(); ++i)
-      if (groups[k].distance(pairs[i]) < groups[k].distance(pairs[best])) best = i;
-    groups[k].zeros = {pairs[best], std::conj(pairs[best])};
-    pairs.erase(pairs.begin() + static_cast<long>(best));
+  // Complex zero pairs: the closest (two-pole section, pair) match first, over all sections and
+  // pairs, ties to the section nearer the unit circle. (Letting each section choose in turn gave a
+  // notch's zeros to a real-pole section that happened to lie nearer the circle.)
+  {
+    struct Match {
+      double d;
+      size_t rank, k, i;
+    };
+    std::vector<Match> m;
+    for (size_t r = 0; r < order.size(); ++r) {
+      const size_t k = order[r];
+      if (groups[k].poles.size() != 2) continue;
+      for (size_t i = 0; i < pairs.size(); ++i) m.push_back({groups[k].distance(pairs[i]), r, k, i});
+    }
+    std::stable_sort(m.begin(), m.end(), [](const Match& a, const Match& b) { return a.d != b.d ? a.d < b.d : a.rank < b.rank; });
+    std::vector<bool> used(pairs.size(), false);
+    for (const Match& x : m) {
+      if (used[x.i] || !groups[x.k].zeros.empty()) continue;
+      groups[x.k].zeros = {pairs[x.i], std::conj(pairs[x.i])};
+      used[x.i] = true;
+    }
+    Roots left;
+    for (size_t i = 0; i < pairs.size(); ++i)
+      if (!used[i]) left.push_back(pairs[i]);
+    pairs = left;
   }
   for (const Complex& z : pairs) {
     size_t k = place(z, 2);
@@ -133,15 +210,25 @@ BiquadCascade biquad_cascade(const Zpk& d) {
     groups[k].zeros.push_back(z);
     groups[k].zeros.push_back(std::conj(z));
   }
-  for (size_t k : order) {
-    // Real zeros: each group nearest the circle first takes the real zeros nearest its poles.
-    while (room(groups[k]) > 0 && !real_zeros.empty()) {
-      size_t best = 0;
-      for (size_t i = 1; i < real_zeros.size(); ++i)
-        if (groups[k].distance(real_zeros[i]) < groups[k].distance(real_zeros[best])) best = i;
-      groups[k].zeros.push_back(real_zeros[best]);
-      real_zeros.erase(real_zeros.begin() + static_cast<long>(best));
+  // Real zeros: repeatedly the closest (section with room, zero) match, ties to the section nearer
+  // the unit circle.
+  while (!real_zeros.empty()) {
+    size_t bk = groups.size(), bi = 0;
+    double bd = INFINITY;
+    for (size_t k : order) {
+      if (room(groups[k]) <= 0) continue;
+      for (size_t i = 0; i < real_zeros.size(); ++i) {
+        const double dd = groups[k].distance(real_zeros[i]);
+        if (bk == groups.size() || dd < bd) {
+          bk = k;
+          bi = i;
+          bd = dd;
+        }
+      }
     }
+    if (bk == groups.size()) break;
+    groups[bk].zeros.push_back(real_zeros[bi]);
+    real_zeros.erase(real_zeros.begin() + static_cast<long>(bi));
   }
   if (!real_zeros.empty()) throw std::logic_error("biquad_cascade: zeros left over");
 
@@ -151,6 +238,7 @@ BiquadCascade biquad_cascade(const Zpk& d) {
   });
   BiquadCascade out;
   double g = d.gain;
+  std::vector<Biquad> secs;
   for (const Group& gr : groups) {
     Biquad s;
     s.poles = gr.poles;
@@ -168,8 +256,57 @@ BiquadCascade biquad_cascade(const Zpk& d) {
     else scale = 1.0 / std::abs(section_value(s, Complex(0.0, 1.0)));
     for (double& c : s.b) c *= scale;
     g /= scale;
-    out.sections.push_back(s);
+    const SectionPeak pk = section_peak(s);
+    s.peak_gain = pk.gain;
+    s.peak_at = pk.at;
+    secs.push_back(s);
   }
+  // Order: integrators last (their gain is unbounded); the others in the order that keeps the
+  // largest running peak |H_1 ... H_i| (i below the last) smallest, searched over every order up
+  // to 6 sections on a common grid; orders within 1 % of the best go to the one with the fewest
+  // inversions of increasing pole radius (the order the groups were sorted in).
+  std::vector<size_t> idx;
+  for (size_t i = 0; i < secs.size(); ++i)
+    if (!secs[i].integrator) idx.push_back(i);
+  if (idx.size() >= 2 && idx.size() <= 6) {
+    std::vector<double> ws;
+    for (int k = 0; k <= 2048; ++k) ws.push_back(M_PI * k / 2048.0);
+    for (int k = 0; k < 256; ++k) ws.push_back(0.01 * std::pow(10.0, -8.0 * (1.0 - k / 255.0)));
+    for (size_t i : idx)
+      for (const Complex& p : secs[i].poles) ws.push_back(std::min(M_PI, std::abs(std::arg(p))));
+    std::vector<std::vector<double>> mag(secs.size());
+    for (size_t i : idx)
+      for (double w : ws) mag[i].push_back(std::abs(section_value(secs[i], std::polar(1.0, w))));
+    auto inversions = [](const std::vector<size_t>& o) {
+      int inv = 0;
+      for (size_t a = 0; a < o.size(); ++a)
+        for (size_t b = a + 1; b < o.size(); ++b) inv += o[a] > o[b] ? 1 : 0;
+      return inv;
+    };
+    std::vector<size_t> perm = idx, best = idx;
+    double best_cost = INFINITY;
+    std::vector<double> run(ws.size());
+    do {
+      std::fill(run.begin(), run.end(), 1.0);
+      double cost = 0.0;
+      for (size_t n = 0; n + 1 < perm.size(); ++n) {
+        double pk = 0.0;
+        for (size_t k = 0; k < ws.size(); ++k) pk = std::max(pk, run[k] *= mag[perm[n]][k]);
+        cost = std::max(cost, pk);
+      }
+      const bool better = cost < best_cost * (1.0 - 0.01);
+      const bool tie = !better && cost <= best_cost * (1.0 + 0.01) && inversions(perm) < inversions(best);
+      if (better || tie) {
+        best = perm;
+        best_cost = better ? cost : std::min(best_cost, cost);
+      }
+    } while (std::next_permutation(perm.begin(), perm.end()));
+    idx = best;
+  }
+  for (size_t i : idx) out.sections.push_back(secs[i]);
+  for (const Biquad& s : secs)
+    if (s.integrator) out.sections.push_back(s);
+  for (size_t n = 1; n <= out.sections.size(); ++n) out.sections[n - 1].running_peak = sections_peak(out.sections, n).gain;
   out.gain = g;
   return out;
 }

@@ -128,7 +128,7 @@ nlohmann::json check_report_json(const CheckReport& r) {
   j["name"] = r.spec_name;
   j["status"] = ev.all_met ? "met" : "not_met";
   j["stable"] = ev.all_stable;
-  j["compensator"] = json_zpk(r.compensator);
+  j["compensator"] = json_compensator(r.compensator);
   j["region"] = region_json(r.region);
   nlohmann::json rows = nlohmann::json::array();
   nlohmann::json wm = nlohmann::json::object(), wmet = nlohmann::json::object(), wmargin = nlohmann::json::object(),

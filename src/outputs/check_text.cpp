@@ -24,6 +24,8 @@ std::string check_report_text(const CheckReport& r) {
   std::string out;
   out += "polewright check" + (r.spec_name.empty() ? std::string() : ": " + r.spec_name) + "\n";
   out += "compensator  C(s) = " + zpk_to_string(r.compensator) + "\n";
+  out += "gains        " + gains_text(r.compensator) + " (" + std::to_string(zpk_integrators(r.compensator)) +
+         " integrator(s))\n";
   out += "plants       " + std::to_string(r.plants.size()) + " (nominal";
   if (r.plants.size() > 1) out += " + " + std::to_string(r.plants.size() - 1) + " variants";
   out += ")\n";

@@ -53,7 +53,7 @@ nlohmann::json candidate_json(const Candidate& c, const RequirementSet& req) {
   j["rank"] = c.rank;
   j["structure"] = c.structure.names();
   j["meets"] = c.meets;
-  j["compensator"] = json_zpk(c.compensator);
+  j["compensator"] = json_compensator(c.compensator);
   add_metrics(j, c.worst);
   j["worst_variant"] = c.verification.worst_plant;
   const LoopEvaluation& nominal = c.verification.plants.front();

@@ -44,7 +44,7 @@ std::string design_report_text(const DesignReport& r) {
          " .. " + fmt_number(r.frequency_range.second) + " rad/s, " + std::to_string(r.plants.size()) + " plant(s)\n";
   for (const std::string& w : conditioning_warnings(r.spec_document)) out += "warning " + w + "\n";
   out += "\n";
-  std::vector<std::string> header = {"rank", "structure", "gain", "zeros", "poles"};
+  std::vector<std::string> header = {"rank", "structure", "zero-pole gain", "low-freq gain", "zeros", "poles"};
   std::vector<MetricId> shown;
   for (const Requirement& q : r.requirements.items)
     if (std::find(shown.begin(), shown.end(), q.metric) == shown.end()) shown.push_back(q.metric);
@@ -57,7 +57,7 @@ std::string design_report_text(const DesignReport& r) {
     for (const std::string& n : c.structure.names()) structure += (structure.empty() ? "" : "+") + n;
     if (structure.empty()) structure = "gain";
     std::vector<std::string> row = {std::to_string(c.rank), structure, fmt_number(c.compensator.gain),
-                                    roots_text(c.compensator.zeros), roots_text(c.compensator.poles)};
+                                    fmt_number(zpk_low_frequency_gain(c.compensator)), roots_text(c.compensator.zeros), roots_text(c.compensator.poles)};
     for (MetricId id : shown) {
       const MetricValue& v = c.worst[static_cast<size_t>(id)];
       row.push_back(v.infinite ? "unbounded" : fmt_number(v.value));
@@ -67,6 +67,7 @@ std::string design_report_text(const DesignReport& r) {
   }
   out += r.candidates.empty() ? "  no candidate\n" : t.render();
   out += "\n  metrics are the worst case over the plants; every candidate was re-verified at full accuracy\n";
+  out += "  " + std::string(kGainConvention) + "\n";
   if (!r.met()) {
     out += "\nnothing meets every requirement.\n";
     for (const BindingRequirement& b : r.binding)

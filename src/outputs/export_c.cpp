@@ -99,9 +99,14 @@ std::string export_c_source(const ExportReport& r, const std::string& name) {
   std::string s = banner(r, name + ".c");
   s += "#include \"" + name + ".h\"\n\n";
   // One spare row keeps the arrays non-empty for a pure gain.
-  s += "/* b0, b1, b2 of each section. */\nstatic const " + real + " kB[" + N + "_SECTIONS + 1][3] = {\n";
-  for (const Biquad& q : r.cascade.sections)
-    s += "  {" + c_literal(q.b[0], p) + ", " + c_literal(q.b[1], p) + ", " + c_literal(q.b[2], p) + "},\n";
+  s += "/* b0, b1, b2 of each section; the comment gives its peak gain max |B/A| on the unit circle and the\n"
+       " * running peak from e to its output (before kGain), for fixed-point scaling. */\n"
+       "static const " + real + " kB[" + N + "_SECTIONS + 1][3] = {\n";
+  for (const Biquad& q : r.cascade.sections) {
+    auto pk = [](double v) { return std::isfinite(v) ? num(v) : std::string("unbounded"); };
+    s += "  {" + c_literal(q.b[0], p) + ", " + c_literal(q.b[1], p) + ", " + c_literal(q.b[2], p) + "}, /* peak " + pk(q.peak_gain) +
+         " at " + num(q.peak_at / r.options.sample_time_s) + " rad/s, running peak " + pk(q.running_peak) + " */\n";
+  }
   s += "  {" + c_literal(0.0, p) + ", " + c_literal(0.0, p) + ", " + c_literal(0.0, p) + "}\n};\n";
   s += "/* a1, a2 of each section (a0 = 1). */\nstatic const " + real + " kA[" + N + "_SECTIONS + 1][2] = {\n";
   for (const Biquad& q : r.cascade.sections) s += "  {" + c_literal(q.a[1], p) + ", " + c_literal(q.a[2], p) + "},\n";

@@ -54,7 +54,10 @@ nlohmann::ordered_json export_json(const ExportReport& r) {
   for (size_t i = 0; i < r.cascade.sections.size(); ++i)
     rad.push_back({{"integrator", r.cascade.sections[i].integrator},
                    {"pole_radius", json_number(r.radii[i].double_radius)},
-                   {"pole_radius_float", json_number(r.radii[i].float_radius)}});
+                   {"pole_radius_float", json_number(r.radii[i].float_radius)},
+                   {"peak_gain", json_number(r.cascade.sections[i].peak_gain)},
+                   {"peak_at_rad_s", json_number(r.cascade.sections[i].peak_at / r.options.sample_time_s)},
+                   {"running_peak_gain", json_number(r.cascade.sections[i].running_peak)}});
   j["section_details"] = rad;
   json rv;
   rv["verified"] = r.verified;

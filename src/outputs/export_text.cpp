@@ -8,6 +8,9 @@ namespace pw {
 
 namespace {
 
+std::string peak_text(double v) { return std::isfinite(v) ? fmt_number(v, 4) : "unbounded"; }
+
+
 std::string value_text(const MetricValue& v, const char* unit) {
   if (v.infinite) return "unbounded";
   if (!v.value) return "-";
@@ -33,15 +36,18 @@ std::string export_text(const ExportReport& r) {
     out += "rate ratio   2 pi / T is " + fmt_number((2.0 * M_PI / r.options.sample_time_s) / *r.crossover_rad_s, 3) +
            " times the continuous crossover\n";
   out += "\n";
-  TextTable sec({"section", "b0", "b1", "b2", "a1", "a2", "pole radius", "float radius"});
-  sec.add({"gain", fmt_number(r.cascade.gain, 9), "", "", "", "", "", ""});
+  TextTable sec({"section", "b0", "b1", "b2", "a1", "a2", "pole radius", "float radius", "peak gain", "at rad/s", "running peak"});
+  sec.add({"gain", fmt_number(r.cascade.gain, 9), "", "", "", "", "", "", "", "", ""});
   for (size_t i = 0; i < r.cascade.sections.size(); ++i) {
     const Biquad& q = r.cascade.sections[i];
     sec.add({std::to_string(i + 1) + (q.integrator ? " (integrator)" : ""), fmt_number(q.b[0], 9), fmt_number(q.b[1], 9),
              fmt_number(q.b[2], 9), fmt_number(q.a[1], 9), fmt_number(q.a[2], 9), fmt_number(r.radii[i].double_radius, 9),
-             fmt_number(r.radii[i].float_radius, 9)});
+             fmt_number(r.radii[i].float_radius, 9), peak_text(q.peak_gain), fmt_number(q.peak_at / r.options.sample_time_s, 4),
+             peak_text(q.running_peak)});
   }
-  out += sec.render() + "\n";
+  out += sec.render();
+  out += "  peak gain: max |B/A| of the section on the unit circle (sections have unit DC gain; g carries the rest);\n"
+         "  running peak: of the sections up to this one, i.e. the largest gain from e to that section's output before g\n\n";
   if (r.verified) {
     TextTable t({"requirement", "limit", "continuous", "discrete", "met (discrete)", "worst plant"});
     for (const ExportOutcome& o : r.outcomes) {

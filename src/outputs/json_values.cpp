@@ -2,6 +2,8 @@
 
 #include <cmath>
 
+#include "polewright/outputs/text_table.hpp"
+
 namespace pw {
 
 const char* const kCautions =
@@ -37,6 +39,21 @@ nlohmann::json json_zpk(const Zpk& z) {
   j["denominator"] = nlohmann::json::array();
   for (double c : zpk_denominator(z)) j["denominator"].push_back(json_number(c));
   return j;
+}
+
+nlohmann::json json_compensator(const Zpk& c) {
+  nlohmann::json j = json_zpk(c);
+  j["low_frequency_gain"] = json_number(zpk_low_frequency_gain(c));
+  j["integrators"] = zpk_integrators(c);
+  return j;
+}
+
+const char* const kGainConvention =
+    "gains: zero-pole gain = k of k prod(s - z) / prod(s - p); low-frequency gain = lim s^n C(s) as s -> 0, "
+    "n = integrators (the Bode gain)";
+
+std::string gains_text(const Zpk& c) {
+  return "zero-pole gain " + fmt_number(c.gain) + ", low-frequency gain " + fmt_number(zpk_low_frequency_gain(c));
 }
 
 }  // namespace pw

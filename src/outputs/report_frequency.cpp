@@ -223,7 +223,7 @@ std::string report_frequency_section(const ReportData& d) {
 
   // Margins of every plant.
   std::string t = "<table class=\"pw-table\"><thead><tr><th>plant</th><th>&#969;c (rad/s)</th><th>phase margin</th>"
-                  "<th>gain margin</th><th>peak |S|</th><th>bandwidth (rad/s)</th></tr></thead><tbody>\n";
+                  "<th>gain margin</th><th>delay margin</th><th>peak |S|</th><th>bandwidth (rad/s)</th></tr></thead><tbody>\n";
   for (size_t i = 0; i < rd.evaluation.plants.size(); ++i) {
     const FrequencyMetrics& g = rd.evaluation.plants[i].frequency;
     auto opt = [](const std::optional<double>& v, const char* unit) {
@@ -232,7 +232,7 @@ std::string report_frequency_section(const ReportData& d) {
     t += "<tr><td>" + xml_escape(report::plant_name(d, i)) + "</td><td class=\"num\">" + opt(g.crossover_rad_s, "") +
          "</td><td class=\"num\">" + opt(g.phase_margin_deg, "&#176;") + "</td><td class=\"num\">" +
          (g.gain_margin_db ? opt(g.gain_margin_db, " dB") : std::string("unbounded")) + "</td><td class=\"num\">" +
-         opt(g.peak_sensitivity, "") + "</td><td class=\"num\">" + opt(g.bandwidth_rad_s, "") + "</td></tr>\n";
+         xml_escape(report::metric_text(delay_margin_value(g), "s")) + "</td><td class=\"num\">" + opt(g.peak_sensitivity, "") + "</td><td class=\"num\">" + opt(g.bandwidth_rad_s, "") + "</td></tr>\n";
   }
   t += "</tbody></table>\n";
 

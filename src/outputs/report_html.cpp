@@ -50,6 +50,7 @@ figure.pw-figure svg { width: 100%; height: auto; display: block; font-family: i
 figcaption { color: var(--muted); font-size: 12px; margin: 2px 4px 6px; }
 .pw-swatch { display: inline-block; width: 12px; height: 12px; border-radius: 2px; vertical-align: -1px; margin-right: 5px; }
 .pw-note { color: var(--muted); font-size: 12px; }
+.pw-diagnosis { border-left: 3px solid #b3261e; padding: 2px 10px; margin: 10px 0; } .pw-diagnosis ul { margin: 0; padding-left: 18px; }
 footer { color: var(--muted); font-size: 12px; text-align: center; padding: 8px 0 20px; }
 @media print {
   body { background: #fff; font-size: 11px; }
@@ -77,6 +78,7 @@ std::vector<ReportSection> report_sections(const std::string& job) {
       {"s-plane", "Closed-loop poles and root locus", report_splane_section},
       {"time", "Unit step: output and control effort", report_time_section},
       {"frequency", "Loop frequency response", report_frequency_section},
+      {"nyquist", "Nyquist plot and delay margin", report_nyquist_section},
   };
   if (job == "design") s.push_back({"candidates", "Ranked candidates", report_candidates_section});
   if (job == "retune") {

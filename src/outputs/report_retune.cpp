@@ -82,7 +82,7 @@ std::string report_retune_section(const ReportData& d) {
       std::string pct = "new";
       if (pc.is_number()) pct = (pc.get<double>() > 0 ? "+" : "") + format_number(pc.get<double>(), 3) + " %";
       const std::string driven = c.contains("driven_by") && c["driven_by"].is_string() ? c["driven_by"].get<std::string>() : "";
-      const std::string name = item == "gain" ? "gain (low-frequency)" : item + (index > 0 ? " " + std::to_string(index) : "");
+      const std::string name = item == "gain" ? "low-frequency gain" : item + (index > 0 ? " " + std::to_string(index) : "");
       h += "<tr class=\"pw-change\"><td class=\"nowrap\">" + xml_escape(name) +
            "</td><td class=\"num\">" + change_value(c.contains("old") ? c["old"] : none) + damping_text(c, "old_damping") +
            "</td><td class=\"num\">" + change_value(c.contains("new") ? c["new"] : none) + damping_text(c, "new_damping") +
@@ -90,7 +90,7 @@ std::string report_retune_section(const ReportData& d) {
     }
   }
   if (rows == 0) h += "<tr><td colspan=\"5\">no change listed</td></tr>\n";
-  h += "</tbody></table>\n<p class=\"pw-note\">Change: of the gain, or of |root| (the corner or natural frequency); pairs also show "
+  h += "</tbody></table>\n<p class=\"pw-note\">Change: of the low-frequency gain, or of |root| (the corner or natural frequency); pairs also show "
        "their damping. Driven by: the requirement that fails when that change alone is undone.";
   auto number = [&](const char* key) -> std::string {
     return cand.is_object() && cand.contains(key) && cand[key].is_number() ? format_number(cand[key].get<double>(), 3) : "n/a";

@@ -1,6 +1,7 @@
 #include <algorithm>
 #include <cmath>
 
+#include "polewright/model/pade.hpp"
 #include "polewright/outputs/report.hpp"
 #include "polewright/outputs/svg_palette.hpp"
 #include "polewright/outputs/svg_plot.hpp"
@@ -63,16 +64,48 @@ size_t nearest_gain(const std::vector<double>& gains, double k) {
   return best;
 }
 
+// Whether c is one of the roots in rs (relative tolerance: the locus copies them exactly).
+bool among(const Complex& c, const Roots& rs) {
+  for (const Complex& r : rs)
+    if (std::abs(c - r) <= 1e-9 * std::max(1.0, std::abs(r))) return true;
+  return false;
+}
+
+// An arrow at the edge of the view pointing at a root outside it, with the root's value.
+void edge_arrow(Plot& p, const Complex& c, const std::string& what, const std::string& colour) {
+  const double cx = 0.5 * (p.x.lo + p.x.hi), cy = 0.5 * (p.y.lo + p.y.hi);
+  const double dx = c.real() - cx, dy = c.imag() - cy;
+  if (!std::isfinite(dx) || !std::isfinite(dy) || (dx == 0.0 && dy == 0.0)) return;
+  // The point where the ray from the centre leaves the box, pulled in by 4 % of the box.
+  double t = INFINITY;
+  const double hx = 0.5 * (p.x.hi - p.x.lo) * 0.96, hy = 0.5 * (p.y.hi - p.y.lo) * 0.96;
+  if (dx != 0.0) t = std::min(t, hx / std::abs(dx));
+  if (dy != 0.0) t = std::min(t, hy / std::abs(dy));
+  const double ex = cx + t * dx, ey = cy + t * dy;
+  const double ang = std::atan2(dy, dx);
+  static const char* const arrows[] = {"\u2192", "\u2197", "\u2191", "\u2196", "\u2190", "\u2199", "\u2193", "\u2198"};
+  const int k = static_cast<int>(std::lround(ang / (kPi / 4.0))) & 7;
+  std::string value = format_number(c.real(), 3);
+  if (c.imag() != 0.0) value += (c.imag() > 0 ? " + " : " \u2212 ") + format_number(std::abs(c.imag()), 3) + "j";
+  const bool right = std::cos(ang) > 0.3;
+  p.note(ex, ey, std::string(arrows[k]) + " " + what + " " + value, colour, right ? -4 : 4, std::sin(ang) < -0.3 ? -4 : 10,
+         right ? "end" : "start", true);
+}
+
 }  // namespace
 
-std::string report_splane_section(const ReportData& d) {
-  if (d.designs.empty()) return "";
+SplaneView splane_view(const ReportData& d) {
+  SplaneView v;
+  if (d.designs.empty()) return v;
   const ReportDesign& rd = d.designs.front();
-  const LoopEvaluation& nominal = rd.evaluation.plants.front();
-  const std::string colour = candidate_colour(rd.colour);
-
   // View: the plants' roots, the closed-loop poles that matter and the region corner. Compensator
   // roots far out (a lead pole a decade up) would squeeze the picture: they are listed instead.
+  // With a dead time, closed-loop poles out where its Pade approximant is (|s| at least half its
+  // smallest root) are artefacts of the approximant: they do not set the view either.
+  const Plant& plant0 = d.spec.plants.front();
+  double pade_reach = INFINITY;
+  if (plant0.delay_s > 0.0)
+    for (const Complex& c : pade_delay(plant0.delay_s, d.spec.analysis.pade_order).poles) pade_reach = std::min(pade_reach, 0.5 * std::abs(c));
   double xmin = 0.0, xmax = 0.0, ymax = 0.0;
   auto take = [&](const Complex& c) {
     if (!std::isfinite(c.real()) || !std::isfinite(c.imag())) return;
@@ -84,12 +117,12 @@ std::string report_splane_section(const ReportData& d) {
     for (const Complex& c : p.tf.zeros) take(c);
     for (const Complex& c : p.tf.poles) take(c);
   }
-  for (const LoopEvaluation& e : rd.evaluation.plants)
+  auto take_matters = [&](const LoopEvaluation& e) {
     for (const PoleInfo& p : e.poles.poles)
-      if (p.matters) take(p.pole);
-  if (d.previous && !d.previous->evaluation.plants.empty())
-    for (const PoleInfo& p : d.previous->evaluation.plants.front().poles.poles)
-      if (p.matters) take(p.pole);
+      if (p.matters && std::abs(p.pole) < pade_reach) take(p.pole);
+  };
+  for (const LoopEvaluation& e : rd.evaluation.plants) take_matters(e);
+  if (d.previous && !d.previous->evaluation.plants.empty()) take_matters(d.previous->evaluation.plants.front());
   take(Complex(-d.region.min_decay, 0.0));
   take(Complex(-d.region.min_frequency, 0.0));
   // Compensator roots join the view when they are near it.
@@ -99,14 +132,32 @@ std::string report_splane_section(const ReportData& d) {
       for (const Complex& c : *rs)
         if (c.real() >= xmin - reach && std::abs(c.imag()) <= ymax + reach) take(c);
   }
-  double span = std::max({xmax - xmin, 2.0 * ymax, 1e-6});
+  const double span = std::max({xmax - xmin, 2.0 * ymax, 1e-6});
+  v.x_lo = xmin - 0.15 * span;
+  v.x_hi = xmax + 0.15 * span;
+  v.y_lo = -ymax - 0.2 * span;
+  v.y_hi = ymax + 0.2 * span;
+  return v;
+}
+
+std::string report_splane_section(const ReportData& d) {
+  if (d.designs.empty()) return "";
+  const ReportDesign& rd = d.designs.front();
+  const LoopEvaluation& nominal = rd.evaluation.plants.front();
+  const std::string colour = candidate_colour(rd.colour);
+
+  const SplaneView view = splane_view(d);
+  const Plant& plant0 = d.spec.plants.front();
+  const Zpk pade = plant0.delay_s > 0.0 ? pade_delay(plant0.delay_s, d.spec.analysis.pade_order) : Zpk{};
+  double pade_reach = INFINITY;  // as in splane_view
+  for (const Complex& c : pade.poles) pade_reach = std::min(pade_reach, 0.5 * std::abs(c));
   Plot p(640, 480, "s-plane: allowed region, root locus and closed-loop poles");
   p.x.label = "real part \u03c3 (1/s)";
   p.y.label = "imaginary part \u03c9 (rad/s)";
-  p.x.lo = xmin - 0.15 * span;
-  p.x.hi = xmax + 0.15 * span;
-  p.y.lo = -ymax - 0.2 * span;
-  p.y.hi = ymax + 0.2 * span;
+  p.x.lo = view.x_lo;
+  p.x.hi = view.x_hi;
+  p.y.lo = view.y_lo;
+  p.y.hi = view.y_hi;
   p.equal_aspect();
   const double far = 20.0 * std::max({std::abs(p.x.lo), std::abs(p.x.hi), std::abs(p.y.lo), std::abs(p.y.hi)});
 
@@ -170,10 +221,20 @@ std::string report_splane_section(const ReportData& d) {
   Style ol;
   ol.stroke = colour::kOpenLoop;
   ol.width = 1.6;
-  split(L.open_loop_poles, re, im);
-  p.markers(re, im, Marker::Cross, 9, ol, "open-loop poles");
-  split(L.open_loop_zeros, re, im);
-  p.markers(re, im, Marker::Circle, 9, ol, "open-loop zeros");
+  Roots ol_poles, ol_zeros, pade_poles, pade_zeros;
+  for (const Complex& c : L.open_loop_poles) (among(c, pade.poles) ? pade_poles : ol_poles).push_back(c);
+  for (const Complex& c : L.open_loop_zeros) (among(c, pade.zeros) ? pade_zeros : ol_zeros).push_back(c);
+  split(ol_poles, re, im);
+  p.markers(re, im, Marker::Cross, 9, ol, "open-loop poles (plant and compensator)");
+  split(ol_zeros, re, im);
+  p.markers(re, im, Marker::Circle, 9, ol, "open-loop zeros (plant and compensator)");
+  Style pd;
+  pd.stroke = colour::kMuted;
+  pd.width = 1.0;
+  split(pade_poles, re, im);
+  p.markers(re, im, Marker::Cross, 6, pd, "Pade approximant of the dead time: poles (not plant roots)");
+  split(pade_zeros, re, im);
+  p.markers(re, im, Marker::Circle, 6, pd, "Pade approximant of the dead time: zeros (not plant roots)");
 
   // Closed-loop poles: the variants hollow, the nominal (k = 1) filled.
   for (size_t i = 1; i < rd.evaluation.plants.size(); ++i) {
@@ -216,19 +277,37 @@ std::string report_splane_section(const ReportData& d) {
     p.note(dp.real(), std::abs(dp.imag()), "dominant, \u03b6 = " + format_number(damping_of(dp), 2), colour::kInk, 8, -8);
   }
   std::string outside;
-  auto list_outside = [&](const Roots& rs, const char* what) {
+  auto in_view = [&](const Complex& c) { return c.real() >= p.x.lo && c.real() <= p.x.hi && c.imag() >= p.y.lo && c.imag() <= p.y.hi; };
+  auto list_outside = [&](const Roots& rs, const char* what, bool arrow) {
     for (const Complex& c : rs) {
       if (c.imag() < 0.0) continue;
-      if (c.real() >= p.x.lo && c.real() <= p.x.hi && c.imag() <= p.y.hi) continue;
+      if (in_view(c)) continue;
+      if (arrow) edge_arrow(p, c, what, colour::kInk);
       outside += std::string(outside.empty() ? "" : ", ") + what + " " + format_number(c.real(), 4) +
                  (c.imag() > 0.0 ? " \u00b1 " + format_number(c.imag(), 4) + "j" : "");
     }
   };
-  list_outside(L.open_loop_poles, "pole");
-  list_outside(L.open_loop_zeros, "zero");
+  list_outside(ol_poles, "pole", true);
+  list_outside(ol_zeros, "zero", true);
+  {
+    Roots cl_out;
+    for (const PoleInfo& q : nominal.poles.poles)
+      if (!in_view(q.pole) && q.pole.imag() >= 0.0 && q.matters && !(pade_reach <= std::abs(q.pole))) cl_out.push_back(q.pole);
+    for (const Complex& c : cl_out) edge_arrow(p, c, "closed-loop pole", colour);
+  }
   std::string caption = "Branches of 1 + k C(s) G(s) = 0 as the gain scale k grows from 0 (open-loop poles) without limit";
   if (!outside.empty()) caption += "; open-loop roots outside the view: " + outside;
-  if (d.spec.plants.front().delay_s > 0.0) caption += "; the dead time enters as its Pade approximant";
+  if (plant0.delay_s > 0.0) {
+    int n_out = 0;
+    for (const Roots* rs : {&pade_poles, &pade_zeros})
+      for (const Complex& c : *rs) n_out += in_view(c) ? 0 : 1;
+    caption += "; the dead time enters as its order-" + std::to_string(d.spec.analysis.pade_order) +
+               " Pade approximant, whose roots (grey, small) are not plant roots and do not set the view";
+    double pade_max = 0.0;
+    for (const Complex& c : pade.poles) pade_max = std::max(pade_max, std::abs(c));
+    if (n_out > 0)
+      caption += " (" + std::to_string(n_out) + " of them outside it, out to |s| = " + format_number(pade_max, 3) + " rad/s)";
+  }
   caption += ". The region comes from the requirements through the second-order dominant-pole model: it guides, the simulated step and the margins decide.";
   // The nominal closed-loop poles beside the plot.
   std::string t = "<table class=\"pw-table\"><thead><tr><th>closed-loop pole</th><th>damping</th><th>&#969;n (rad/s)</th>"

@@ -54,7 +54,7 @@ std::string requirement_rows(const ReportData& d, const Evaluation& ev) {
 std::string report_summary_section(const ReportData& d) {
   std::string h = "<div class=\"pw-grid2\">\n<div>\n";
   if (d.designs.empty()) {
-    h += "<p class=\"pw-bad\">The result holds no compensator.</p>\n</div><div></div></div>\n";
+    h += "<p class=\"pw-bad\">The result holds no compensator.</p>\n" + report_diagnosis_html(d) + "</div><div></div></div>\n";
     return h;
   }
   const ReportDesign& best = d.designs.front();
@@ -63,16 +63,19 @@ std::string report_summary_section(const ReportData& d) {
                                       : "<span class=\"pw-badge not_met\">not met</span> at least one requirement fails on some plant model.") +
        (ev.all_stable ? "" : " <span class=\"pw-bad\">A closed loop is unstable.</span>") + "</p>\n";
   h += requirement_rows(d, ev);
+  h += report_diagnosis_html(d);
   h += "<p class=\"pw-note\">Margin: distance to the limit in the metric's unit, positive when met; the worst value is taken over "
        "the nominal plant and every variant.</p>\n</div>\n<div>\n";
   const Zpk& c = best.compensator;
   h += "<div class=\"pw-kv\">";
   h += "<span class=\"k\">design</span><span><span class=\"pw-swatch\" style=\"background:" + std::string(candidate_colour(best.colour)) +
        "\"></span>" + xml_escape(best.label) + "</span>";
-  h += "<span class=\"k\">gain</span><span>" + xml_escape(format_number(c.gain, 5)) + "</span>";
+  h += "<span class=\"k\">zero-pole gain</span><span>" + xml_escape(format_number(c.gain, 5)) + "</span>";
+  h += "<span class=\"k\">low-frequency gain</span><span>" + xml_escape(format_number(zpk_low_frequency_gain(c), 5)) +
+       (zpk_integrators(c) != 0 ? " (of s<sup>" + std::to_string(zpk_integrators(c)) + "</sup> C(s))" : std::string()) + "</span>";
   h += "<span class=\"k\">zeros</span><span>" + report::roots_html(c.zeros, 4) + "</span>";
   h += "<span class=\"k\">poles</span><span>" + report::roots_html(c.poles, 4) + "</span>";
-  h += "</div>\n<p style=\"margin:8px 0 3px\">C(s) factored</p><div class=\"pw-tf\">" + report::powers_html(xml_escape(zpk_to_string(c))) + "</div>\n";
+  h += "</div>\n<p class=\"pw-note\">" + report::gain_convention_html() + "</p>\n<p style=\"margin:8px 0 3px\">C(s) factored</p><div class=\"pw-tf\">" + report::powers_html(xml_escape(zpk_to_string(c))) + "</div>\n";
   h += "<p style=\"margin:8px 0 3px\">C(s) as polynomials</p><div class=\"pw-tf\">(" + poly_html(zpk_numerator(c)) + ") / (" +
        poly_html(zpk_denominator(c)) + ")</div>\n";
   const LoopEvaluation& nominal = ev.plants.front();

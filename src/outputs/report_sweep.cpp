@@ -151,6 +151,9 @@ std::string report_sweep_map_section(const ReportData& d) {
   for (Plot* p : {&pc, &pm}) {
     set_axis(p->x, xs, log_x, grid);
     set_axis(p->y, ys, log_y, grid);
+    // Ticks at the swept values (a "50" tick between 10, 20, 40 would suggest a point there).
+    if (xs.size() <= 24) p->x.fixed_ticks = xs;
+    if (ys.size() <= 24) p->y.fixed_ticks = ys;
     p->x.label = "sweep parameter " + px.name + " (units of the sweep file)";
     p->y.label = "sweep parameter " + py.name + " (units of the sweep file)";
   }

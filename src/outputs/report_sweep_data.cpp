@@ -78,6 +78,52 @@ std::string dir_name(const std::string& dir) {
   return p.filename().string();
 }
 
+// The default metric of the map: the base requirement that fails at the most points that missed
+// (limits written as expressions are evaluated at each point; at most kMaxVotes points are asked),
+// ties and a sweep where nothing missed to the first requirement in metric table order.
+MetricId default_map_metric(const SweepReport& r, const nlohmann::json& req) {
+  constexpr long long kMaxVotes = 20000;
+  std::vector<MetricId> ids;
+  for (const MetricInfo& info : metric_table())
+    if (req.contains(info.key)) ids.push_back(info.id);
+  if (ids.empty()) return MetricId::Overshoot;
+  std::vector<long long> fails(ids.size(), 0);
+  long long asked = 0;
+  for (const SweepReportPoint& p : r.points) {
+    if (p.status != "not_met") continue;
+    if (++asked > kMaxVotes) break;
+    std::optional<nlohmann::json> spec;  // the point's own spec, made only when a limit needs it
+    for (size_t i = 0; i < ids.size(); ++i) {
+      const MetricInfo& info = metric_info(ids[i]);
+      const nlohmann::json& rq = req[info.key];
+      if (!rq.is_object()) continue;
+      const std::optional<double>& v = p.metrics[static_cast<size_t>(info.id)];
+      bool failed = false;
+      for (const char* bound : {"max", "min"}) {
+        if (!rq.contains(bound)) continue;
+        double limit = NAN;
+        if (rq[bound].is_number()) limit = rq[bound].get<double>();
+        else {
+          try {
+            if (!spec) spec = point_spec(r.file, p.values, point_seed(r.file.seed, p.index));
+            const nlohmann::json& q = (*spec)["requirements"][info.key][bound];
+            if (q.is_number()) limit = q.get<double>();
+          } catch (const std::exception&) {
+          }
+        }
+        if (!std::isfinite(limit)) continue;
+        const bool at_most = std::string(bound) == "max";
+        failed = failed || !v || (at_most ? *v > limit : *v < limit);
+      }
+      fails[i] += failed ? 1 : 0;
+    }
+  }
+  size_t best = 0;
+  for (size_t i = 1; i < ids.size(); ++i)
+    if (fails[i] > fails[best]) best = i;
+  return ids[best];
+}
+
 }  // namespace
 
 long long SweepReport::count(const std::string& status) const {
@@ -126,18 +172,7 @@ SweepReport read_sweep_report(const std::vector<std::string>& dirs, const SweepR
       }
     }
     if (!found) throw SpecError("--metric", "\"" + o.metric + "\" is not a metric (one of " + keys + ")");
-  } else {
-    for (const MetricInfo& info : metric_table())
-      if (req.contains(info.key)) {
-        r.metric = info.id;
-        break;
-      }
   }
-  const MetricInfo& mi = metric_info(r.metric);
-  const nlohmann::json* rq = req.contains(mi.key) ? &req[mi.key] : nullptr;
-  if (rq && rq->is_object() && rq->contains("min") && !rq->contains("max")) r.worst_is_max = false;
-  else if (rq && rq->is_object() && rq->contains("max")) r.worst_is_max = true;
-  else r.worst_is_max = mi.bounds != BoundKind::MinOnly;
 
   // Points, merged by index.
   std::map<long long, std::pair<std::string, SweepReportPoint>> by_index;
@@ -157,6 +192,12 @@ SweepReport read_sweep_report(const std::vector<std::string>& dirs, const SweepR
     if (scan.torn) r.torn.push_back(d);
   }
   for (auto& kv : by_index) r.points.push_back(std::move(kv.second.second));
+  if (o.metric.empty()) r.metric = default_map_metric(r, req);
+  const MetricInfo& mi = metric_info(r.metric);
+  const nlohmann::json* rq = req.contains(mi.key) ? &req[mi.key] : nullptr;
+  if (rq && rq->is_object() && rq->contains("min") && !rq->contains("max")) r.worst_is_max = false;
+  else if (rq && rq->is_object() && rq->contains("max")) r.worst_is_max = true;
+  else r.worst_is_max = mi.bounds != BoundKind::MinOnly;
   return r;
 }
 

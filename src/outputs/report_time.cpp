@@ -30,8 +30,10 @@ double step_plot_end(const ReportData& d) {
       if (e.step->settling_time_s) settle = std::max(settle, *e.step->settling_time_s);
       if (e.step->rise_time_s) rise = std::max(rise, *e.step->rise_time_s);
     }
+  // About three times the slowest settling time shown (a 1 s response is not drawn over 25 s because
+  // the limit is 25 s); without one, five rise times, else the settling limit, else the horizon.
   const auto ts_lim = d.spec.requirements.limit(MetricId::SettlingTime, Sense::AtMost);
-  double want = std::max({1.3 * settle, 5.0 * rise, ts_lim ? 1.6 * *ts_lim : 0.0});
+  double want = settle > 0.0 ? 3.0 * settle : (rise > 0.0 ? 5.0 * rise : (ts_lim ? 1.6 * *ts_lim : 0.0));
   if (!(want > 0.0)) want = horizon;
   return horizon > 0.0 ? std::min(horizon, want) : 1.0;
 }

@@ -46,6 +46,12 @@ inline std::string roots_html(const Roots& rs, int digits) {
   return s.empty() ? "none" : s;
 }
 
+// The two gain conventions in one sentence (the same wording as the text output's note).
+inline std::string gain_convention_html() {
+  return "Zero-pole gain: k of k &#8719;(s &#8722; z) / &#8719;(s &#8722; p); low-frequency gain: lim s<sup>n</sup> C(s) as "
+         "s &#8594; 0 with n the number of integrators (the Bode gain).";
+}
+
 // "s^2" -> "s<sup>2</sup>" in already escaped text.
 inline std::string powers_html(const std::string& escaped) {
   std::string out;

@@ -19,7 +19,7 @@ std::string value_text(const std::optional<Complex>& v) {
 std::string change_table(const RetuneCandidate& rc) {
   TextTable t({"item", "old", "new", "change", "driven by"});
   for (const ParameterChange& c : rc.changes) {
-    std::string item = c.item == "gain" ? "gain (low-frequency)" : c.item + " " + std::to_string(c.index);
+    std::string item = c.item == "gain" ? "low-frequency gain" : c.item + " " + std::to_string(c.index);
     std::string pct = c.old_value ? fmt_number(c.percent_change) + " %" : "added";
     if (c.old_damping && c.new_damping)
       pct += ", damping " + fmt_number(*c.old_damping) + " -> " + fmt_number(*c.new_damping);
@@ -34,7 +34,8 @@ std::string retune_report_text(const RetuneReport& r) {
   std::string out = "polewright retune" + (r.spec_name.empty() ? std::string() : ": " + r.spec_name) + "\n";
   for (const std::string& w : conditioning_warnings(r.spec_document)) out += "warning " + w + "\n";
   const Candidate& cur = r.current;
-  out += "in service: " + zpk_to_string(cur.compensator) + "  (" + candidate_verdict(cur) + ")\n\n";
+  out += "in service: " + zpk_to_string(cur.compensator) + "  (" + candidate_verdict(cur) + ")\n";
+  out += "            " + gains_text(cur.compensator) + "\n\n";
   if (r.already_met) {
     out += "the current compensator already meets every requirement for every plant: nothing changed.\n";
   } else if (r.candidates.empty()) {
@@ -47,7 +48,8 @@ std::string retune_report_text(const RetuneReport& r) {
            " decades (response " + fmt_number(rc.response_change) + " decades): " +
            candidate_verdict(rc.candidate) + "\n";
     out += change_table(rc);
-    out += "  new compensator: " + zpk_to_string(rc.candidate.compensator) + "\n\n";
+    out += "  new compensator: " + zpk_to_string(rc.candidate.compensator) + "\n";
+    out += "                   " + gains_text(rc.candidate.compensator) + "\n\n";
   }
   // The figures, current first.
   std::vector<MetricId> shown;
@@ -70,7 +72,8 @@ std::string retune_report_text(const RetuneReport& r) {
   for (const RetuneCandidate& rc : r.candidates) row("rank " + std::to_string(rc.candidate.rank), rc.candidate);
   out += t.render();
   out += "\n  metrics are the worst case over the plants; every candidate was re-verified at full accuracy\n";
-  out += "  change: distance in decades of the gain, corners and damping (added stages: RMS magnitude change)\n";
+  out += "  change: distance in decades of the low-frequency gain, corners and damping (added stages: RMS magnitude change)\n";
+  out += "  " + std::string(kGainConvention) + "\n";
   out += "\nsearch: " + std::to_string(r.summary.evaluations) + " evaluations, " + std::to_string(r.summary.local_runs) +
          " local run(s), seed " + std::to_string(r.summary.seed) + "\n";
   out += "\ncaution: " + std::string(kCautions) + "\n";

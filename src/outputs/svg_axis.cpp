@@ -1,5 +1,6 @@
 #include "polewright/outputs/svg_axis.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <limits>
 
@@ -107,6 +108,25 @@ double Axis::unmap(double p) const {
   return lo + f * (hi - lo);
 }
 
-std::vector<Tick> Axis::ticks() const { return log ? log_ticks(lo, hi) : linear_ticks(lo, hi, target_ticks); }
+std::vector<Tick> Axis::ticks() const {
+  if (fixed_ticks.empty()) return log ? log_ticks(lo, hi) : linear_ticks(lo, hi, target_ticks);
+  std::vector<double> v;
+  const double a = std::min(lo, hi), b = std::max(lo, hi), tol = 1e-9 * std::max(std::abs(a), std::abs(b));
+  for (double x : fixed_ticks)
+    if (std::isfinite(x) && x >= a - tol && x <= b + tol && (!log || x > 0.0)) v.push_back(x);
+  std::sort(v.begin(), v.end());
+  v.erase(std::unique(v.begin(), v.end()), v.end());
+  const size_t every = std::max<size_t>(1, (v.size() + 2 * static_cast<size_t>(std::max(1, target_ticks)) - 1) /
+                                               (2 * static_cast<size_t>(std::max(1, target_ticks))));
+  std::vector<Tick> out;
+  for (size_t i = 0; i < v.size(); ++i) {
+    Tick t;
+    t.value = v[i];
+    t.major = i % every == 0;
+    if (t.major) t.label = format_number(v[i], 4);
+    out.push_back(t);
+  }
+  return out;
+}
 
 }  // namespace pw

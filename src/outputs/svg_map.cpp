@@ -160,10 +160,24 @@ void add_category_map(Plot& plot, const std::vector<MapPoint>& points, const std
 void add_metric_map(Plot& plot, const std::vector<MapPoint>& points, double vmin, double vmax, const std::string& metric_label) {
   // Five legend bins over [vmin, vmax]: each point is coloured by its bin's centre, so the legend
   // names every colour on the map.
-  const int bins = 5;
+  // A legend never reads "2 to 2": the bin edges get up to 6 digits until they differ, and when
+  // every value is the same (or too close to tell apart) there is one bin, "= v".
   std::vector<std::string> colour_of, legend_of;
   std::vector<int> key_of;
+  int bins = 5;
+  int digits = 3;
   const double span = vmax > vmin ? vmax - vmin : 1.0;
+  auto edges_differ = [&](int dg) {
+    for (int k = 0; k < bins; ++k)
+      if (format_number(vmin + span * k / bins, dg) == format_number(vmin + span * (k + 1) / bins, dg)) return false;
+    return true;
+  };
+  if (!(vmax > vmin)) bins = 1;
+  else {
+    while (digits < 6 && !edges_differ(digits)) ++digits;
+    if (!edges_differ(digits)) bins = 1;
+  }
+  const bool single = bins == 1;
   for (const MapPoint& p : points) {
     if (!p.value || !std::isfinite(*p.value)) {
       colour_of.push_back(ramp_colour(NAN));
@@ -174,8 +188,13 @@ void add_metric_map(Plot& plot, const std::vector<MapPoint>& points, double vmin
     const int k = std::max(0, std::min(bins - 1, static_cast<int>(std::floor((*p.value - vmin) / span * bins))));
     colour_of.push_back(ramp_colour((k + 0.5) / bins));
     key_of.push_back(k);
-    legend_of.push_back(metric_label + " " + format_number(vmin + span * k / bins, 3) + " to " +
-                        format_number(vmin + span * (k + 1) / bins, 3));
+    if (single) {
+      const std::string lo = format_number(vmin, digits), hi = format_number(vmax, digits);
+      legend_of.push_back(metric_label + (lo == hi ? " = " + lo : " " + lo + " to " + hi));
+    } else {
+      legend_of.push_back(metric_label + " " + format_number(vmin + span * k / bins, digits) + " to " +
+                          format_number(vmin + span * (k + 1) / bins, digits));
+    }
   }
   draw(plot, points, colour_of, legend_of, key_of);
 }

@@ -27,6 +27,21 @@ bool needs_any(const RequirementSet& req, std::initializer_list<MetricId> ids) {
 
 }  // namespace
 
+MetricValue delay_margin_value(const FrequencyMetrics& f) {
+  if (f.gain_crossovers_rad_s.empty()) return infinite();
+  std::optional<double> dm;
+  for (size_t i = 0; i < f.gain_crossovers_rad_s.size() && i < f.phase_margins_deg.size(); ++i) {
+    const double w = f.gain_crossovers_rad_s[i];
+    if (!(w > 0.0) || !std::isfinite(f.phase_margins_deg[i])) continue;
+    // The extra lag w tau that takes this crossover's phase to -180 deg: its margin in [0, 360).
+    double pm = std::fmod(f.phase_margins_deg[i], 360.0);
+    if (pm < 0.0) pm += 360.0;
+    const double tau = pm * M_PI / 180.0 / w;
+    if (!dm || tau < *dm) dm = tau;
+  }
+  return number(dm);
+}
+
 LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const RequirementSet& req, const Region& region,
                              const AnalysisOptions& opt, const EvaluationNeeds& needs) {
   LoopEvaluation e;
@@ -56,7 +71,7 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
   // Frequency response with the exact delay: robustness figures, computed for unstable loops too.
   const bool freq = all || needs.frequency ||
                     needs_any(req, {MetricId::PhaseMargin, MetricId::GainMargin, MetricId::Crossover,
-                                    MetricId::Bandwidth, MetricId::PeakSensitivity});
+                                    MetricId::Bandwidth, MetricId::PeakSensitivity, MetricId::DelayMargin});
   if (freq) {
     e.frequency = frequency_metrics(parts.loop_exact, parts.delay_s, opt.frequency);
     const FrequencyMetrics& f = e.frequency;
@@ -65,6 +80,7 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
     at(MetricId::Crossover) = number(f.crossover_rad_s);
     at(MetricId::Bandwidth) = number(f.bandwidth_rad_s);
     at(MetricId::PeakSensitivity) = number(f.peak_sensitivity);
+    at(MetricId::DelayMargin) = delay_margin_value(f);
   }
   if (!e.stable) return e;
 

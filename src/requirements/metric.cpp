@@ -18,6 +18,7 @@ const std::array<MetricInfo, kMetricCount>& metric_table() {
       {MetricId::DampingRatio, "damping_ratio", "damping ratio", "", BoundKind::MinOnly, false},
       {MetricId::NaturalFrequency, "natural_frequency_rad_s", "dominant natural frequency", "rad/s",
        BoundKind::MinOrMax, false},
+      {MetricId::DelayMargin, "delay_margin_s", "delay margin", "s", BoundKind::MinOnly, false},
   }};
   return table;
 }

@@ -1,5 +1,6 @@
 #include "polewright/requirements/spec_parse.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <map>
 
@@ -35,7 +36,7 @@ const std::vector<std::string>& known_keys(const std::string& kind) {
       {"requirements",
        {"overshoot_pct", "settling_time_s", "rise_time_s", "steady_state_error", "phase_margin_deg", "gain_margin_db",
         "crossover_rad_s", "bandwidth_rad_s", "peak_effort", "peak_sensitivity", "gain_tolerance_pct", "damping_ratio",
-        "natural_frequency_rad_s"}},
+        "natural_frequency_rad_s", "delay_margin_s"}},
       {"stages", {"lead", "lag", "notch", "integrator", "frequency_range_rad_s"}},
       {"search", {"seed", "keep", "objective", "threads", "max_evaluations", "time_limit_s"}},
       {"analysis", {"pade_order", "samples", "horizon_s", "residue_share_pct"}},
@@ -51,6 +52,45 @@ const std::vector<std::string>& known_keys(const std::string& kind) {
 }
 
 namespace {
+
+// Where each key table lives in a spec, for a key written at the wrong level.
+const char* table_place(const std::string& kind) {
+  static const std::map<std::string, const char*> place = {
+      {"spec", "at the top level of the spec"}, {"plant", "in $.plant"},
+      {"requirements", "in $.requirements"},    {"stages", "in $.stages"},
+      {"search", "in $.search"},                {"analysis", "in $.analysis"},
+      {"settling_time_s", "in $.requirements.settling_time_s"},
+      {"steady_state_error", "in $.requirements.steady_state_error"},
+  };
+  auto it = place.find(kind);
+  return it == place.end() ? nullptr : it->second;
+}
+
+// The place of another table that holds `key` ("" for none; min and max are everywhere).
+std::string misplaced_key_hint(const std::string& key, const std::string& kind) {
+  if (key == "min" || key == "max") return "";
+  for (const char* other : {"spec", "plant", "requirements", "stages", "search", "analysis", "settling_time_s",
+                            "steady_state_error"}) {
+    if (kind == other) continue;
+    const std::vector<std::string>& keys = known_keys(other);
+    if (std::find(keys.begin(), keys.end(), key) != keys.end()) return table_place(other);
+  }
+  return "";
+}
+
+// expect_object for a spec table, which also names the level where a misplaced key belongs
+// ("band_pct" written directly under requirements belongs in $.requirements.settling_time_s).
+void expect_known(const json& j, const std::string& path, const std::string& kind) {
+  const std::vector<std::string>& allowed = known_keys(kind);
+  if (j.is_object())
+    for (auto it = j.begin(); it != j.end(); ++it) {
+      if (std::find(allowed.begin(), allowed.end(), it.key()) != allowed.end()) continue;
+      const std::string place = misplaced_key_hint(it.key(), kind);
+      if (!place.empty())
+        throw SpecError(key_path(path, it.key()), "unknown key here (it belongs " + place + ")");
+    }
+  detail::expect_object(j, path, allowed);
+}
 
 // Per-requirement value rules: the open or closed interval a limit must lie in.
 struct LimitRule {
@@ -93,7 +133,7 @@ double read_limit(const json& j, const std::string& path, MetricId id) {
 }
 
 RequirementSet parse_requirements(const json& j, const std::string& path) {
-  detail::expect_object(j, path, known_keys("requirements"));
+  expect_known(j, path, "requirements");
   RequirementSet set;
   for (const MetricInfo& info : metric_table()) {
     const json* r = member(j, info.key);
@@ -102,7 +142,7 @@ RequirementSet parse_requirements(const json& j, const std::string& path) {
     const char* kind = info.bounds == BoundKind::MaxOnly ? "max_only" : (info.bounds == BoundKind::MinOnly ? "min_only" : "min_or_max");
     if (info.id == MetricId::SettlingTime) kind = "settling_time_s";
     if (info.id == MetricId::SteadyStateError) kind = "steady_state_error";
-    detail::expect_object(*r, rp, known_keys(kind));
+    expect_known(*r, rp, kind);
     const json* mn = member(*r, "min");
     const json* mx = member(*r, "max");
     if (!mn && !mx)
@@ -137,7 +177,7 @@ RequirementSet parse_requirements(const json& j, const std::string& path) {
 }
 
 StageSettings parse_stages(const json& j, const std::string& path) {
-  detail::expect_object(j, path, known_keys("stages"));
+  expect_known(j, path, "stages");
   StageSettings s;
   if (const json* v = member(j, "lead")) s.lead = static_cast<int>(read_integer(*v, key_path(path, "lead"), 0, 4));
   if (const json* v = member(j, "lag")) s.lag = static_cast<int>(read_integer(*v, key_path(path, "lag"), 0, 4));
@@ -163,7 +203,7 @@ StageSettings parse_stages(const json& j, const std::string& path) {
 }
 
 SearchSettings parse_search(const json& j, const std::string& path) {
-  detail::expect_object(j, path, known_keys("search"));
+  expect_known(j, path, "search");
   SearchSettings s;
   if (const json* v = member(j, "seed")) s.seed = static_cast<unsigned long long>(read_integer(*v, key_path(path, "seed"), 0, 9007199254740991LL));
   if (const json* v = member(j, "keep")) s.keep = static_cast<int>(read_integer(*v, key_path(path, "keep"), 1, 100));
@@ -186,7 +226,7 @@ SearchSettings parse_search(const json& j, const std::string& path) {
 }
 
 AnalysisOptions parse_analysis(const json& j, const std::string& path) {
-  detail::expect_object(j, path, known_keys("analysis"));
+  expect_known(j, path, "analysis");
   AnalysisOptions a;
   if (const json* v = member(j, "pade_order")) a.pade_order = static_cast<int>(read_integer(*v, key_path(path, "pade_order"), 1, kMaxPadeOrder));
   if (const json* v = member(j, "samples")) a.step.samples = static_cast<int>(read_integer(*v, key_path(path, "samples"), 100, 100000));
@@ -203,7 +243,7 @@ AnalysisOptions parse_analysis(const json& j, const std::string& path) {
 }
 
 std::vector<Plant> parse_plants(const json& j, const std::string& path) {
-  detail::expect_object(j, path, known_keys("plant"));
+  expect_known(j, path, "plant");
   json core = j;
   core.erase("variants");
   std::vector<Plant> plants = {parse_plant_object(core, path, false)};
@@ -227,7 +267,7 @@ std::vector<Plant> parse_plants(const json& j, const std::string& path) {
 }  // namespace
 
 Spec parse_spec(const json& doc) {
-  detail::expect_object(doc, "$", known_keys("spec"));
+  expect_known(doc, "$", "spec");
   Spec s;
   if (const json* v = member(doc, "$schema"))
     if (!v->is_string()) throw SpecError("$.$schema", "must be a string");

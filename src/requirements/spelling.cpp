@@ -1,6 +1,7 @@
 #include "polewright/requirements/spelling.hpp"
 
 #include <algorithm>
+#include <cctype>
 #include <vector>
 
 namespace pw {
@@ -20,14 +21,59 @@ int edit_distance(const std::string& a, const std::string& b) {
   return d[n][m];
 }
 
+std::string key_stem(const std::string& key) {
+  // Longest suffixes first, so "_rad_s" goes before "_s".
+  static const char* const kUnits[] = {"_rad_s", "_pct", "_deg", "_db", "_s"};
+  for (const char* u : kUnits) {
+    const std::string unit(u);
+    if (key.size() > unit.size() + 1 && key.compare(key.size() - unit.size(), unit.size(), unit) == 0)
+      return key.substr(0, key.size() - unit.size());
+  }
+  return key;
+}
+
+namespace {
+
+std::string lower(std::string s) {
+  for (char& c : s) c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
+  return s;
+}
+
+}  // namespace
+
 std::string closest_word(const std::string& word, const std::vector<std::string>& candidates) {
-  const int limit = std::max(2, static_cast<int>(word.size()) / 3);
+  const std::string w = lower(word);
+  const int limit = std::max(2, static_cast<int>(w.size()) / 3);
+  // Rank: a case-only difference, then a key whose unit suffix was left off or misspelt
+  // ("overshoot" for "overshoot_pct"), then plain edit distance over the whole key.
+  // A word that starts exactly one candidate's words ("pade" for "pade_order") counts as its stem.
+  std::string prefixed;
+  int n_prefixed = 0;
+  if (w.size() >= 3)
+    for (const std::string& c : candidates) {
+      const std::string lc = lower(c);
+      if (lc.size() > w.size() + 1 && lc.compare(0, w.size() + 1, w + "_") == 0) {
+        prefixed = c;
+        ++n_prefixed;
+      }
+    }
   std::string best;
-  int best_d = limit + 1;
+  int best_score = 3 * (limit + 1);
   for (const std::string& c : candidates) {
-    const int d = edit_distance(word, c);
-    if (d < best_d) {
-      best_d = d;
+    const std::string lc = lower(c);
+    int score;
+    if (lc == w) score = 0;
+    else if (n_prefixed == 1 && c == prefixed) score = 1;
+    else {
+      const std::string stem = key_stem(lc);
+      const int d_stem = stem != lc ? edit_distance(w, stem) : limit + 1;
+      const int d_full = edit_distance(w, lc);
+      if (d_stem <= limit && d_stem < d_full) score = 1 + 3 * d_stem;
+      else if (d_full <= limit) score = 2 + 3 * d_full;
+      else continue;
+    }
+    if (score < best_score) {
+      best_score = score;
       best = c;
     }
   }

@@ -158,7 +158,15 @@ unsigned long long point_seed(unsigned long long sweep_seed, long long index) {
 }
 
 SweepFile parse_sweep(const json& doc) {
-  detail::expect_object(doc, "$", {"$schema", "name", "base", "parameters", "sample", "job", "seed"});
+  const std::vector<std::string> top = {"$schema", "name", "base", "parameters", "sample", "job", "seed"};
+  if (doc.is_object())  // a spec key written beside base instead of inside it
+    for (auto it = doc.begin(); it != doc.end(); ++it) {
+      const std::vector<std::string>& spec_keys = known_keys("spec");
+      if (std::find(top.begin(), top.end(), it.key()) == top.end() &&
+          std::find(spec_keys.begin(), spec_keys.end(), it.key()) != spec_keys.end())
+        throw SpecError(key_path("$", it.key()), "unknown key here (a spec key: it belongs in $.base)");
+    }
+  detail::expect_object(doc, "$", top);
   SweepFile f;
   f.document = doc;
   const json* base = member(doc, "base");

@@ -52,6 +52,14 @@ spec_case notch-no-range '$.stages.frequency_range_rad_s: is needed' '{ "plant":
 spec_case inverted-bounds '$.requirements.bandwidth_rad_s.min: must be below max' '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": { "bandwidth_rad_s": { "min": 10, "max": 1 } } }'
 spec_case impossible-band '$.requirements.settling_time_s.band_pct' '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": { "settling_time_s": { "max": 1, "band_pct": 150 } } }'
 spec_case did-you-mean '$.plant.denominater: unknown key (did you mean "denominator"?)' '{ "plant": { "numerator": [1], "denominater": [1, 1] }, "requirements": {} }'
+spec_case did-you-mean-unit '$.requirements.overshoot: unknown key (did you mean "overshoot_pct"?)' '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": { "overshoot": { "max": 10 } } }'
+spec_case did-you-mean-band '$.requirements.settling_time_s.band: unknown key (did you mean "band_pct"?)' '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": { "settling_time_s": { "max": 1, "band": 2 } } }'
+spec_case did-you-mean-stages '$.stages.frequency_range: unknown key (did you mean "frequency_range_rad_s"?)' '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": {}, "stages": { "frequency_range": [1, 10] } }'
+spec_case did-you-mean-search '$.search.seeds: unknown key (did you mean "seed"?)' '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": {}, "search": { "seeds": 1 } }'
+spec_case did-you-mean-analysis '$.analysis.pade: unknown key (did you mean "pade_order"?)' '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": {}, "analysis": { "pade": 4 } }'
+spec_case did-you-mean-variant '$.plant.variants[0].delay: unknown key (did you mean "delay_s"?)' '{ "plant": { "gain": 1, "poles": [-1], "variants": [ { "gain": 2, "delay": 0.1 } ] }, "requirements": {} }'
+spec_case misplaced-band '$.requirements.band_pct: unknown key here (it belongs in $.requirements.settling_time_s)' '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": { "band_pct": 2 } }'
+spec_case misplaced-seed '$.seed: unknown key here (it belongs in $.search)' '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": {}, "seed": 3 }'
 spec_case wrong-type-keep '$.search.keep: must be a whole number' '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": {}, "search": { "keep": "five" } }'
 order=$(printf -- '-%s,' $(seq 1 31)); order=${order%,}
 spec_case order-too-high '$.plant.poles: plant order 31 is above the limit of 30' "{ \"plant\": { \"poles\": [$order] }, \"requirements\": {} }"
@@ -95,6 +103,12 @@ sweep_case sweep-base-not-object '$.base: must be a spec object' '{ "base": [1],
 sweep_case sweep-no-parameters '$.parameters: is missing' "{ $base }"
 sweep_case sweep-empty-parameters '$.parameters: must be an object with at least one' "{ $base, \"parameters\": {} }"
 sweep_case sweep-unknown-key '$.sampel: unknown key (did you mean "sample"?)' "{ $base, \"parameters\": { \"k\": { \"values\": [1] }, \"a\": { \"values\": [2] } }, \"sampel\": {} }"
+sweep_case sweep-did-you-mean-param '$.parameters.k.value: unknown key (did you mean "values"?)' "{ $base, \"parameters\": { \"k\": { \"values\": [1], \"value\": [1] }, \"a\": { \"values\": [2] } } }"
+sweep_case sweep-did-you-mean-range '$.parameters.k.counts: unknown key (did you mean "count"?)' "{ $base, \"parameters\": { \"k\": { \"from\": 1, \"to\": 2, \"counts\": 3 }, \"a\": { \"values\": [2] } } }"
+sweep_case sweep-did-you-mean-sample '$.sample.methods: unknown key (did you mean "method"?)' "{ $base, \"parameters\": { \"k\": { \"values\": [1] }, \"a\": { \"values\": [2] } }, \"sample\": { \"methods\": \"grid\" } }"
+sweep_case sweep-did-you-mean-base '$.base.requirements.overshoot: unknown key (did you mean "overshoot_pct"?)' "{ \"base\": { \"plant\": { \"numerator\": [\"k\"], \"denominator\": [1, 1] }, \"requirements\": { \"overshoot\": { \"max\": 5 } } }, \"parameters\": { \"k\": { \"values\": [1] } } }"
+sweep_case sweep-did-you-mean-band '$.base.requirements.settling_time_s.band: unknown key (did you mean "band_pct"?)' "{ \"base\": { \"plant\": { \"numerator\": [\"k\"], \"denominator\": [1, 1] }, \"requirements\": { \"settling_time_s\": { \"max\": 5, \"band\": 2 } } }, \"parameters\": { \"k\": { \"values\": [1] } } }"
+sweep_case sweep-spec-key-beside-base '$.requirements: unknown key here (a spec key: it belongs in $.base)' "{ $base, \"parameters\": { \"k\": { \"values\": [1] }, \"a\": { \"values\": [2] } }, \"requirements\": {} }"
 sweep_case sweep-unknown-name '$.base.plant.denominator[1]: expression "a" uses the unknown name "a"' "{ $base, \"parameters\": { \"k\": { \"values\": [1] } } }"
 sweep_case sweep-bad-expression '$.base.plant.numerator[0]: expression "k*"' "{ \"base\": { \"plant\": { \"numerator\": [\"k*\"], \"denominator\": [1, 1] }, \"requirements\": {} }, \"parameters\": { \"k\": { \"values\": [1] } } }"
 sweep_case sweep-expression-nan '$.base.plant.numerator[0]: expression "sqrt(k)" is not finite' "{ \"base\": { \"plant\": { \"numerator\": [\"sqrt(k)\"], \"denominator\": [1, 1] }, \"requirements\": {} }, \"parameters\": { \"k\": { \"values\": [-1] } } }"

@@ -61,6 +61,12 @@ TEST_CASE("tightening overshoot 15 % -> 8 %: the retune meets it with a smaller 
   // integrator stays put, and something is driven by the overshoot requirement.
   REQUIRE(best.changes.size() == 3);
   CHECK(best.changes[0].item == "gain");
+  // The change list's gain is the low-frequency gain: 0.3 (s + 4) / s has lim s C(s) = 1.2 (closed
+  // form), and the text names it so, beside both gains of each compensator (issue 17).
+  CHECK(best.changes[0].old_value->real() == Approx(1.2).epsilon(1e-12));
+  const std::string text = retune_report_text(r);
+  CHECK(text.find("low-frequency gain  1.2") != std::string::npos);
+  CHECK(text.find("zero-pole gain 0.3, low-frequency gain 1.2") != std::string::npos);
   CHECK(best.changes[2].item == "pole");
   CHECK(best.changes[2].new_value->real() == 0.0);
   bool overshoot_drives = false;

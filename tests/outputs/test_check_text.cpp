@@ -15,6 +15,9 @@ TEST_CASE("check text names every requirement and carries the cautions", "[outpu
   CHECK(t.find("caution:") != std::string::npos);
   CHECK(t.find("verdict:") != std::string::npos);
   CHECK(t.find("root locus") != std::string::npos);
+  // Both gains named: 12 (s + 4)(s^2 + 6 s + 3600) / ((s + 40)(s^2 + 84 s + 3600)) has the
+  // low-frequency gain 12 * 4 / 40 = 1.2 (closed form).
+  CHECK(t.find("gains        zero-pole gain 12, low-frequency gain 1.2 (0 integrator(s))") != std::string::npos);
   CHECK_FALSE(std::regex_search(t, std::regex("\\b(nan|inf)\\b")));
 }
 

@@ -30,6 +30,13 @@ TEST_CASE("design JSON and text carry the documented fields", "[outputs][design_
   CHECK(t.find("rank") != std::string::npos);
   CHECK(t.find("caution:") != std::string::npos);
   CHECK(t.find("evaluations in") != std::string::npos);
+  // Both gain conventions, named, in the table and the JSON (issue 17).
+  CHECK(t.find("zero-pole gain") != std::string::npos);
+  CHECK(t.find("low-freq gain") != std::string::npos);
+  CHECK(t.find("low-frequency gain = lim s^n C(s)") != std::string::npos);
+  const nlohmann::json& comp = c.at("compensator");
+  CHECK(comp.at("low_frequency_gain").get<double>() == Approx(zpk_low_frequency_gain(r.candidates.at(0).compensator)));
+  CHECK(comp.at("integrators").get<int>() == zpk_integrators(r.candidates.at(0).compensator));
   CHECK_FALSE(std::regex_search(t, std::regex("\\b(nan|inf)\\b")));
 }
 

@@ -34,3 +34,26 @@ TEST_CASE("a compensator written as JSON reads back as the same compensator", "[
   CHECK(std::abs(back.evaluate(s) - c.evaluate(s)) < 1e-12 * std::abs(c.evaluate(s)));
   CHECK(std::string(kCautions).find("real plant") != std::string::npos);
 }
+
+TEST_CASE("a compensator carries both gains, named", "[outputs][json_values]") {
+  // 21.78 (s + 0.8149) / s (issue 17's PI): zero-pole gain 21.78; low-frequency gain
+  // lim s C(s) = 21.78 * 0.8149 = 17.748522 (closed form), one integrator.
+  Zpk pi;
+  pi.gain = 21.78;
+  pi.zeros = {Complex(-0.8149, 0)};
+  pi.poles = {Complex(0, 0)};
+  const nlohmann::json j = json_compensator(pi);
+  CHECK(j.at("gain") == 21.78);
+  CHECK(j.at("low_frequency_gain").get<double>() == Approx(17.748522).epsilon(1e-12));
+  CHECK(j.at("integrators") == 1);
+  CHECK(gains_text(pi) == "zero-pole gain 21.78, low-frequency gain 17.75");
+  // A lead 4.68 (s + 2.9) / (s + 5.4): DC gain 4.68 * 2.9 / 5.4 = 2.5133 (closed form), no integrator.
+  Zpk lead;
+  lead.gain = 4.68;
+  lead.zeros = {Complex(-2.9, 0)};
+  lead.poles = {Complex(-5.4, 0)};
+  CHECK(json_compensator(lead).at("low_frequency_gain").get<double>() == Approx(4.68 * 2.9 / 5.4).epsilon(1e-12));
+  CHECK(json_compensator(lead).at("integrators") == 0);
+  CHECK(std::string(kGainConvention).find("zero-pole gain = k of") != std::string::npos);
+  CHECK(std::string(kGainConvention).find("low-frequency gain = lim s^n C(s)") != std::string::npos);
+}

@@ -8,6 +8,8 @@
 #include "polewright/outputs/json_values.hpp"
 #include "polewright/outputs/report.hpp"
 #include "polewright/requirements/spec_parse.hpp"
+#include "outputs/report_util.hpp"
+#include "polewright/model/pade.hpp"
 #include "report_test_helpers.hpp"
 
 using namespace pw;
@@ -43,7 +45,7 @@ ResultInput design_result() {
 TEST_CASE("check report: one svg per plot, all drawn, no nan, cautions present", "[outputs][report]") {
   const ResultInput r = check_result("wafer-stage.json");
   const std::string html = report_html(r);
-  check_page(html, 6);  // s-plane, y, u, |L|, phase, |S| |T|
+  check_page(html, 8);  // s-plane, y, u, |L|, phase, |S| |T|, Nyquist, delay margin
   for (const char* id : {"id=\"summary\"", "id=\"s-plane\"", "id=\"time\"", "id=\"frequency\"", "id=\"cautions\""})
     CHECK(html.find(id) != std::string::npos);
   CHECK(html.find("id=\"candidates\"") == std::string::npos);
@@ -53,8 +55,8 @@ TEST_CASE("check report: one svg per plot, all drawn, no nan, cautions present",
 }
 
 TEST_CASE("reports of the other demo specs render too (dead time, unstable plant)", "[outputs][report]") {
-  check_page(report_html(check_result("greenhouse-heater.json")), 6);
-  check_page(report_html(check_result("magnetic-bearing.json")), 6);
+  check_page(report_html(check_result("greenhouse-heater.json")), 8);
+  check_page(report_html(check_result("magnetic-bearing.json")), 8);
 }
 
 TEST_CASE("an unstable loop still gets its s-plane and frequency plots, and no step", "[outputs][report]") {
@@ -67,8 +69,9 @@ TEST_CASE("an unstable loop still gets its s-plane and frequency plots, and no s
   const ReportData d = prepare_report(parse_result(check_report_json(run_check(spec, *spec.current))));
   REQUIRE_FALSE(d.designs.front().evaluation.all_stable);
   const std::string html = report_html(d);
-  check_page(html, 4);
+  check_page(html, 5);  // s-plane, |L|, phase, |S| |T|, Nyquist (no delay margin figure)
   CHECK(html.find("No step response") != std::string::npos);
+  CHECK(html.find("unstable: no delay margin") != std::string::npos);
   CHECK(html.find("A closed loop is unstable") != std::string::npos);
 }
 
@@ -79,7 +82,7 @@ TEST_CASE("design report adds the ranked candidates with their overlaid steps", 
   CHECK(d.designs[0].label == "rank 1: lead + notch");
   CHECK(d.designs[1].colour == 1);
   const std::string html = report_html(d);
-  check_page(html, 7);
+  check_page(html, 9);
   CHECK(html.find("id=\"candidates\"") != std::string::npos);
   CHECK(html.find("rank 2: lead + notch") != std::string::npos);
 }
@@ -109,10 +112,10 @@ TEST_CASE("prepare_report refuses results it cannot report, naming the field", "
   }
 }
 
-TEST_CASE("report_sections: check has four sections, design adds the candidates", "[outputs][report]") {
-  CHECK(report_sections("check").size() == 4);
+TEST_CASE("report_sections: check has five sections, design adds the candidates", "[outputs][report]") {
+  CHECK(report_sections("check").size() == 5);
   const auto s = report_sections("design");
-  REQUIRE(s.size() == 5);
+  REQUIRE(s.size() == 6);
   CHECK(s.back().id == "candidates");
   CHECK(s.front().id == "summary");
 }
@@ -128,4 +131,120 @@ TEST_CASE("section builders each give a fragment with their plots", "[outputs][r
   empty.designs.clear();
   CHECK(report_splane_section(empty).empty());
   CHECK(report_summary_section(empty).find("no compensator") != std::string::npos);
+}
+
+TEST_CASE("Nyquist section: the curve, unit circle, |S| circle and critical point; the delay margin figure",
+          "[outputs][report][nyquist]") {
+  const ReportData d = prepare_report(check_result("magnetic-bearing.json"));  // has a peak |S| limit and a dead time
+  const std::string h = report_nyquist_section(d);
+  const std::vector<std::string> svgs = outer_svgs(h);
+  REQUIRE(svgs.size() == 2);
+  for (const std::string& s : svgs) CHECK(pw_test_report::has_drawn_data(s));
+  for (const char* what : {"unit circle", "critical point", "|S| limit circle: |1 + L| = 1/1.5", "delay margin (worst plant)"})
+    CHECK(h.find(what) != std::string::npos);
+  // The figure marks the worst plant's delay margin (as evaluate_loop computes it; its closed form is
+  // tested in test_evaluate.cpp).
+  double worst = INFINITY;
+  for (const LoopEvaluation& e : d.designs.front().evaluation.plants)
+    worst = std::min(worst, *delay_margin_value(e.frequency).value);
+  CHECK(h.find("delay margin " + format_number(worst, 3) + " s") != std::string::npos);
+  // The margins table of the frequency section lists it too.
+  CHECK(report_frequency_section(d).find("<th>delay margin</th>") != std::string::npos);
+}
+
+TEST_CASE("delay_margin_s flows into the report: the required minimum is drawn", "[outputs][report][nyquist]") {
+  nlohmann::json doc = demo("wafer-stage.json").document;
+  doc["requirements"]["delay_margin_s"] = {{"min", 0.004}};
+  const Spec spec = parse_spec(doc);
+  const CheckReport cr = run_check(spec, *spec.current);
+  const nlohmann::json j = check_report_json(cr);
+  bool listed = false;
+  for (const nlohmann::json& row : j["requirements"]) listed = listed || row["requirement"] == "delay_margin_s";
+  CHECK(listed);
+  CHECK(check_report_text(cr).find("delay_margin_s") != std::string::npos);
+  const ReportData d = prepare_report(parse_result(j));
+  CHECK(report_nyquist_section(d).find("required \u2265 0.004 s") != std::string::npos);
+  CHECK(report_summary_section(d).find("delay margin") != std::string::npos);
+}
+
+TEST_CASE("a loop without a gain crossover has an unbounded delay margin and no figure for it", "[outputs][report][nyquist]") {
+  const Spec spec = parse_spec(nlohmann::json::parse(R"({ "plant": { "gain": 1, "poles": [-1] },
+      "requirements": { "delay_margin_s": { "min": 1 } }, "current": { "gain": 0.5 } })"));
+  const ReportData d = prepare_report(parse_result(check_report_json(run_check(spec, *spec.current))));
+  const std::string h = report_nyquist_section(d);
+  CHECK(outer_svgs(h).size() == 1);
+  CHECK(h.find("unbounded delay margin") != std::string::npos);
+}
+
+TEST_CASE("step plots span about three times the slowest settling time shown", "[outputs][report]") {
+  // A 1 s response against a 25 s settling limit: the plot ends near 3 s, not at 1.6 x 25 s.
+  const Spec spec = parse_spec(nlohmann::json::parse(R"({ "plant": { "gain": 1, "poles": [-1] },
+      "requirements": { "settling_time_s": { "max": 25 } }, "current": { "gain": 3 } })"));
+  const ReportData d = prepare_report(parse_result(check_report_json(run_check(spec, *spec.current))));
+  const auto& st = d.designs.front().evaluation.plants.front().step;
+  REQUIRE(st);
+  REQUIRE(st->settling_time_s);
+  // Closed form: 3 / (s + 4) settles into 2 % at ln(50) / 4 = 0.978 s.
+  CHECK(*st->settling_time_s == Approx(std::log(50.0) / 4.0).epsilon(1e-3));
+  CHECK(report::step_plot_end(d) == Approx(3.0 * *st->settling_time_s).epsilon(1e-9));
+}
+
+TEST_CASE("s-plane view: a dead time's Pade roots neither set the view nor pass for plant roots", "[outputs][report]") {
+  // Slow dominant poles (~1 rad/s) and a 5 ms dead time, whose order-6 Pade roots reach ~2000 rad/s.
+  const Spec spec = parse_spec(nlohmann::json::parse(R"({ "plant": { "gain": 2, "poles": [-0.5, -3], "delay_s": 0.005 },
+      "requirements": { "overshoot_pct": { "max": 20 } }, "current": { "gain": 1, "zeros": [-0.8], "poles": [0] } })"));
+  const ReportData d = prepare_report(parse_result(check_report_json(run_check(spec, *spec.current))));
+  double pade_min = INFINITY;
+  for (const Complex& c : pade_delay(0.005, spec.analysis.pade_order).poles) pade_min = std::min(pade_min, std::abs(c));
+  REQUIRE(pade_min > 500.0);  // from the Pade coefficients: the smallest root is ~ 2.6 n / T... well beyond the loop
+  const SplaneView v = splane_view(d);
+  CHECK(v.x_lo > -20.0);  // plant poles at -0.5, -3 and the closed-loop poles near them set the view
+  CHECK(v.y_hi < 20.0);
+  const std::string h = report_splane_section(d);
+  CHECK(h.find("Pade approximant of the dead time: poles (not plant roots)") != std::string::npos);
+  CHECK(h.find("do not set the view") != std::string::npos);
+}
+
+TEST_CASE("a design that meets nothing carries the diagnosis of the text output", "[outputs][report]") {
+  nlohmann::json doc;
+  const Spec spec = demo("wafer-stage.json");
+  nlohmann::json sd = spec.document;
+  sd["requirements"]["settling_time_s"] = {{"max", 0.001}, {"band_pct", 2}};  // out of reach
+  doc["tool"] = {{"name", "polewright"}, {"job", "design"}};
+  doc["status"] = "not_met";
+  doc["spec"] = sd;
+  doc["candidates"] = {{{"compensator", json_zpk(*spec.current)}, {"structure", {"lead", "notch"}}}};
+  doc["binding"] = {{{"requirement", "settling_time_s"}, {"bound", "max"}, {"limit", 0.001}, {"best_value_when_relaxed", 0.21},
+                     {"relaxing_it_meets_the_rest", true}}};
+  doc["limits"] = {{{"kind", "resonance"}, {"plant", "nominal"}, {"binding", true}, {"message", "a lightly damped mode at 60 rad/s caps crossover"}},
+                   {{"kind", "delay"}, {"plant", "nominal"}, {"binding", false}, {"message", "not binding here"}}};
+  const ReportData d = prepare_report(parse_result(doc));
+  REQUIRE_FALSE(d.met());
+  const std::string h = report_summary_section(d);
+  CHECK(h.find("Nothing meets every requirement.") != std::string::npos);
+  CHECK(h.find("settling time (limit &#8804; 0.001 s): best reachable with it relaxed 0.21 s, and then everything else is met") !=
+        std::string::npos);
+  CHECK(h.find("a lightly damped mode at 60 rad/s caps crossover") != std::string::npos);
+  CHECK(h.find("<span class=\"pw-bad\">binding</span> nominal") != std::string::npos);
+  size_t n = 0;
+  for (size_t at = h.find("class=\"pw-limit\""); at != std::string::npos; at = h.find("class=\"pw-limit\"", at + 1)) ++n;
+  CHECK(n == 2);
+  // A check report never carries it.
+  CHECK(report_diagnosis_html(prepare_report(check_result("wafer-stage.json"))).empty());
+}
+
+TEST_CASE("the diagnosis of a binding requirement with no value reached says n/a without a unit", "[outputs][report]") {
+  const Spec spec = demo("wafer-stage.json");
+  nlohmann::json doc;
+  nlohmann::json sd = spec.document;
+  sd["requirements"]["settling_time_s"] = {{"max", 0.001}, {"band_pct", 2}};
+  doc["tool"] = {{"name", "polewright"}, {"job", "design"}};
+  doc["spec"] = sd;
+  doc["candidates"] = {{{"compensator", json_zpk(*spec.current)}, {"structure", {"lead", "notch"}}}};
+  doc["binding"] = {{{"requirement", "settling_time_s"}, {"bound", "max"}, {"limit", 0.001}, {"best_value_when_relaxed", nullptr},
+                     {"relaxing_it_meets_the_rest", false}}};
+  doc["limits"] = nlohmann::json::array();
+  const std::string h = report_diagnosis_html(prepare_report(parse_result(doc)));
+  CHECK(h.find("best reachable with it relaxed n/a</li>") != std::string::npos);
+  CHECK(h.find("n/a s") == std::string::npos);
 }

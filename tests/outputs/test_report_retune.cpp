@@ -55,7 +55,7 @@ TEST_CASE("retune report: old design kept apart, new design drawn over it", "[ou
   CHECK(d.designs[0].compensator.gain == Approx(1.2 * wafer().current->gain));
   CHECK(d.designs[0].label == "new: current");
   const std::string html = report_html(d);
-  check_page(html, 6);  // s-plane, y, u, |L|, phase, |S| |T|
+  check_page(html, 8);  // s-plane, y, u, |L|, phase, |S| |T|, Nyquist, delay margin
   // The changes section comes right after the verdict.
   const size_t summary = html.find("id=\"summary\""), changes = html.find("id=\"changes\""), splane = html.find("id=\"s-plane\"");
   REQUIRE(changes != std::string::npos);
@@ -106,7 +106,7 @@ TEST_CASE("an unchanged retune says so and shows the design in service only", "[
   REQUIRE(d.designs.size() == 1);
   CHECK(d.designs[0].label == "in service (unchanged)");
   const std::string html = report_html(d);
-  check_page(html, 6);
+  check_page(html, 8);
   CHECK(html.find("the retune changed nothing") != std::string::npos);
   CHECK(html.find("old design") == std::string::npos);
 }
@@ -124,7 +124,7 @@ TEST_CASE("a retune result without its current compensator is refused, naming th
 
 TEST_CASE("report_sections: retune puts the changes second and the candidates last", "[outputs][report][retune]") {
   const auto s = report_sections("retune");
-  REQUIRE(s.size() == 6);
+  REQUIRE(s.size() == 7);
   CHECK(s[0].id == "summary");
   CHECK(s[1].id == "changes");
   CHECK(s.back().id == "candidates");

@@ -3,6 +3,7 @@
 #include <cmath>
 #include <filesystem>
 #include <fstream>
+#include <regex>
 
 #include "polewright/jobs/sweep.hpp"
 #include "polewright/outputs/report_sweep.hpp"
@@ -60,8 +61,7 @@ TEST_CASE("sweep report: both maps drawn, one cell per grid position, table and 
   CHECK(r.points.size() == 24);
   CHECK(r.file.parameters[static_cast<size_t>(r.x)].name == "a");  // the defaults: first two varying
   CHECK(r.file.parameters[static_cast<size_t>(r.y)].name == "g");
-  CHECK(r.metric == MetricId::Overshoot);  // the first requirement in metric-table order
-  CHECK(r.worst_is_max);
+  // r.metric: the requirement failing at the most points (checked against the closed form below).
   const std::vector<SweepCell> cells = sweep_cells(r);
   REQUIRE(cells.size() == 12);
   for (const SweepCell& c : cells) CHECK(c.points == 2);
@@ -237,4 +237,48 @@ TEST_CASE("sweep table is cut at kSweepTableRows with a note", "[outputs][report
   for (size_t p = t.find("<tr class=\"pw-point\">"); p != std::string::npos; p = t.find("<tr class=\"pw-point\">", p + 1)) ++rows;
   CHECK(rows == kSweepTableRows);
   CHECK(t.find("first 500 of 507 points") != std::string::npos);
+}
+
+TEST_CASE("sweep map defaults to the failing requirement, ticks at the swept values, legends that differ",
+          "[outputs][report][sweep]") {
+  // Closed form as above: PM = 90 - atan(wc / a) with wc sqrt(wc^2 + a^2) = g, overshoot
+  // exp(-pi z / sqrt(1 - z^2)), z = a / (2 sqrt g). Count, over the points that miss, how often each
+  // requirement fails; the map must show the one failing most (ties: overshoot, first in table order).
+  for (const char* pms : {"[40, 60]", "[60, 75]"}) {  // kSweep's limits (a tie), then stricter ones
+    std::string text = kSweep;
+    text.replace(text.find("[40, 60]"), 8, pms);
+    const std::string dir = run_sweep_into(text, "default-metric");
+    const ReportData d = prepare_sweep_report({dir});
+    const SweepReport& r = *d.sweep;
+    int os_fails = 0, pm_fails = 0;
+    for (const SweepReportPoint& p : r.points) {
+      const double a = p.values[0], g = p.values[1], pm_min = p.values[2];
+      double lo = 0.0, hi = std::sqrt(g) + g;
+      for (int i = 0; i < 200; ++i) {
+        const double m = 0.5 * (lo + hi);
+        (m * std::sqrt(m * m + a * a) > g ? hi : lo) = m;
+      }
+      const double pm = 90.0 - std::atan(lo / a) * 180.0 / 3.14159265358979323846;
+      const double z = a / (2.0 * std::sqrt(g));
+      const double os = z < 1.0 ? 100.0 * std::exp(-3.14159265358979323846 * z / std::sqrt(1.0 - z * z)) : 0.0;
+      os_fails += os > 25.0;
+      pm_fails += pm < pm_min;
+    }
+    INFO("phase-margin limits " << pms << ": overshoot fails at " << os_fails << ", phase margin at " << pm_fails);
+    CHECK(r.metric == (pm_fails > os_fails ? MetricId::PhaseMargin : MetricId::Overshoot));
+    CHECK(r.worst_is_max == (r.metric == MetricId::Overshoot));
+    if (std::string(pms) == "[60, 75]") CHECK(pm_fails > os_fails);  // this case decides for the phase margin
+    std::filesystem::remove_all(dir);
+  }
+  const std::string dir = run_sweep_into(kSweep, "ticks");
+  const ReportData d = prepare_sweep_report({dir});
+  // Ticks sit at the swept values: a = 1, 2, 4, 8 and g = 0.5, 2, 8 are labelled; 5 or 10 are not.
+  const std::vector<std::string> maps = outer_svgs(report_sweep_map_section(d));
+  REQUIRE(maps.size() == 2);
+  for (const char* v : {">1<", ">2<", ">4<", ">8<", ">0.5<"}) CHECK(maps[0].find(v) != std::string::npos);
+  for (const char* v : {">5<", ">10<", ">6<"}) CHECK(maps[0].find(v) == std::string::npos);
+  // No legend entry reads "x to x".
+  const std::regex same(">[^<]* ([-0-9.e]+) to \\1<");
+  CHECK_FALSE(std::regex_search(maps[1], same));
+  std::filesystem::remove_all(dir);
 }

@@ -117,3 +117,26 @@ TEST_CASE("Axis maps data to pixels linearly or in log10, and back", "[outputs][
   CHECK(std::isnan(a.map(NAN)));
   CHECK(l.ticks().size() == 4 + 24);  // 1, 10, 100, 1000 and 2..9, 20..90, 200..900
 }
+
+TEST_CASE("fixed ticks: exactly the given values inside the range, labelled", "[outputs][svg]") {
+  Axis a;
+  a.lo = 5.0;
+  a.hi = 50.0;
+  a.log = true;
+  a.fixed_ticks = {40.0, 10.0, 20.0, 80.0};  // 80 is outside
+  const std::vector<Tick> t = a.ticks();
+  REQUIRE(t.size() == 3);
+  CHECK(t[0].value == 10.0);
+  CHECK(t[0].label == "10");
+  CHECK(t[2].label == "40");
+  for (const Tick& k : t) CHECK(k.major);
+  // Many values: every k-th labelled (at most about 2 x target_ticks labels).
+  Axis b;
+  b.lo = 0.0;
+  b.hi = 100.0;
+  for (int i = 0; i <= 100; ++i) b.fixed_ticks.push_back(i);
+  int labelled = 0;
+  for (const Tick& k : b.ticks()) labelled += !k.label.empty();
+  CHECK(labelled <= 2 * b.target_ticks + 1);
+  CHECK(labelled >= b.target_ticks);
+}

@@ -131,3 +131,30 @@ TEST_CASE("category and metric maps draw cells per colour and the boundary", "[o
   CHECK(rs.find("pw-markers") != std::string::npos);
   CHECK(rs.find("boundary") == std::string::npos);
 }
+
+TEST_CASE("a metric legend never reads \"2 to 2\"", "[outputs][svg]") {
+  // Every value the same: one entry, "= 2".
+  std::vector<MapPoint> pts = grid3x2();
+  for (MapPoint& m : pts) m.value = 2.0;
+  Plot p(400, 300, "metric");
+  p.x.lo = -0.5;
+  p.x.hi = 4.0;
+  p.y.lo = 5.0;
+  p.y.hi = 25.0;
+  add_metric_map(p, pts, 2.0, 2.0, "peak");
+  const std::string s = p.svg();
+  CHECK(s.find("peak = 2<") != std::string::npos);
+  CHECK(s.find(" to ") == std::string::npos);
+  // Values 2.0001 .. 2.0006: bin edges get the digits to differ ("2.0001 to 2.0002", not "2 to 2").
+  for (size_t i = 0; i < pts.size(); ++i) pts[i].value = 2.0001 + 1e-4 * static_cast<double>(i);
+  Plot q(400, 300, "metric");
+  q.x.lo = -0.5;
+  q.x.hi = 4.0;
+  q.y.lo = 5.0;
+  q.y.hi = 25.0;
+  add_metric_map(q, pts, 2.0001, 2.0006, "peak");
+  const std::string qs = q.svg();
+  const std::regex same(">[^<]* ([-0-9.e]+) to \\1<");
+  CHECK_FALSE(std::regex_search(qs, same));
+  CHECK(qs.find("peak 2.0001 to 2.0002") != std::string::npos);
+}

@@ -75,3 +75,58 @@ TEST_CASE("screening needs compute only what the requirements use", "[requiremen
   CHECK_FALSE(e.step);
   CHECK(e.values[static_cast<size_t>(MetricId::PhaseMargin)].value);
 }
+
+TEST_CASE("delay margin of K / (s (s + a)) against its closed form", "[requirements][evaluate][delay_margin]") {
+  // Closed form: |L(jw)| = 1 at w_c^2 = (sqrt(a^4 + 4 K^2) - a^2) / 2, PM = atan(a / w_c), so the
+  // delay margin is atan(a / w_c) / w_c seconds.
+  RequirementSet req;
+  req.items = {{MetricId::DelayMargin, Sense::AtLeast, 0.1}};
+  const Region region = region_from_requirements(req);
+  Zpk unity;
+  unity.gain = 1.0;
+  for (double k : {1.0, 4.0, 25.0, 400.0})
+    for (double a : {0.5, 2.0, 10.0}) {
+      const double wc = std::sqrt(0.5 * (std::sqrt(a * a * a * a + 4.0 * k * k) - a * a));
+      const double want = std::atan(a / wc) / wc;
+      Plant g;
+      g.tf.gain = k;
+      g.tf.poles = {Complex(0, 0), Complex(-a, 0)};
+      const LoopEvaluation e = evaluate_loop(unity, g, req, region, AnalysisOptions{});
+      const MetricValue& dm = e.values[static_cast<size_t>(MetricId::DelayMargin)];
+      REQUIRE(dm.value);
+      CHECK(*dm.value == Approx(want).epsilon(1e-7));
+      // The loop with that much dead time added sits on the edge: phase margin 0 (closed form).
+      g.delay_s = want;
+      const LoopEvaluation edge = evaluate_loop(unity, g, req, region, AnalysisOptions{});
+      REQUIRE(edge.frequency.phase_margin_deg);
+      CHECK(std::abs(*edge.frequency.phase_margin_deg) < 1e-5);
+      // Its delay margin is then 0, or a whole turn 2 pi / w_c when the rounding left the phase a
+      // hair below -180 deg (the margin is taken in [0, 2 pi)).
+      const double left = edge.values[static_cast<size_t>(MetricId::DelayMargin)].value.value();
+      CHECK(std::min(left, std::abs(left - 2.0 * M_PI / wc)) < 1e-6 * want);
+    }
+}
+
+TEST_CASE("delay margin: the smallest over the crossovers; unbounded without one", "[requirements][evaluate][delay_margin]") {
+  // Hand-built figures (the definition): crossovers at 1 and 10 rad/s with margins 60 and 30 deg
+  // give (pi/3) / 1 and (pi/6) / 10; a negative margin counts from the next -180 deg line.
+  FrequencyMetrics f;
+  f.gain_crossovers_rad_s = {1.0, 10.0};
+  f.phase_margins_deg = {60.0, 30.0};
+  CHECK(delay_margin_value(f).value.value() == Approx(M_PI / 60.0));
+  f.phase_margins_deg = {60.0, -30.0};  // needs 330 deg more lag at 10 rad/s
+  CHECK(delay_margin_value(f).value.value() == Approx(std::min(M_PI / 3.0, 330.0 * M_PI / 180.0 / 10.0)));
+  FrequencyMetrics none;
+  CHECK(delay_margin_value(none).infinite);
+  // A gain below 1 everywhere: no crossover, an unbounded delay margin that meets any minimum.
+  RequirementSet req;
+  req.items = {{MetricId::DelayMargin, Sense::AtLeast, 5.0}};
+  Zpk small;
+  small.gain = 0.5;
+  Plant g;
+  g.tf.gain = 1.0;
+  g.tf.poles = {Complex(-1, 0)};
+  const Evaluation ev = evaluate_all(small, {g}, req, region_from_requirements(req), AnalysisOptions{});
+  CHECK(ev.plants[0].values[static_cast<size_t>(MetricId::DelayMargin)].infinite);
+  CHECK(ev.all_met);
+}

@@ -60,6 +60,30 @@ TEST_CASE("a full spec parses with every block", "[requirements][spec_parse]") {
 TEST_CASE("bad specs: one line naming the field", "[requirements][spec_parse]") {
   CHECK(error_after([](json& j) { j["requirments"] = j["requirements"]; }).find("$.requirments: unknown key (did you mean \"requirements\"?)") == 0);
   CHECK(error_after([](json& j) { j.erase("plant"); }).find("$.plant: is missing") == 0);
+  // "Did you mean" at every level (issue 17: keys written without their unit).
+  CHECK(error_after([](json& j) { j["requirements"]["overshoot"] = {{"max", 5}}; }) ==
+        "$.requirements.overshoot: unknown key (did you mean \"overshoot_pct\"?)");
+  CHECK(error_after([](json& j) { j["requirements"]["settling_time_s"]["band"] = 2; }) ==
+        "$.requirements.settling_time_s.band: unknown key (did you mean \"band_pct\"?)");
+  CHECK(error_after([](json& j) { j["requirements"]["steady_state_error"]["inputs"] = "ramp"; }) ==
+        "$.requirements.steady_state_error.inputs: unknown key (did you mean \"input\"?)");
+  CHECK(error_after([](json& j) { j["plant"]["delay"] = 0.1; }) == "$.plant.delay: unknown key (did you mean \"delay_s\"?)");
+  CHECK(error_after([](json& j) { j["plant"]["variants"][0]["delay"] = 0.1; }) ==
+        "$.plant.variants[0].delay: unknown key (did you mean \"delay_s\"?)");
+  CHECK(error_after([](json& j) { j["stages"]["frequency_range"] = {1, 2}; }) ==
+        "$.stages.frequency_range: unknown key (did you mean \"frequency_range_rad_s\"?)");
+  CHECK(error_after([](json& j) { j["search"]["seeds"] = 1; }) == "$.search.seeds: unknown key (did you mean \"seed\"?)");
+  CHECK(error_after([](json& j) { j["analysis"]["horizon"] = 1; }) ==
+        "$.analysis.horizon: unknown key (did you mean \"horizon_s\"?)");
+  CHECK(error_after([](json& j) { j["current"]["pole"] = {-1}; }) == "$.current.pole: unknown key (did you mean \"poles\"?)");
+  // A key of another level names where it belongs.
+  CHECK(error_after([](json& j) { j["requirements"]["band_pct"] = 2; }) ==
+        "$.requirements.band_pct: unknown key here (it belongs in $.requirements.settling_time_s)");
+  CHECK(error_after([](json& j) { j["seed"] = 2; }) == "$.seed: unknown key here (it belongs in $.search)");
+  CHECK(error_after([](json& j) { j["overshoot_pct"] = {{"max", 5}}; }) ==
+        "$.overshoot_pct: unknown key here (it belongs in $.requirements)");
+  CHECK(error_after([](json& j) { j["requirements"]["overshoot_pct"]["band_pct"] = 2; }) ==
+        "$.requirements.overshoot_pct.band_pct: unknown key here (it belongs in $.requirements.settling_time_s)");
   CHECK(error_after([](json& j) { j["requirements"]["overshoot_pct"]["max"] = -3; }).find("$.requirements.overshoot_pct.max: must be > 0") == 0);
   CHECK(error_after([](json& j) { j["requirements"]["overshoot_pct"] = json::object(); }).find("needs a \"max\"") != std::string::npos);
   CHECK(error_after([](json& j) { j["requirements"]["natural_frequency_rad_s"]["min"] = 3000; }).find("must be below max") != std::string::npos);

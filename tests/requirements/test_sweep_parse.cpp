@@ -102,6 +102,18 @@ TEST_CASE("bad sweep files: one line naming the field", "[requirements][sweep_pa
   CHECK_THAT(error_after([](json& j) { j["job"] = "check"; }), StartsWith("$.base.current: is missing"));
   CHECK_THAT(error_after([](json& j) { j["parameterz"] = 1; }), StartsWith("$.parameterz: unknown key (did you mean"));
   CHECK_THAT(error_after([](json& j) { j.erase("base"); }), StartsWith("$.base: is missing"));
+  // "Did you mean" at every level of the sweep file, and spec keys beside base (issue 17).
+  CHECK(error_after([](json& j) { j["samples"] = {{"method", "grid"}}; }) == "$.samples: unknown key (did you mean \"sample\"?)");
+  CHECK(error_after([](json& j) { j["sample"] = {{"methods", "grid"}}; }) ==
+        "$.sample.methods: unknown key (did you mean \"method\"?)");
+  CHECK(error_after([](json& j) { j["parameters"]["k"] = {{"value", {1}}, {"values", {1}}}; }) ==
+        "$.parameters.k.value: unknown key (did you mean \"values\"?)");
+  CHECK(error_after([](json& j) { j["parameters"]["os"]["scales"] = "log"; }) ==
+        "$.parameters.os.scales: unknown key (did you mean \"scale\"?)");
+  CHECK(error_after([](json& j) { j["requirements"] = json::object(); }) ==
+        "$.requirements: unknown key here (a spec key: it belongs in $.base)");
+  CHECK_THAT(error_after([](json& j) { j["base"]["requirements"]["overshoot"] = {{"max", 5}}; }),
+             StartsWith("$.base.requirements.overshoot: unknown key (did you mean \"overshoot_pct\"?)"));
   CHECK_THAT(error_after([](json& j) { j["base"]["plant"]["denominatr"] = {1, 2}; }), StartsWith("$.base.plant.denominatr: unknown key"));
   CHECK_THAT(error_after([](json& j) { j["base"]["plant"]["denominator"][0] = "J - 0.1"; }),
              Catch::Contains("(at the first point)"));

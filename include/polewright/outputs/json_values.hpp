@@ -19,6 +19,18 @@ nlohmann::json json_complex(Complex c);
 // root as a number, a conjugate pair once as {"re", "im"} with im > 0).
 nlohmann::json json_zpk(const Zpk& z);
 
+// A compensator C(s) for the results: json_zpk plus the other gain convention,
+// "low_frequency_gain" (lim s^n C(s) as s -> 0, n = "integrators"); "gain" is the zero-pole gain.
+nlohmann::json json_compensator(const Zpk& c);
+
+// The two gain conventions, named, for the text and HTML tables:
+//   zero-pole gain      k of C(s) = k prod(s - z_i) / prod(s - p_i) (the leading coefficient),
+//   low-frequency gain  lim s^n C(s) as s -> 0, n = integrators (the Bode or DC gain; the factor in
+//                       front when every other factor is written (s / w + 1)).
+extern const char* const kGainConvention;
+// "zero-pole gain 1423, low-frequency gain 165.6" (digits as fmt_number's default).
+std::string gains_text(const Zpk& c);
+
 // The cautions every report carries.
 extern const char* const kCautions;
 

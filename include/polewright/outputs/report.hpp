@@ -70,5 +70,15 @@ std::string report_time_section(const ReportData& d);
 std::string report_frequency_section(const ReportData& d);
 std::string report_candidates_section(const ReportData& d);
 std::string report_retune_section(const ReportData& d);  // retune: changes and old against new
+std::string report_nyquist_section(const ReportData& d);  // Nyquist plot and the delay margin
+// The s-plane view before the equal-aspect widening: the plants' roots, the closed-loop poles that
+// matter (not those out where a dead time's Pade approximant lives), the region corner and the
+// compensator roots near them. Roots outside it are drawn as arrows at the edge with their values.
+struct SplaneView {
+  double x_lo = -1.0, x_hi = 1.0, y_lo = -1.0, y_hi = 1.0;
+};
+SplaneView splane_view(const ReportData& d);
+// A design that meets nothing: its binding requirements and plant limits ("" otherwise).
+std::string report_diagnosis_html(const ReportData& d);
 
 }  // namespace pw

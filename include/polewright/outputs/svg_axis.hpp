@@ -39,6 +39,9 @@ struct Axis {
   double p0 = 0.0, p1 = 1.0;  // pixels of lo and hi
   int target_ticks = 6;
   std::string label;          // quantity and unit, e.g. "time t (s)"
+  // When set: the ticks are exactly these values (inside [lo, hi]), labelled with format_number
+  // (4 digits); with more than `target_ticks` * 2 values only every k-th is labelled.
+  std::vector<double> fixed_ticks;
 
   // Pixel of data value v; NaN for a non-finite v or (log axes) v <= 0.
   double map(double v) const;

@@ -71,6 +71,11 @@ struct EvaluationNeeds {
 LoopEvaluation evaluate_loop(const Zpk& compensator, const Plant& plant, const RequirementSet& req,
                              const Region& region, const AnalysisOptions& options, const EvaluationNeeds& needs = {});
 
+// Delay margin: the smallest extra dead time that brings a gain crossover's phase to -180 deg,
+// min over crossovers w_i of PM_i / w_i with PM_i in radians taken in [0, 2 pi); infinite without
+// a crossover. For any loop's frequency figures (continuous or sampled).
+MetricValue delay_margin_value(const FrequencyMetrics& f);
+
 struct RequirementOutcome {
   Requirement requirement;
   MetricValue worst;      // worst value over the plants

@@ -20,8 +20,9 @@ enum class MetricId {
   GainTolerance,
   DampingRatio,
   NaturalFrequency,
+  DelayMargin,
 };
-constexpr int kMetricCount = 13;
+constexpr int kMetricCount = 14;
 
 enum class BoundKind { MaxOnly, MinOnly, MinOrMax };
 
