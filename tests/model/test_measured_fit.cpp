@@ -139,3 +139,33 @@ TEST_CASE("FitOptions::IsValid rejects out-of-range settings", "[model][measured
   CHECK_FALSE(o.IsValid(&why));
   CHECK_THROWS_AS(fit_rational(sampled(make(1.0, {}, {Complex(-1, 0)}), 0.0, 0.1, 10.0), o), std::invalid_argument);
 }
+
+TEST_CASE("low-coherence points barely count: a corrupted band with coherence 0.02 leaves the fit intact", "[model][measured_fit]") {
+  // Truth 5 / ((s + 0.5)(s + 4)); between 1 and 2 rad/s the magnitude is off by a factor 1.5
+  // (3.5 dB) and the phase by 20 deg, as an excitation dropout would leave it, with coherence 0.02.
+  const Zpk g = make(5.0, {}, {Complex(-0.5, 0), Complex(-4, 0)});
+  MeasuredResponse d = sampled(g, 0.0, 0.01, 100.0);
+  d.coherence.assign(d.size(), 1.0);
+  for (size_t k = 0; k < d.size(); ++k)
+    if (d.w_rad_s[k] > 1.0 && d.w_rad_s[k] < 2.0) {
+      d.log_mag[k] += std::log(1.5);
+      d.phase_rad[k] += 20.0 * M_PI / 180.0;
+      d.coherence[k] = 0.02;
+    }
+  const RationalFit weighted = fit_rational_order(d, 2, 0, 0.0, FitOptions{});
+  CHECK(worst_root_error(g.poles, weighted.model.poles) < 1e-3);  // measured: 7e-5
+  MeasuredResponse trusting = d;
+  trusting.coherence.clear();  // every point counts fully: the band pulls the poles away
+  const RationalFit plain = fit_rational_order(trusting, 2, 0, 0.0, FitOptions{});
+  CHECK(worst_root_error(g.poles, plain.model.poles) > 0.05);  // measured: 0.17
+}
+
+TEST_CASE("fit of a flat response (a pure gain of 2): finite figures and the gain kept", "[model][measured_fit]") {
+  const MeasuredResponse d = sampled(make(2.0, {}, {}), 0.0, 0.1, 10.0);
+  const RationalFit f = fit_rational(d, FitOptions{});
+  CHECK(std::isfinite(f.criterion));
+  CHECK(std::isfinite(f.rms_relative_error));
+  CHECK(f.rms_relative_error < 1e-6);
+  CHECK(std::abs(f.model.evaluate(Complex(0, 1.0))) == Approx(2.0).epsilon(1e-6));
+  for (const auto& e : f.per_decade) CHECK(e.rms_magnitude_db < 1e-4);
+}
