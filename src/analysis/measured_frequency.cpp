@@ -29,7 +29,12 @@ MeasuredMetrics measured_loop_metrics(const MeasuredResponse& loop, const Freque
   const double lo_mag = std::exp(loop.log_mag.front()), hi_mag = std::exp(loop.log_mag.back());
   const double lo_phase = wrap_degrees(180.0 + loop.phase_rad.front() * 180.0 / M_PI);  // distance from -180
   const bool inverted = std::abs(lo_phase) < 30.0;
-  lim.low_frequency_gain = inverted ? -lo_mag : lo_mag;
+  // Not inverted: a positive L0 with L0 / (1 + L0) = |T| at the lowest point, so the bandwidth
+  // level is 3 dB below the measured |T| there (for a loop with integrators |T| is close to 1 while
+  // |L| / (1 + |L|) would not be).
+  const Complex l_lo = loop.point(0);
+  const double t_lo = std::abs(l_lo / (1.0 + l_lo));
+  lim.low_frequency_gain = inverted ? -lo_mag : (t_lo < 1.0 - 1e-12 ? t_lo / (1.0 - t_lo) : 1e12);
   if (inverted)
     out.notes.push_back(fmt("the phase at the lowest measured frequency (%.4g rad/s) is within 30 deg of -180: counted as a phase crossover there",
                             loop.w_min()));

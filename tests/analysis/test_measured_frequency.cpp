@@ -50,7 +50,9 @@ TEST_CASE("margins from noisy data of a resonant stage within 0.3 deg / 0.2 dB o
   CHECK(*m.figures.gain_margin_at_rad_s == Approx(ref["phase_crossovers"][0].get<double>()).epsilon(0.02));
   REQUIRE(m.figures.peak_sensitivity);
   CHECK(*m.figures.peak_sensitivity == Approx(ref["peak_sensitivity"].get<double>()).epsilon(0.005));
-  CHECK(m.figures.bandwidth_rad_s);
+  // |T(0)| is read off the lowest point (0.99992 here, where T(0) = 1 with the integrator).
+  REQUIRE(m.figures.bandwidth_rad_s);
+  CHECK(*m.figures.bandwidth_rad_s == Approx(ref["bandwidth"].get<double>()).epsilon(0.01));
   CHECK(m.notes.empty());  // |L| falls far below -20 dB at the top, far above 0 dB at the bottom
 }
 
@@ -67,6 +69,8 @@ TEST_CASE("margins from noisy data of a plant with dead time: every phase crosso
   }
   CHECK(*m.figures.gain_margin_db == Approx(ref["gain_margins_db"][0].get<double>()).margin(0.2));
   CHECK(*m.figures.peak_sensitivity == Approx(ref["peak_sensitivity"].get<double>()).epsilon(0.005));
+  REQUIRE(m.figures.bandwidth_rad_s);
+  CHECK(*m.figures.bandwidth_rad_s == Approx(ref["bandwidth"].get<double>()).epsilon(0.01));
 }
 
 TEST_CASE("measured metrics note crossings that the measured range cannot show", "[analysis][measured]") {

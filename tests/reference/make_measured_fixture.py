@@ -59,7 +59,12 @@ def loop_figures(case):
     k = int(np.argmax(s))
     res = optimize.minimize_scalar(lambda x: -1 / abs(1 + L(np.exp(x))), bounds=(np.log(w[k - 1]), np.log(w[k + 1])), method="bounded",
                                    options=dict(xatol=1e-10))
-    return dict(gain_crossovers=[p[0] for p in pm], phase_margins_deg=[p[1] for p in pm],
+    # Closed-loop bandwidth: |T| falls 3 dB below |T(0)| (T(0) = 1 with an integrator in the loop).
+    t0 = 1.0 if 0.0 in lp else abs(L(0.0) / (1 + L(0.0)))
+    t = np.abs(h / (1 + h))
+    i = int(np.argmax(t < t0 / np.sqrt(2)))
+    bw = optimize.brentq(lambda x: abs(L(x) / (1 + L(x))) - t0 / np.sqrt(2), w[i - 1], w[i], xtol=1e-14)
+    return dict(bandwidth=float(bw), gain_crossovers=[p[0] for p in pm], phase_margins_deg=[p[1] for p in pm],
                 phase_crossovers=[p[0] for p in gm], gain_margins_db=[p[1] for p in gm],
                 peak_sensitivity=float(-res.fun), peak_sensitivity_at=float(np.exp(res.x)))
 

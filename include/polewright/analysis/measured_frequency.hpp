@@ -16,8 +16,10 @@ struct MeasuredMetrics {
 };
 
 // Figures of the loop L(jw) given as data (see measured_multiply for C times a measured plant).
-// The data show no integrators: L(0) is taken as the lowest measured point (a phase within 30 deg
-// of -180 there counts as a phase crossover at the bottom of the range).
+// The data show no integrators: the low-frequency limits come from the lowest measured point (the
+// bandwidth level is 3 dB below |T| there; a phase within 30 deg of -180 there counts as a phase
+// crossover at the bottom of the range). The grid is the measured
+// points; of `options` only dense_peak_scan applies.
 MeasuredMetrics measured_loop_metrics(const MeasuredResponse& loop, const FrequencyOptions& options);
 
 }  // namespace pw
