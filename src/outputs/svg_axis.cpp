@@ -1,9 +1,9 @@
-#include "polewright/outputs/svg_axis.hpp"
+#include "svg_axis.hpp"
 
 #include <cmath>
 #include <limits>
 
-#include "polewright/outputs/svg_text.hpp"
+#include "svg_text.hpp"
 
 namespace pw {
 
