@@ -4,7 +4,7 @@
 #include <cmath>
 #include <limits>
 
-#include "polewright/analysis/eigen.hpp"
+#include "polewright/model/eigen.hpp"
 #include "polewright/model/pade.hpp"
 
 namespace pw {

@@ -7,7 +7,7 @@
 #include <Eigen/Sparse>
 
 #include "polewright/analysis/closed_loop.hpp"
-#include "polewright/analysis/eigen.hpp"
+#include "polewright/model/eigen.hpp"
 
 namespace pw {
 
