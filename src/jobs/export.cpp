@@ -31,17 +31,6 @@ bool ExportOptions::IsValid(std::string* error) const {
 
 namespace {
 
-MetricValue number(const std::optional<double>& v) {
-  MetricValue m;
-  if (v && std::isfinite(*v)) m.value = *v;
-  return m;
-}
-MetricValue infinite() {
-  MetricValue m;
-  m.infinite = true;
-  return m;
-}
-
 std::string fmt(const char* f, double a, double b = 0.0, double c = 0.0) {
   char buf[256];
   std::snprintf(buf, sizeof buf, f, a, b, c);
@@ -74,30 +63,19 @@ GainToleranceResult discrete_gain_tolerance(const Zpk& cd, const SampledPlant& s
   });
 }
 
-std::array<MetricValue, kMetricCount> discrete_metric_values(const DiscreteLoopAnalysis& a) {
-  std::array<MetricValue, kMetricCount> v{};
-  auto at = [&](MetricId id) -> MetricValue& { return v[static_cast<size_t>(id)]; };
+MetricValues discrete_metric_values(const DiscreteLoopAnalysis& a) {
+  // The same assignment as the continuous loop's (requirements/evaluate.hpp), from the sampled
+  // loop's figures: poles mapped by s = ln(z) / T, L(e^{jwT}), the discrete error constants, the
+  // step at the sample instants.
+  MetricValues v{};
   double min_damping = INFINITY;
   for (const DiscretePole& p : a.poles)
     if (p.matters) min_damping = std::min(min_damping, p.damping);
-  if (std::isfinite(min_damping)) at(MetricId::DampingRatio).value = min_damping;
-  if (a.dominant) at(MetricId::NaturalFrequency) = number(a.dominant->natural_frequency);
-  const FrequencyMetrics& f = a.frequency;
-  if (a.well_posed) {
-    at(MetricId::PhaseMargin) = f.gain_crossovers_rad_s.empty() ? infinite() : number(f.phase_margin_deg);
-    at(MetricId::GainMargin) = f.critical_gains.empty() ? infinite() : number(f.gain_margin_db);
-    at(MetricId::Crossover) = number(f.crossover_rad_s);
-    at(MetricId::Bandwidth) = number(f.bandwidth_rad_s);
-    at(MetricId::PeakSensitivity) = number(f.peak_sensitivity);
-  }
+  set_pole_metrics(v, min_damping, a.dominant ? std::optional<double>(a.dominant->natural_frequency) : std::nullopt);
+  if (a.well_posed) set_frequency_metrics(v, a.frequency);
   if (!a.stable) return v;
-  at(MetricId::SteadyStateError) = a.steady_state.error ? number(a.steady_state.error) : infinite();
-  if (a.step) {
-    at(MetricId::Overshoot) = number(a.step->overshoot_pct);
-    at(MetricId::SettlingTime) = number(a.step->settling_time_s);
-    at(MetricId::RiseTime) = number(a.step->rise_time_s);
-    at(MetricId::PeakEffort) = number(a.step->peak_effort);
-  }
+  set_steady_state_metrics(v, a.steady_state);
+  if (a.step) set_step_metrics(v, *a.step);
   return v;
 }
 
@@ -226,7 +204,7 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
     if (spec.requirements.has(MetricId::GainTolerance) && L.discrete_eval.stable) {
       const SampledPlant sp = sample_plant(spec.plants[i], T, o.compute_delay);
       const GainToleranceResult g = discrete_gain_tolerance(r.discrete, sp, region, spec.analysis.residue_share);
-      L.discrete[static_cast<size_t>(MetricId::GainTolerance)].value = g.tolerance_pct;
+      set_gain_tolerance_metric(L.discrete, g.tolerance_pct);
     }
     r.discrete_stable = r.discrete_stable && L.discrete_eval.stable && L.discrete_eval.well_posed;
   }
@@ -234,27 +212,19 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
   for (const Requirement& req : spec.requirements.items) {
     ExportOutcome out;
     out.requirement = req;
+    // The worst case over the plants by the rule check uses (worst_over_plants), for the sampled
+    // loop and for the continuous one it is compared with.
     const size_t m = static_cast<size_t>(req.metric);
-    double worst = -INFINITY, worst_c = -INFINITY;
-    for (size_t i = 0; i < r.loops.size(); ++i) {
-      const MetricValue& dv = r.loops[i].discrete[m];
-      const MetricValue& cv = r.loops[i].continuous[m];
-      double viol = requirement_violation(req, dv);
-      if (!r.loops[i].discrete_eval.stable) viol = std::max(viol, 1e3);
-      const double key = viol > 0.0 ? viol : (dv.infinite ? -1e300 : -requirement_margin(req, *dv.value) * 1e-9);
-      if (key > worst) {
-        worst = key;
-        out.discrete = dv;
-        out.worst_plant = static_cast<int>(i);
-      }
-      const double vc = requirement_violation(req, cv);
-      const double kc = vc > 0.0 ? vc : (cv.infinite ? -1e300 : (cv.value ? -requirement_margin(req, *cv.value) * 1e-9 : 1e3));
-      if (kc > worst_c) {
-        worst_c = kc;
-        out.continuous = cv;
-      }
-    }
-    out.met = worst <= 0.0 && r.discrete_stable;
+    const WorstCase wd = worst_over_plants(req, r.loops.size(), [&](size_t i) {
+      return PlantValue{r.loops[i].discrete[m], r.loops[i].discrete_eval.stable};
+    });
+    const WorstCase wc = worst_over_plants(req, r.loops.size(), [&](size_t i) {
+      return PlantValue{r.loops[i].continuous[m], r.loops[i].continuous_stable};
+    });
+    out.discrete = wd.worst;
+    out.worst_plant = wd.plant;
+    out.continuous = wc.worst;
+    out.met = wd.violation == 0.0 && r.discrete_stable;
     r.all_met = r.all_met && out.met;
     r.outcomes.push_back(out);
   }

@@ -51,6 +51,59 @@ TEST_CASE("export options are validated", "[export][export_job]") {
   CHECK_THROWS_AS(run_export(lead_result(), 2, at(1e-3)), SpecError);  // one compensator only
 }
 
+TEST_CASE("export's continuous column is check's worst case; its sampled one uses the same rule", "[export][export_job]") {
+  // One rule for the worst case over the plants (worst_over_plants): the continuous figures export
+  // compares against are exactly what check reports for the same compensator and plants.
+  const json doc = {{"tool", {{"job", "check"}}},
+                    {"spec",
+                     {{"plant", {{"gain", 4}, {"poles", {0, -2}}, {"variants", {{{"gain", 3}}, {{"gain", 6}}}}}},
+                      {"requirements",
+                       {{"phase_margin_deg", {{"min", 45}}}, {"overshoot_pct", {{"max", 25}}}, {"gain_margin_db", {{"min", 6}}},
+                        {"settling_time_s", {{"max", 3}}}}}}},
+                    {"compensator", {{"gain", 4.68}, {"zeros", {-2.9}}, {"poles", {-5.4}}}}};
+  const ResultInput in = parse_result(doc);
+  const ExportReport r = run_export(in, 1, at(0.02));
+  const Spec& spec = *in.spec;
+  const Evaluation ev = evaluate_all(in.compensators[0], spec.plants, spec.requirements,
+                                     region_from_requirements(spec.requirements), spec.analysis);
+  REQUIRE(r.outcomes.size() == ev.outcomes.size());
+  for (size_t k = 0; k < r.outcomes.size(); ++k) {
+    CHECK(r.outcomes[k].continuous.infinite == ev.outcomes[k].worst.infinite);
+    CHECK(r.outcomes[k].continuous.value == ev.outcomes[k].worst.value);  // bit for bit
+    // The sampled worst case is the plant worst_over_plants picks from the sampled figures.
+    const size_t m = static_cast<size_t>(r.outcomes[k].requirement.metric);
+    const WorstCase w = worst_over_plants(r.outcomes[k].requirement, r.loops.size(), [&](size_t i) {
+      return PlantValue{r.loops[i].discrete[m], r.loops[i].discrete_eval.stable};
+    });
+    CHECK(r.outcomes[k].worst_plant == w.plant);
+  }
+}
+
+TEST_CASE("the sampled loop's metrics are assigned by the continuous loop's routines", "[export][export_job]") {
+  // discrete_metric_values on figures copied from a continuous evaluation gives the continuous
+  // values for every metric drawn from them (the pole metrics come from the z-plane poles).
+  const ResultInput in = lead_result();
+  const Spec& spec = *in.spec;
+  const Region region = region_from_requirements(spec.requirements);
+  const LoopEvaluation e = evaluate_loop(in.compensators[0], spec.plants[0], spec.requirements, region, spec.analysis);
+  REQUIRE(e.stable);
+  REQUIRE(e.step);
+  DiscreteLoopAnalysis a;
+  a.well_posed = true;
+  a.stable = true;
+  a.frequency = e.frequency;
+  a.steady_state = e.steady_state;
+  a.step = e.step;
+  const MetricValues v = discrete_metric_values(a);
+  for (MetricId id : {MetricId::PhaseMargin, MetricId::GainMargin, MetricId::Crossover, MetricId::Bandwidth,
+                      MetricId::PeakSensitivity, MetricId::SteadyStateError, MetricId::Overshoot, MetricId::SettlingTime,
+                      MetricId::RiseTime, MetricId::PeakEffort}) {
+    const size_t i = static_cast<size_t>(id);
+    CHECK(v[i].infinite == e.values[i].infinite);
+    CHECK(v[i].value == e.values[i].value);
+  }
+}
+
 TEST_CASE("a fast-sampled export meets what the continuous loop meets", "[export][export_job]") {
   // Crossover about 4.4 rad/s: at T = 1 ms the rate is ~1400 times the crossover.
   const ExportReport r = run_export(lead_result(), 1, at(1e-3));

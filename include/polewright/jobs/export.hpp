@@ -42,8 +42,8 @@ struct ExportOptions {
 // Per plant (nominal first): the continuous and the discrete figures of the loop.
 struct ExportLoop {
   std::string plant_name;
-  std::array<MetricValue, kMetricCount> continuous{};
-  std::array<MetricValue, kMetricCount> discrete{};
+  MetricValues continuous{};
+  MetricValues discrete{};
   bool continuous_stable = false;
   LoopEvaluation continuous_eval;
   DiscreteLoopAnalysis discrete_eval;
@@ -84,7 +84,7 @@ GainToleranceResult discrete_gain_tolerance(const Zpk& cd, const SampledPlant& s
 
 // The figures of a sampled loop as metric values (gain tolerance is left missing: see
 // discrete_gain_tolerance).
-std::array<MetricValue, kMetricCount> discrete_metric_values(const DiscreteLoopAnalysis& a);
+MetricValues discrete_metric_values(const DiscreteLoopAnalysis& a);
 
 // Throws SpecError naming the option ("--sample-time", "--prewarp-rad-s", ...) for bad options
 // or a compensator the method cannot map.
