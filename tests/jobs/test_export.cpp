@@ -37,7 +37,7 @@ bool has_warning(const ExportReport& r, const std::string& part) {
 TEST_CASE("export options are validated", "[export][export_job]") {
   std::string err;
   CHECK(!at(0.0).IsValid(&err));
-  CHECK(err.find("--sample-time") == 0);
+  CHECK(err.find("sample_time_s ") == 0);  // the field, not a command-line option
   CHECK(!at(-1.0).IsValid(&err));
   CHECK(!at(NAN).IsValid(&err));
   ExportOptions o = at(1e-3);
@@ -49,6 +49,56 @@ TEST_CASE("export options are validated", "[export][export_job]") {
   CHECK(!o.IsValid(&err));
   CHECK_THROWS_AS(run_export(lead_result(), 1, at(0.0)), SpecError);
   CHECK_THROWS_AS(run_export(lead_result(), 2, at(1e-3)), SpecError);  // one compensator only
+}
+
+TEST_CASE("export errors name the ExportOptions field to blame, never a command-line option", "[export][export_job]") {
+  auto path_of = [](const ResultInput& in, int rank, const ExportOptions& o) {
+    try {
+      run_export(in, rank, o);
+    } catch (const SpecError& e) {
+      return e.path();
+    }
+    return std::string("(no error)");
+  };
+  CHECK(path_of(lead_result(), 1, at(0.0)) == "sample_time_s");
+  CHECK(path_of(lead_result(), 2, at(1e-3)) == "rank");
+  ExportOptions o = at(1e-3);
+  o.compute_delay = -1;
+  CHECK(path_of(lead_result(), 1, o) == "compute_delay");
+  o = at(1e-3);
+  o.clamp = std::make_pair(1.0, -1.0);
+  CHECK(path_of(lead_result(), 1, o) == "clamp");
+  o = at(1e-3);
+  o.min_rate_ratio = 0.0;
+  CHECK(path_of(lead_result(), 1, o) == "min_rate_ratio");
+  o = at(1e-3);
+  o.float_radius_fraction = 1.0;
+  CHECK(path_of(lead_result(), 1, o) == "float_radius_fraction");
+  // Prewarp with a bare compensator has no crossover to warp at.
+  o = at(1e-2);
+  o.method = DiscreteMethod::Prewarp;
+  CHECK(path_of(parse_result(json{{"gain", 2}, {"zeros", {-1}}, {"poles", {0}}}), 1, o) == "prewarp_rad_s");
+  // Problem() and IsValid agree: the first bad field, then its message.
+  o = at(-1.0);
+  REQUIRE(o.Problem());
+  CHECK(o.Problem()->field == "sample_time_s");
+  std::string err;
+  CHECK(!o.IsValid(&err));
+  CHECK(err == "sample_time_s " + o.Problem()->message);
+  CHECK(!at(1e-3).Problem());
+}
+
+TEST_CASE("a compensator cancelling an unstable plant pole is blamed at its own path in the result", "[export][export_job]") {
+  // Plant 1/((s - 3)(s + 1)); a compensator zero at +3 cancels the unstable pole (refused).
+  const json spec = {{"plant", {{"gain", 1}, {"poles", {3, -1}}}}, {"requirements", {{"phase_margin_deg", {{"min", 30}}}}}};
+  const json good = {{"gain", 20}, {"zeros", {-1}}, {"poles", {-20}}};
+  const json bad = {{"gain", 20}, {"zeros", {3}}, {"poles", {-20}}};
+  const json design = {{"tool", {{"job", "design"}}},
+                       {"spec", spec},
+                       {"candidates", {{{"compensator", good}}, {{"compensator", bad}}}}};
+  const ResultInput in = parse_result(design);
+  CHECK(result_compensator_path(in, 2) == "$.candidates[1].compensator");
+  CHECK_THROWS_WITH(run_export(in, 2, at(1e-3)), Catch::StartsWith("$.candidates[1].compensator: compensator zero"));
 }
 
 TEST_CASE("export's continuous column is check's worst case; its sampled one uses the same rule", "[export][export_job]") {
