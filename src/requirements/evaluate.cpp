@@ -64,6 +64,9 @@ double plant_violation(const Requirement& r, const PlantValue& p) {
   return p.stable ? viol : std::max(viol, kUnstableViolation);
 }
 
+// The shortfall tie-break separates violations that tie at the unstable floor (or the cap) by how
+// far the figure misses; tanh saturates for shortfalls of many limits, where the first of the tied
+// plants stays the worst.
 double worst_case_key(const Requirement& r, const MetricValue& v, double violation) {
   if (violation == 0.0) return v.infinite ? kUnboundedMetKey : -requirement_margin(r, *v.value) / limit_scale(r) * kMetMarginWeight;
   if (v.value) return violation + kShortfallTieBreak * std::tanh(-requirement_margin(r, *v.value) / limit_scale(r));

@@ -113,11 +113,14 @@ TEST_CASE("worst_over_plants: the one worst-case rule of check, design, retune a
   CHECK(w.plant == 1);
   CHECK(w.violation == kUnstableViolation);
   CHECK(viol[0] == Approx(5.0 / 45.0));
-  // Capped violations tie (a 1e6 % and a 1e7 % overshoot both hit requirement_violation's cap):
-  // the larger real shortfall is worse.
-  w = worst_of(os, {{val(1e6), true}, {val(1e7), true}});
+  // Violations that tie at the unstable floor: the larger real shortfall is worse (15 % is 0.5 of
+  // the limit over, 12 % only 0.2).
+  w = worst_of(os, {{val(12.0), false}, {val(15.0), false}, {val(13.0), false}});
   CHECK(w.plant == 1);
-  CHECK(w.violation == worst_of(os, {{val(1e6), true}}).violation);
+  CHECK(w.violation == kUnstableViolation);
+  // Far beyond the limit the tie-break saturates (tanh = 1): the first of the tied plants stays.
+  w = worst_of(os, {{val(1e6), true}, {val(1e7), true}});
+  CHECK(w.plant == 0);
   // An unbounded phase margin (no gain crossover) meets and is the best; a missing figure violates.
   w = worst_of(pm, {{unbounded(), true}, {val(50.0), true}});
   CHECK(w.plant == 1);
