@@ -101,7 +101,7 @@ TEST_CASE("a compensator cancelling an unstable plant pole is blamed at its own 
   CHECK_THROWS_WITH(run_export(in, 2, at(1e-3)), Catch::StartsWith("$.candidates[1].compensator: compensator zero"));
 }
 
-TEST_CASE("export's continuous column is check's worst case; its sampled one uses the same rule", "[export][export_job]") {
+TEST_CASE("export's continuous column is check's worst case, and its sampled one uses the same rule", "[export][export_job]") {
   // One rule for the worst case over the plants (worst_over_plants): the continuous figures export
   // compares against are exactly what check reports for the same compensator and plants.
   const json doc = {{"tool", {{"job", "check"}}},
