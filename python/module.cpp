@@ -17,7 +17,7 @@
 #include "polewright/jobs/design.hpp"
 #include "polewright/jobs/export.hpp"
 #include "polewright/jobs/retune.hpp"
-#include "polewright/outputs/atomic_file.hpp"
+#include "outputs/atomic_file.hpp"
 #include "polewright/outputs/check_output.hpp"
 #include "polewright/outputs/design_output.hpp"
 #include "polewright/outputs/export_output.hpp"

@@ -2,8 +2,7 @@
 // the library API: build the spec in code, run the design job, print the best candidate.
 #include <cstdio>
 
-#include "polewright/jobs/design.hpp"
-#include "polewright/outputs/json_values.hpp"
+#include <polewright/polewright.hpp>  // the whole public API in one include
 
 int main() {
   pw::Spec spec;
@@ -28,6 +27,7 @@ int main() {
   const pw::DesignReport report = pw::run_design(spec, options);
   if (report.candidates.empty()) return 1;
   const pw::Candidate& best = report.candidates.front();
+  std::printf("polewright %s\n", pw::kToolVersion);
   std::printf("best: C(s) = %s\n", pw::zpk_to_string(best.compensator).c_str());
   std::printf("meets every requirement: %s\n", best.meets ? "yes" : "no");
   std::printf("peak effort %.4g, phase margin %.4g deg\n", *best.worst[static_cast<size_t>(pw::MetricId::PeakEffort)].value,

@@ -4,8 +4,9 @@
 #include <cmath>
 #include <limits>
 
-#include "polewright/analysis/eigen.hpp"
+#include "polewright/model/eigen.hpp"
 #include "polewright/model/pade.hpp"
+#include "interconnect.hpp"
 
 namespace pw {
 
@@ -24,34 +25,7 @@ LoopParts make_loop_parts(const Zpk& compensator, const Plant& plant, int pade_o
 }
 
 ClosedLoop close_loop(const StateSpace& c, const StateSpace& g, double k) {
-  const int nc = c.states(), ng = g.states(), n = nc + ng;
-  ClosedLoop cl;
-  const double Dc = k * c.D;
-  const double delta = 1.0 + Dc * g.D;
-  cl.well_posed = std::abs(delta) > 1e-12;
-  const double inv = cl.well_posed ? 1.0 / delta : 0.0;
-  // u = Fc xc + Fg xg + Fr r
-  const RowVec Fc = (k * inv) * c.C;
-  const RowVec Fg = (-Dc * inv) * g.C;
-  const double Fr = Dc * inv;
-  const RowVec Yg = g.C + g.D * Fg;  // y = Dg Fc xc + Yg xg + Dg Fr r
-  cl.A = Mat(n, n);
-  cl.A.topLeftCorner(nc, nc) = c.A - (c.B * g.D) * Fc;
-  cl.A.topRightCorner(nc, ng) = -c.B * Yg;
-  cl.A.bottomLeftCorner(ng, nc) = g.B * Fc;
-  cl.A.bottomRightCorner(ng, ng) = g.A + g.B * Fg;
-  cl.B = Vec(n);
-  cl.B.head(nc) = c.B * (1.0 - g.D * Fr);
-  cl.B.tail(ng) = g.B * Fr;
-  cl.Cy = RowVec(n);
-  cl.Cy.head(nc) = g.D * Fc;
-  cl.Cy.tail(ng) = Yg;
-  cl.Dy = g.D * Fr;
-  cl.Cu = RowVec(n);
-  cl.Cu.head(nc) = Fc;
-  cl.Cu.tail(ng) = Fg;
-  cl.Du = Fr;
-  return cl;
+  return interconnect<ClosedLoop>(c, g, k);
 }
 
 double damping_of(Complex p) {

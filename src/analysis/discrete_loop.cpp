@@ -7,7 +7,8 @@
 #include <Eigen/Sparse>
 
 #include "polewright/analysis/closed_loop.hpp"
-#include "polewright/analysis/eigen.hpp"
+#include "polewright/model/eigen.hpp"
+#include "interconnect.hpp"
 
 namespace pw {
 
@@ -124,45 +125,13 @@ DSys plant_system(const SampledPlant& p) {
   return s;
 }
 
-// The interconnection algebra of close_loop (closed_loop.cpp) on dynamic-size matrices: the same
-// in discrete time; 1 + Dc Dg = 0 is an algebraic loop with no solution.
-DLoop close_dynamic(const DSys& c, const DSys& g, double k) {
-  const int nc = c.states(), ng = g.states(), n = nc + ng;
-  DLoop cl;
-  const double Dc = k * c.D;
-  const double delta = 1.0 + Dc * g.D;
-  cl.well_posed = std::abs(delta) > 1e-12;
-  const double inv = cl.well_posed ? 1.0 / delta : 0.0;
-  const DRow Fc = (k * inv) * c.C;     // u = Fc xc + Fg xg + Fr r
-  const DRow Fg = (-Dc * inv) * g.C;
-  const double Fr = Dc * inv;
-  const DRow Yg = g.C + g.D * Fg;      // y = Dg Fc xc + Yg xg + Dg Fr r
-  cl.A = DMat(n, n);
-  cl.A.topLeftCorner(nc, nc) = c.A - (c.B * g.D) * Fc;
-  cl.A.topRightCorner(nc, ng) = -c.B * Yg;
-  cl.A.bottomLeftCorner(ng, nc) = g.B * Fc;
-  cl.A.bottomRightCorner(ng, ng) = g.A + g.B * Fg;
-  cl.B = DVec(n);
-  cl.B.head(nc) = c.B * (1.0 - g.D * Fr);
-  cl.B.tail(ng) = g.B * Fr;
-  cl.Cy = DRow(n);
-  cl.Cy.head(nc) = g.D * Fc;
-  cl.Cy.tail(ng) = Yg;
-  cl.Dy = g.D * Fr;
-  cl.Cu = DRow(n);
-  cl.Cu.head(nc) = Fc;
-  cl.Cu.tail(ng) = Fg;
-  cl.Du = Fr;
-  return cl;
-}
-
 DLoop sampled_closed_loop(const Zpk& cd, const SampledPlant& sp, double k) {
   const DSys g = plant_system(sp);
   const DSys c = to_dynamic(realize(cd));
   if (g.states() + c.states() > kMaxDiscreteStates)
     throw std::invalid_argument("the sampled loop would need " + std::to_string(g.states() + c.states()) +
                                 " states, at most " + std::to_string(kMaxDiscreteStates));
-  return close_dynamic(c, g, k);
+  return interconnect<DLoop>(c, g, k);  // the algebra of close_loop, on dynamic-size matrices
 }
 
 }  // namespace

@@ -5,7 +5,7 @@
 #include <limits>
 #include <string>
 
-#include "polewright/analysis/eigen.hpp"
+#include "polewright/model/eigen.hpp"
 #include "polewright/analysis/frequency.hpp"
 
 namespace pw {

@@ -5,7 +5,7 @@
 #include <string>
 
 
-#include "polewright/analysis/eigen.hpp"
+#include "polewright/model/eigen.hpp"
 
 namespace pw {
 

@@ -51,7 +51,14 @@ void register_check(CLI::App& app) {
         } else {
           throw SpecError("$.current", "is missing: give a current compensator or --compensator FILE");
         }
-        const CheckReport report = run_check(spec, comp);
+        // With --compensator, an error in the compensator is that file's, at its root.
+        CheckOptions options;
+        if (!a->compensator.empty()) {
+          options.compensator_path = "$";
+          file = a->compensator;
+        }
+        const CheckReport report = run_check(spec, comp, options);
+        file = a->spec;
         const nlohmann::json j = check_report_json(report);
         if (!a->out.empty()) emit(a->out, j.dump(1) + "\n");
         if (!a->report.empty()) emit(a->report, report_html(parse_result(j)));

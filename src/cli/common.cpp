@@ -2,7 +2,7 @@
 #include <iostream>
 
 #include "commands.hpp"
-#include "polewright/outputs/atomic_file.hpp"
+#include "outputs/atomic_file.hpp"
 #include "polewright/requirements/spec.hpp"
 
 namespace pw::cli {

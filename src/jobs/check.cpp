@@ -90,7 +90,7 @@ CheckReport run_check(const Spec& spec, const Zpk& compensator, const CheckOptio
   r.analysis = spec.analysis;
   r.analysis.step.keep_trace = options.trace_step;
   r.region = region_from_requirements(spec.requirements);
-  for (size_t i = 0; i < spec.plants.size(); ++i) check_cancellations(compensator, spec.plants[i], "$.current");
+  for (size_t i = 0; i < spec.plants.size(); ++i) check_cancellations(compensator, spec.plants[i], options.compensator_path);
   r.evaluation = evaluate_all(compensator, spec.plants, spec.requirements, r.region, r.analysis);
   r.warnings = conditioning_warnings(spec.document);
   r.locus = root_locus(make_loop_parts(compensator, spec.plants.front(), spec.analysis.pade_order), options.locus);

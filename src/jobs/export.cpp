@@ -9,38 +9,31 @@
 
 namespace pw {
 
-bool ExportOptions::IsValid(std::string* error) const {
-  auto fail = [&](const char* msg) {
-    if (error) *error = msg;
-    return false;
-  };
-  if (!(sample_time_s > 0.0) || !std::isfinite(sample_time_s)) return fail("--sample-time must be a number > 0");
+std::optional<ExportProblem> ExportOptions::Problem() const {
+  auto bad = [](const char* field, const char* message) { return ExportProblem{field, message}; };
+  if (!(sample_time_s > 0.0) || !std::isfinite(sample_time_s)) return bad("sample_time_s", "must be a number > 0");
   if (prewarp_rad_s && (!(*prewarp_rad_s > 0.0) || !std::isfinite(*prewarp_rad_s)))
-    return fail("--prewarp-rad-s must be a number > 0");
+    return bad("prewarp_rad_s", "must be a number > 0");
   if (prewarp_rad_s && !(*prewarp_rad_s * sample_time_s < M_PI))
-    return fail("--prewarp-rad-s must be below the Nyquist frequency pi / T");
-  if (compute_delay < 0 || compute_delay > 50) return fail("--compute-delay must be a whole number of samples within 0..50");
+    return bad("prewarp_rad_s", "must be below the Nyquist frequency pi / T");
+  if (compute_delay < 0 || compute_delay > 50) return bad("compute_delay", "must be a whole number of samples within 0..50");
   if (clamp && !(std::isfinite(clamp->first) && std::isfinite(clamp->second) && clamp->first < clamp->second))
-    return fail("--clamp needs two finite numbers LO < HI");
-  if (!(max_phase_margin_drop_deg >= 0.0) || !(max_gain_margin_drop_db >= 0.0) || !(min_rate_ratio > 0.0) ||
-      !(unbounded_gain_margin_floor_db >= 0.0) ||
-      !(float_radius_fraction > 0.0 && float_radius_fraction < 1.0))
-    return fail("warning thresholds must be >= 0 (rate ratio > 0, float fraction within (0, 1))");
-  return true;
+    return bad("clamp", "needs two finite numbers LO < HI");
+  if (!(max_phase_margin_drop_deg >= 0.0)) return bad("max_phase_margin_drop_deg", "must be >= 0");
+  if (!(max_gain_margin_drop_db >= 0.0)) return bad("max_gain_margin_drop_db", "must be >= 0");
+  if (!(min_rate_ratio > 0.0)) return bad("min_rate_ratio", "must be > 0");
+  if (!(unbounded_gain_margin_floor_db >= 0.0)) return bad("unbounded_gain_margin_floor_db", "must be >= 0");
+  if (!(float_radius_fraction > 0.0 && float_radius_fraction < 1.0)) return bad("float_radius_fraction", "must be within (0, 1)");
+  return std::nullopt;
+}
+
+bool ExportOptions::IsValid(std::string* error) const {
+  const std::optional<ExportProblem> p = Problem();
+  if (p && error) *error = p->field + " " + p->message;
+  return !p;
 }
 
 namespace {
-
-MetricValue number(const std::optional<double>& v) {
-  MetricValue m;
-  if (v && std::isfinite(*v)) m.value = *v;
-  return m;
-}
-MetricValue infinite() {
-  MetricValue m;
-  m.infinite = true;
-  return m;
-}
 
 std::string fmt(const char* f, double a, double b = 0.0, double c = 0.0) {
   char buf[256];
@@ -48,8 +41,8 @@ std::string fmt(const char* f, double a, double b = 0.0, double c = 0.0) {
   return buf;
 }
 
-// Option name for a message from discretize / the discrete analysis.
-[[noreturn]] void bad(const std::string& option, const std::string& msg) { throw SpecError(option, msg); }
+// A bad export, blamed on the ExportOptions field `field` (see ExportProblem).
+[[noreturn]] void bad(const std::string& field, const std::string& msg) { throw SpecError(field, msg); }
 
 }  // namespace
 
@@ -74,40 +67,24 @@ GainToleranceResult discrete_gain_tolerance(const Zpk& cd, const SampledPlant& s
   });
 }
 
-std::array<MetricValue, kMetricCount> discrete_metric_values(const DiscreteLoopAnalysis& a) {
-  std::array<MetricValue, kMetricCount> v{};
-  auto at = [&](MetricId id) -> MetricValue& { return v[static_cast<size_t>(id)]; };
+MetricValues discrete_metric_values(const DiscreteLoopAnalysis& a) {
+  // The same assignment as the continuous loop's (requirements/evaluate.hpp), from the sampled
+  // loop's figures: poles mapped by s = ln(z) / T, L(e^{jwT}), the discrete error constants, the
+  // step at the sample instants.
+  MetricValues v{};
   double min_damping = INFINITY;
   for (const DiscretePole& p : a.poles)
     if (p.matters) min_damping = std::min(min_damping, p.damping);
-  if (std::isfinite(min_damping)) at(MetricId::DampingRatio).value = min_damping;
-  if (a.dominant) at(MetricId::NaturalFrequency) = number(a.dominant->natural_frequency);
-  const FrequencyMetrics& f = a.frequency;
-  if (a.well_posed) {
-    at(MetricId::PhaseMargin) = f.gain_crossovers_rad_s.empty() ? infinite() : number(f.phase_margin_deg);
-    at(MetricId::GainMargin) = f.critical_gains.empty() ? infinite() : number(f.gain_margin_db);
-    at(MetricId::Crossover) = number(f.crossover_rad_s);
-    at(MetricId::Bandwidth) = number(f.bandwidth_rad_s);
-    at(MetricId::PeakSensitivity) = number(f.peak_sensitivity);
-    at(MetricId::DelayMargin) = delay_margin_value(f);
-  }
+  set_pole_metrics(v, min_damping, a.dominant ? std::optional<double>(a.dominant->natural_frequency) : std::nullopt);
+  if (a.well_posed) set_frequency_metrics(v, a.frequency);
   if (!a.stable) return v;
-  at(MetricId::SteadyStateError) = a.steady_state.error ? number(a.steady_state.error) : infinite();
-  if (a.step) {
-    at(MetricId::Overshoot) = number(a.step->overshoot_pct);
-    at(MetricId::SettlingTime) = number(a.step->settling_time_s);
-    at(MetricId::RiseTime) = number(a.step->rise_time_s);
-    at(MetricId::PeakEffort) = number(a.step->peak_effort);
-  }
+  set_steady_state_metrics(v, a.steady_state);
+  if (a.step) set_step_metrics(v, *a.step);
   return v;
 }
 
 ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o) {
-  std::string err;
-  if (!o.IsValid(&err)) {
-    const std::string option = err.substr(0, err.find(' '));
-    bad(option.rfind("--", 0) == 0 ? option : "--options", err.substr(err.find(' ') + 1));
-  }
+  if (const std::optional<ExportProblem> p = o.Problem()) bad(p->field, p->message);
   ExportReport r;
   r.options = o;
   r.rank = rank;
@@ -124,7 +101,7 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
     r.requirements = spec.requirements;
     r.plants = spec.plants;
     region = region_from_requirements(spec.requirements);
-    for (const Plant& p : spec.plants) check_cancellations(r.continuous, p, "$.compensator");
+    for (const Plant& p : spec.plants) check_cancellations(r.continuous, p, result_compensator_path(in, rank));
     for (const Plant& p : spec.plants) {
       ExportLoop L;
       L.plant_name = p.name;
@@ -144,17 +121,17 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
     if (o.prewarp_rad_s) r.warp_rad_s = *o.prewarp_rad_s;
     else if (!r.loops.empty() && r.loops.front().continuous_eval.frequency.crossover_rad_s)
       r.warp_rad_s = *r.loops.front().continuous_eval.frequency.crossover_rad_s;
-    else if (!in.spec) bad("--prewarp-rad-s", "is needed with --method prewarp for a bare compensator (no spec gives the crossover)");
-    else bad("--prewarp-rad-s", "is needed: the continuous loop has no gain crossover to warp at");
+    else if (!in.spec) bad("prewarp_rad_s", "is needed with the prewarp method for a bare compensator (no spec gives the crossover)");
+    else bad("prewarp_rad_s", "is needed: the continuous loop has no gain crossover to warp at");
     if (!(*r.warp_rad_s * T < M_PI))
-      bad("--sample-time", fmt("is too long: the warp point %.6g rad/s is at or above the Nyquist frequency %.6g rad/s",
+      bad("sample_time_s", fmt("is too long: the warp point %.6g rad/s is at or above the Nyquist frequency %.6g rad/s",
                                *r.warp_rad_s, M_PI / T));
     d.prewarp_rad_s = *r.warp_rad_s;
   }
   try {
     r.discrete = discretize(r.continuous, d);
   } catch (const std::invalid_argument& e) {
-    bad("--sample-time", e.what());
+    bad("sample_time_s", e.what());
   }
   auto finite_zpk = [](const Zpk& z) {
     bool ok = std::isfinite(z.gain);
@@ -163,14 +140,14 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
     return ok;
   };
   if (!finite_zpk(r.discrete))
-    bad("--sample-time", "the discrete compensator overflows at this sample time (a root or the gain is beyond double range)");
+    bad("sample_time_s", "the discrete compensator overflows at this sample time (a root or the gain is beyond double range)");
   r.cascade = biquad_cascade(r.discrete);
   const double limit = o.precision == Precision::Float ? 3.0e38 : 1.0e300;
   bool in_range = std::abs(r.cascade.gain) < limit;
   for (const Biquad& s : r.cascade.sections)
     for (double c : {s.b[0], s.b[1], s.b[2], s.a[1], s.a[2]}) in_range = in_range && std::abs(c) < limit;
   if (!in_range)
-    bad(o.precision == Precision::Float ? "--precision" : "--sample-time",
+    bad(o.precision == Precision::Float ? "precision" : "sample_time_s",
         "a section coefficient or the gain is beyond the range of the chosen precision");
   for (const Biquad& s : r.cascade.sections) r.radii.push_back(section_pole_radius(s));
 
@@ -217,7 +194,7 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
     try {
       L.discrete_eval = analyze_discrete_loop(r.discrete, spec.plants[i], lo);
     } catch (const std::invalid_argument& e) {
-      bad("--sample-time", e.what());
+      bad("sample_time_s", e.what());
     }
     L.discrete = discrete_metric_values(L.discrete_eval);
     if (L.discrete_eval.step_truncated)
@@ -227,7 +204,7 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
     if (spec.requirements.has(MetricId::GainTolerance) && L.discrete_eval.stable) {
       const SampledPlant sp = sample_plant(spec.plants[i], T, o.compute_delay);
       const GainToleranceResult g = discrete_gain_tolerance(r.discrete, sp, region, spec.analysis.residue_share);
-      L.discrete[static_cast<size_t>(MetricId::GainTolerance)].value = g.tolerance_pct;
+      set_gain_tolerance_metric(L.discrete, g.tolerance_pct);
     }
     r.discrete_stable = r.discrete_stable && L.discrete_eval.stable && L.discrete_eval.well_posed;
   }
@@ -235,27 +212,19 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
   for (const Requirement& req : spec.requirements.items) {
     ExportOutcome out;
     out.requirement = req;
+    // The worst case over the plants by the rule check uses (worst_over_plants), for the sampled
+    // loop and for the continuous one it is compared with.
     const size_t m = static_cast<size_t>(req.metric);
-    double worst = -INFINITY, worst_c = -INFINITY;
-    for (size_t i = 0; i < r.loops.size(); ++i) {
-      const MetricValue& dv = r.loops[i].discrete[m];
-      const MetricValue& cv = r.loops[i].continuous[m];
-      double viol = requirement_violation(req, dv);
-      if (!r.loops[i].discrete_eval.stable) viol = std::max(viol, 1e3);
-      const double key = viol > 0.0 ? viol : (dv.infinite ? -1e300 : -requirement_margin(req, *dv.value) * 1e-9);
-      if (key > worst) {
-        worst = key;
-        out.discrete = dv;
-        out.worst_plant = static_cast<int>(i);
-      }
-      const double vc = requirement_violation(req, cv);
-      const double kc = vc > 0.0 ? vc : (cv.infinite ? -1e300 : (cv.value ? -requirement_margin(req, *cv.value) * 1e-9 : 1e3));
-      if (kc > worst_c) {
-        worst_c = kc;
-        out.continuous = cv;
-      }
-    }
-    out.met = worst <= 0.0 && r.discrete_stable;
+    const WorstCase wd = worst_over_plants(req, r.loops.size(), [&](size_t i) {
+      return PlantValue{r.loops[i].discrete[m], r.loops[i].discrete_eval.stable};
+    });
+    const WorstCase wc = worst_over_plants(req, r.loops.size(), [&](size_t i) {
+      return PlantValue{r.loops[i].continuous[m], r.loops[i].continuous_stable};
+    });
+    out.discrete = wd.worst;
+    out.worst_plant = wd.plant;
+    out.continuous = wc.worst;
+    out.met = wd.violation == 0.0 && r.discrete_stable;
     r.all_met = r.all_met && out.met;
     r.outcomes.push_back(out);
   }

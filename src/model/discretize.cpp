@@ -6,7 +6,7 @@
 
 #include <Eigen/Eigenvalues>
 
-#include "polewright/analysis/eigen.hpp"
+#include "polewright/model/eigen.hpp"
 
 namespace pw {
 

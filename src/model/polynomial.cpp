@@ -3,7 +3,7 @@
 #include <algorithm>
 #include <cmath>
 
-#include "polewright/analysis/eigen.hpp"
+#include "polewright/model/eigen.hpp"
 #include "polewright/model/root_accuracy.hpp"
 
 namespace pw {

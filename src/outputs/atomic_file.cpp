@@ -1,4 +1,4 @@
-#include "polewright/outputs/atomic_file.hpp"
+#include "atomic_file.hpp"
 
 #include <fcntl.h>
 #include <sys/stat.h>

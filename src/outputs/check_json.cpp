@@ -5,8 +5,6 @@
 
 namespace pw {
 
-const char* const kToolVersion = "0.1.0";
-
 namespace {
 
 const char* bound_name(Sense s) { return s == Sense::AtMost ? "max" : "min"; }

@@ -3,7 +3,7 @@
 #include "polewright/jobs/check.hpp"
 #include "polewright/outputs/design_output.hpp"
 #include "polewright/outputs/json_values.hpp"
-#include "polewright/outputs/text_table.hpp"
+#include "text_table.hpp"
 
 namespace pw {
 

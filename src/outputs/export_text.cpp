@@ -2,7 +2,7 @@
 
 #include "polewright/outputs/export_output.hpp"
 #include "polewright/outputs/json_values.hpp"
-#include "polewright/outputs/text_table.hpp"
+#include "text_table.hpp"
 
 namespace pw {
 

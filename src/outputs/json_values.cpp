@@ -2,7 +2,8 @@
 
 #include <cmath>
 
-#include "polewright/outputs/text_table.hpp"
+#include "text_table.hpp"
+#include <nlohmann/json.hpp>
 
 namespace pw {
 

@@ -2,8 +2,8 @@
 #include <cmath>
 
 #include "polewright/outputs/report.hpp"
-#include "polewright/outputs/svg_palette.hpp"
-#include "polewright/outputs/svg_plot.hpp"
+#include "svg_palette.hpp"
+#include "svg_plot.hpp"
 #include "report_util.hpp"
 
 namespace pw {

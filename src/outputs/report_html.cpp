@@ -1,8 +1,8 @@
 #include "polewright/outputs/json_values.hpp"
 #include "polewright/outputs/report.hpp"
 #include "polewright/outputs/report_sweep.hpp"
-#include "polewright/outputs/svg_palette.hpp"
-#include "polewright/outputs/svg_text.hpp"
+#include "svg_palette.hpp"
+#include "svg_text.hpp"
 
 namespace pw {
 

@@ -1,7 +1,7 @@
 #include <cmath>
 
 #include "polewright/outputs/report.hpp"
-#include "polewright/outputs/svg_palette.hpp"
+#include "svg_palette.hpp"
 #include "report_util.hpp"
 
 namespace pw {

@@ -3,8 +3,8 @@
 
 #include "polewright/model/pade.hpp"
 #include "polewright/outputs/report.hpp"
-#include "polewright/outputs/svg_palette.hpp"
-#include "polewright/outputs/svg_plot.hpp"
+#include "svg_palette.hpp"
+#include "svg_plot.hpp"
 #include "report_util.hpp"
 
 namespace pw {

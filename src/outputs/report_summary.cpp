@@ -2,7 +2,7 @@
 
 #include "polewright/model/polynomial.hpp"
 #include "polewright/outputs/report.hpp"
-#include "polewright/outputs/svg_palette.hpp"
+#include "svg_palette.hpp"
 #include "report_util.hpp"
 
 namespace pw {

@@ -2,8 +2,9 @@
 #include <cmath>
 
 #include "polewright/outputs/report_sweep.hpp"
-#include "polewright/outputs/svg_palette.hpp"
-#include "polewright/outputs/svg_plot.hpp"
+#include "svg_palette.hpp"
+#include "svg_plot.hpp"
+#include "report_sweep_map.hpp"
 #include "report_util.hpp"
 
 namespace pw {

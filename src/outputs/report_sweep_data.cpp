@@ -7,7 +7,8 @@
 #include <sstream>
 
 #include "polewright/outputs/report_sweep.hpp"
-#include "polewright/outputs/svg_palette.hpp"
+#include "svg_palette.hpp"
+#include "report_sweep_map.hpp"
 #include "polewright/outputs/sweep_store.hpp"
 #include "polewright/requirements/spec.hpp"
 

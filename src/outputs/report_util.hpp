@@ -5,7 +5,7 @@
 #include <string>
 
 #include "polewright/outputs/report.hpp"
-#include "polewright/outputs/svg_text.hpp"
+#include "svg_text.hpp"
 
 namespace pw::report {
 

@@ -4,7 +4,7 @@
 #include "polewright/outputs/design_output.hpp"
 #include "polewright/outputs/json_values.hpp"
 #include "polewright/outputs/retune_output.hpp"
-#include "polewright/outputs/text_table.hpp"
+#include "text_table.hpp"
 
 namespace pw {
 

@@ -1,10 +1,10 @@
-#include "polewright/outputs/svg_axis.hpp"
+#include "svg_axis.hpp"
 
 #include <algorithm>
 #include <cmath>
 #include <limits>
 
-#include "polewright/outputs/svg_text.hpp"
+#include "svg_text.hpp"
 
 namespace pw {
 

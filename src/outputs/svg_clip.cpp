@@ -1,8 +1,8 @@
-#include "polewright/outputs/svg_clip.hpp"
+#include "svg_clip.hpp"
 
 #include <cmath>
 
-#include "polewright/outputs/svg_text.hpp"
+#include "svg_text.hpp"
 
 namespace pw {
 

@@ -1,12 +1,12 @@
-#include "polewright/outputs/svg_map.hpp"
+#include "svg_map.hpp"
 
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <map>
 
-#include "polewright/outputs/svg_palette.hpp"
-#include "polewright/outputs/svg_text.hpp"
+#include "svg_palette.hpp"
+#include "svg_text.hpp"
 
 namespace pw {
 

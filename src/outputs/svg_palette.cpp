@@ -1,4 +1,4 @@
-#include "polewright/outputs/svg_palette.hpp"
+#include "svg_palette.hpp"
 
 namespace pw {
 

@@ -1,10 +1,10 @@
-#include "polewright/outputs/svg_plot.hpp"
+#include "svg_plot.hpp"
 
 #include <cmath>
 #include <sstream>
 
-#include "polewright/outputs/svg_palette.hpp"
-#include "polewright/outputs/svg_text.hpp"
+#include "svg_palette.hpp"
+#include "svg_text.hpp"
 
 namespace pw {
 

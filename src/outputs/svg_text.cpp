@@ -1,4 +1,4 @@
-#include "polewright/outputs/svg_text.hpp"
+#include "svg_text.hpp"
 
 #include <cmath>
 #include <cstdio>

@@ -16,7 +16,7 @@
 #include <sstream>
 #include <stdexcept>
 
-#include "polewright/outputs/atomic_file.hpp"
+#include "atomic_file.hpp"
 #include "polewright/outputs/check_output.hpp"
 #include "polewright/outputs/design_output.hpp"
 #include "polewright/outputs/json_values.hpp"

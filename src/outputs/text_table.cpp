@@ -1,4 +1,4 @@
-#include "polewright/outputs/text_table.hpp"
+#include "text_table.hpp"
 
 #include <algorithm>
 #include <cmath>

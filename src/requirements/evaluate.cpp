@@ -19,6 +19,8 @@ MetricValue infinite() {
   return m;
 }
 
+double limit_scale(const Requirement& r) { return std::abs(r.limit) > 0.0 ? std::abs(r.limit) : 1.0; }
+
 bool needs_any(const RequirementSet& req, std::initializer_list<MetricId> ids) {
   for (MetricId id : ids)
     if (req.has(id)) return true;
@@ -42,6 +44,51 @@ MetricValue delay_margin_value(const FrequencyMetrics& f) {
   return number(dm);
 }
 
+void set_pole_metrics(MetricValues& v, double min_damping, std::optional<double> natural_frequency) {
+  if (std::isfinite(min_damping)) v[static_cast<size_t>(MetricId::DampingRatio)].value = min_damping;
+  if (natural_frequency) v[static_cast<size_t>(MetricId::NaturalFrequency)] = number(natural_frequency);
+}
+
+void set_frequency_metrics(MetricValues& v, const FrequencyMetrics& f) {
+  auto at = [&](MetricId id) -> MetricValue& { return v[static_cast<size_t>(id)]; };
+  at(MetricId::PhaseMargin) = f.gain_crossovers_rad_s.empty() ? infinite() : number(f.phase_margin_deg);
+  at(MetricId::GainMargin) = f.critical_gains.empty() ? infinite() : number(f.gain_margin_db);
+  at(MetricId::Crossover) = number(f.crossover_rad_s);
+  at(MetricId::Bandwidth) = number(f.bandwidth_rad_s);
+  at(MetricId::PeakSensitivity) = number(f.peak_sensitivity);
+  at(MetricId::DelayMargin) = delay_margin_value(f);
+}
+
+void set_steady_state_metrics(MetricValues& v, const SteadyState& s) {
+  v[static_cast<size_t>(MetricId::SteadyStateError)] = s.error ? number(s.error) : infinite();
+}
+
+void set_step_metrics(MetricValues& v, const StepMetrics& s) {
+  auto at = [&](MetricId id) -> MetricValue& { return v[static_cast<size_t>(id)]; };
+  at(MetricId::Overshoot) = number(s.overshoot_pct);
+  at(MetricId::SettlingTime) = number(s.settling_time_s);
+  at(MetricId::RiseTime) = number(s.rise_time_s);
+  at(MetricId::PeakEffort) = number(s.peak_effort);
+}
+
+void set_gain_tolerance_metric(MetricValues& v, double tolerance_pct) {
+  v[static_cast<size_t>(MetricId::GainTolerance)].value = tolerance_pct;
+}
+
+double plant_violation(const Requirement& r, const PlantValue& p) {
+  const double viol = requirement_violation(r, p.value);
+  return p.stable ? viol : std::max(viol, kUnstableViolation);
+}
+
+// The shortfall tie-break separates violations that tie at the unstable floor (or the cap) by how
+// far the figure misses; tanh saturates for shortfalls of many limits, where the first of the tied
+// plants stays the worst.
+double worst_case_key(const Requirement& r, const MetricValue& v, double violation) {
+  if (violation == 0.0) return v.infinite ? kUnboundedMetKey : -requirement_margin(r, *v.value) / limit_scale(r) * kMetMarginWeight;
+  if (v.value) return violation + kShortfallTieBreak * std::tanh(-requirement_margin(r, *v.value) / limit_scale(r));
+  return violation;
+}
+
 LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const RequirementSet& req, const Region& region,
                              const AnalysisOptions& opt, const EvaluationNeeds& needs) {
   LoopEvaluation e;
@@ -62,9 +109,8 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
     if (!e.dominant_pole || p.pole.real() > e.dominant_pole->real()) e.dominant_pole = p.pole;
   }
   auto& v = e.values;
-  auto at = [&](MetricId id) -> MetricValue& { return v[static_cast<size_t>(id)]; };
-  if (std::isfinite(min_damping)) at(MetricId::DampingRatio).value = min_damping;
-  if (e.dominant_pole) at(MetricId::NaturalFrequency).value = std::abs(*e.dominant_pole);
+  set_pole_metrics(v, min_damping,
+                   e.dominant_pole ? std::optional<double>(std::abs(*e.dominant_pole)) : std::nullopt);
 
   const bool all = needs.everything;
   if (!all && !e.stable) return e;  // screening: nothing more to learn from an unstable loop
@@ -74,18 +120,12 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
                                     MetricId::Bandwidth, MetricId::PeakSensitivity, MetricId::DelayMargin});
   if (freq) {
     e.frequency = frequency_metrics(parts.loop_exact, parts.delay_s, opt.frequency);
-    const FrequencyMetrics& f = e.frequency;
-    at(MetricId::PhaseMargin) = f.gain_crossovers_rad_s.empty() ? infinite() : number(f.phase_margin_deg);
-    at(MetricId::GainMargin) = f.critical_gains.empty() ? infinite() : number(f.gain_margin_db);
-    at(MetricId::Crossover) = number(f.crossover_rad_s);
-    at(MetricId::Bandwidth) = number(f.bandwidth_rad_s);
-    at(MetricId::PeakSensitivity) = number(f.peak_sensitivity);
-    at(MetricId::DelayMargin) = delay_margin_value(f);
+    set_frequency_metrics(v, e.frequency);
   }
   if (!e.stable) return e;
 
   e.steady_state = steady_state_error(parts.loop_exact, req.error_signal);
-  at(MetricId::SteadyStateError) = e.steady_state.error ? number(e.steady_state.error) : infinite();
+  set_steady_state_metrics(v, e.steady_state);
 
   bool step = all || needs.step ||
               needs_any(req, {MetricId::Overshoot, MetricId::SettlingTime, MetricId::RiseTime, MetricId::PeakEffort});
@@ -101,10 +141,7 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
     so.band = req.settling_band;
     const double min_h = req.limit(MetricId::SettlingTime, Sense::AtMost).value_or(0.0);
     e.step = step_response(cl, e.poles, so, min_h);
-    at(MetricId::Overshoot) = number(e.step->overshoot_pct);
-    at(MetricId::SettlingTime) = number(e.step->settling_time_s);
-    at(MetricId::RiseTime) = number(e.step->rise_time_s);
-    at(MetricId::PeakEffort) = number(e.step->peak_effort);
+    set_step_metrics(v, *e.step);
   }
   bool tolerance = all || req.has(MetricId::GainTolerance);
   if (!all && tolerance) {
@@ -118,7 +155,7 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
     const auto t = req.limit(MetricId::GainTolerance, Sense::AtLeast);
     e.gain = (!all && t) ? gain_tolerance_screen(parts, region, opt.residue_share, *t / 100.0)
                          : gain_tolerance(parts, region, opt.residue_share);
-    at(MetricId::GainTolerance).value = e.gain.tolerance_pct;
+    set_gain_tolerance_metric(v, e.gain.tolerance_pct);
   }
   return e;
 }
@@ -133,29 +170,17 @@ Evaluation evaluate_all(const Zpk& comp, const std::vector<Plant>& plants, const
   }
   std::vector<double> per_plant(plants.size(), 0.0);
   ev.all_met = ev.all_stable;
+  std::vector<double> viols;
   for (const Requirement& r : req.items) {
+    const size_t m = static_cast<size_t>(r.metric);
+    const WorstCase w = worst_over_plants(
+        r, ev.plants.size(), [&](size_t i) { return PlantValue{ev.plants[i].values[m], ev.plants[i].stable}; }, &viols);
+    for (size_t i = 0; i < viols.size(); ++i) per_plant[i] += viols[i];
     RequirementOutcome o;
     o.requirement = r;
-    double worst_key = -INFINITY;
-    for (size_t i = 0; i < ev.plants.size(); ++i) {
-      const LoopEvaluation& le = ev.plants[i];
-      const MetricValue& mv = le.values[static_cast<size_t>(r.metric)];
-      double viol = requirement_violation(r, mv);
-      if (!le.stable) viol = std::max(viol, 1e3);
-      per_plant[i] += viol;
-      // Rank: larger violation is worse; among met ones, the smaller margin is worse.
-      // Capped violations tie: among them the larger real shortfall is worse.
-      const double scale = std::abs(r.limit) > 0.0 ? std::abs(r.limit) : 1.0;
-      double key = viol;
-      if (viol == 0.0) key = mv.infinite ? -1e300 : -requirement_margin(r, *mv.value) / scale * 1e-6;
-      else if (mv.value) key = viol + 1e-9 * std::tanh(-requirement_margin(r, *mv.value) / scale);
-      if (key > worst_key) {
-        worst_key = key;
-        o.worst = mv;
-        o.worst_plant = static_cast<int>(i);
-        o.violation = viol;
-      }
-    }
+    o.worst = w.worst;
+    o.worst_plant = w.plant;
+    o.violation = w.violation;
     o.met = o.violation == 0.0 && ev.all_stable;
     ev.all_met = ev.all_met && o.met;
     ev.total_violation += o.violation;

@@ -39,6 +39,7 @@ ResultInput parse_result(const json& doc) {
   r.job = job_of(doc);
   if (r.job == "compensator") {
     r.compensators.push_back(read_result_compensator(doc, "$"));
+    r.paths.push_back("$");
     return r;
   }
   if (!doc.contains("spec") || doc["spec"].is_null())
@@ -51,6 +52,7 @@ ResultInput parse_result(const json& doc) {
   if (r.job == "check") {
     if (!doc.contains("compensator")) throw SpecError("$.compensator", "is missing");
     r.compensators.push_back(read_result_compensator(doc["compensator"], "$.compensator"));
+    r.paths.push_back("$.compensator");
     return r;
   }
   if (!doc.contains("candidates") || !doc["candidates"].is_array())
@@ -61,16 +63,23 @@ ResultInput parse_result(const json& doc) {
     if (!cands[i].is_object() || !cands[i].contains("compensator"))
       throw SpecError(path + ".compensator", "is missing");
     r.compensators.push_back(read_result_compensator(cands[i]["compensator"], path + ".compensator"));
+    r.paths.push_back(path + ".compensator");
   }
   return r;
 }
 
-const Zpk& result_compensator(const ResultInput& r, int rank, const std::string& option) {
+const Zpk& result_compensator(const ResultInput& r, int rank) {
   if (r.compensators.empty()) throw SpecError("$.candidates", "is empty: the result holds no compensator");
   if (rank < 1 || rank > static_cast<int>(r.compensators.size()))
-    throw SpecError(option, "is " + std::to_string(rank) + ": the result holds ranks 1 to " +
+    throw SpecError("rank", "is " + std::to_string(rank) + ": the result holds ranks 1 to " +
                                 std::to_string(r.compensators.size()));
   return r.compensators[static_cast<size_t>(rank - 1)];
+}
+
+std::string result_compensator_path(const ResultInput& r, int rank) {
+  result_compensator(r, rank);  // the same range check
+  const size_t i = static_cast<size_t>(rank - 1);
+  return i < r.paths.size() ? r.paths[i] : "$";  // a ResultInput built by hand may carry no paths
 }
 
 }  // namespace pw

@@ -4,8 +4,11 @@
 
 #include <cmath>
 
+#include "polewright/analysis/closed_loop.hpp"
 #include "polewright/analysis/discrete_loop.hpp"
 #include "polewright/model/discretize.hpp"
+#include "polewright/model/eigen.hpp"
+#include "polewright/model/state_space.hpp"
 #include "support/make_zpk.hpp"
 
 using namespace pw;
@@ -165,4 +168,34 @@ TEST_CASE("a dead time of many samples: 91 delayed samples in the loop", "[expor
   CHECK(*fc.phase_margin_deg - *a.frequency.phase_margin_deg == Approx(predicted).epsilon(0.1));
   REQUIRE(a.step);
   CHECK(a.step->final_value == Approx(1.0).epsilon(1e-9));  // PI: no steady-state error
+}
+
+TEST_CASE("the sampled loop is closed by close_loop's interconnection algebra", "[export][discrete_loop]") {
+  // One template closes both loops: on a loop small enough for the fixed-size StateSpace, the
+  // sampled loop's closed-loop poles (dynamic-size path) equal the eigenvalues of close_loop on
+  // the same sampled plant and discrete compensator. Plant 4/(s(s+2)) with a 1.5-sample delay
+  // (whole samples plus a fraction: extra states), lead 4.68 (s+2.9)/(s+5.4) by Tustin at 0.05 s.
+  const double T = 0.05;
+  Zpk g;
+  g.gain = 4;
+  g.poles = {Complex(0, 0), Complex(-2, 0)};
+  Zpk c;
+  c.gain = 4.68;
+  c.zeros = {Complex(-2.9, 0)};
+  c.poles = {Complex(-5.4, 0)};
+  DiscretizeOptions d;
+  d.sample_time_s = T;
+  const Zpk cd = discretize(c, d);
+  const SampledPlant sp = sample_plant(plant_of(g, 1.5 * T), T, 0);
+  for (double k : {0.5, 1.0, 3.0}) {
+    const ClosedLoop fixed = close_loop(realize(cd), sampled_plant_state_space(sp), k);
+    const CVec ev = eigenvalues_balanced(fixed.A);
+    const DiscretePoles dyn = discrete_closed_loop_poles(cd, sp, k, 0.02);
+    REQUIRE(static_cast<size_t>(ev.size()) == dyn.poles.size());
+    for (const DiscretePole& p : dyn.poles) {
+      double nearest = INFINITY;
+      for (int i = 0; i < ev.size(); ++i) nearest = std::min(nearest, std::abs(ev(i) - p.z));
+      CHECK(nearest <= 1e-12 * std::max(1.0, std::abs(p.z)));
+    }
+  }
 }

@@ -1,5 +1,5 @@
 #!/usr/bin/env bash
-# Exit codes and one-line errors of the command line (documented in the README).
+# Exit codes and one-line errors of the command line (documented in docs/manual.md).
 set -u
 bin=$1; src=$2
 tmp=$(mktemp -d); trap 'rm -rf "$tmp"' EXIT
@@ -89,6 +89,17 @@ expect 0 "retune on two threads" -- "$bin" retune "$tmp/tight.json" -o "$tmp/rt2
 cmp -s "$tmp/rt.json" "$tmp/rt2.json" && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: retune JSON differs between 1 and 2 threads"; }
 expect 2 "retune needs a current compensator" -- "$bin" retune "$tmp/nocur.json"
 one_line '$.current: is missing'
+
+# --compensator FILE: an error in that compensator names FILE and its root, not the spec's $.current
+# (a zero at +3 on the unstable plant pole at +3: the cancellation is refused).
+cat >"$tmp/unstable.json" <<'J'
+{ "plant": { "gain": 1, "poles": [3, -1] }, "requirements": { "phase_margin_deg": { "min": 30 } },
+  "current": { "gain": 2, "zeros": [-0.5], "poles": [-10] } }
+J
+echo '{ "gain": 5, "zeros": [3], "poles": [-10] }' >"$tmp/cancels.json"
+expect 2 "cancelling --compensator file" -- "$bin" check "$tmp/unstable.json" --compensator "$tmp/cancels.json"
+one_line "$tmp/cancels.json: \$: compensator zero"
+grep -qF '$.current' "$tmp/err" && { fail=$((fail+1)); echo "FAIL: the error blames the spec's \$.current"; } || pass=$((pass+1))
 
 echo "$pass passed, $fail failed"
 [ "$fail" = 0 ]

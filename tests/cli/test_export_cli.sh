@@ -1,5 +1,5 @@
 #!/usr/bin/env bash
-# Exit codes and one-line errors of `polewright export` (documented in the README).
+# Exit codes and one-line errors of `polewright export` (documented in docs/manual.md).
 set -u
 bin=$1
 tmp=$(mktemp -d); trap 'rm -rf "$tmp"' EXIT
@@ -46,6 +46,12 @@ for t in 0 -0.01 nan NaN inf abc ""; do
   expect 2 "--sample-time '$t'" -- "$bin" export "$tmp/r.json" --sample-time "$t" --format json -o "$tmp/keep.json"
   one_line "--sample-time"; untouched
 done
+# The library names ExportOptions fields; the command line turns them into its options.
+expect 2 "warp point above Nyquist (judged by the library)" -- "$bin" export "$tmp/r.json" --sample-time 0.001 --method prewarp --prewarp-rad-s 5000 --format json -o "$tmp/keep.json"
+one_line "--prewarp-rad-s: must be below the Nyquist frequency pi / T"
+grep -qE 'prewarp_rad_s|sample_time_s' "$tmp/err" && { fail=$((fail+1)); echo "FAIL: a library field name reached the user"; } || pass=$((pass+1))
+expect 2 "rank 2 of a check result (judged by the library)" -- "$bin" export "$tmp/r.json" --rank 2 --sample-time 0.001 --format json -o "$tmp/keep.json"
+one_line ": --rank: is 2: the result holds ranks 1 to 1"
 for k in 0 2 -1 x 1.5; do
   expect 2 "--rank '$k'" -- "$bin" export "$tmp/r.json" --rank "$k" --sample-time 0.001 --format json -o "$tmp/keep.json"
   one_line "--rank"; untouched

@@ -29,6 +29,20 @@ TEST_CASE("an unstable pole cancelled by a compensator zero is an error", "[jobs
   CHECK_NOTHROW(check_cancellations(c, g, "$.current"));
 }
 
+TEST_CASE("run_check blames a cancelling compensator at the path it came from", "[jobs][check]") {
+  // 1/((s - 3)(s + 1)) under a zero at +3: refused, naming the compensator's own path.
+  const Spec spec = parse_spec(nlohmann::json::parse(
+      R"({"plant": {"gain": 1, "poles": [3, -1]}, "requirements": {"phase_margin_deg": {"min": 30}}})"));
+  Zpk c;
+  c.gain = 5;
+  c.zeros = {Complex(3, 0)};
+  c.poles = {Complex(-10, 0)};
+  CHECK_THROWS_WITH(run_check(spec, c), Catch::StartsWith("$.current: compensator zero"));
+  CheckOptions own_file;
+  own_file.compensator_path = "$";
+  CHECK_THROWS_WITH(run_check(spec, c, own_file), Catch::StartsWith("$: compensator zero"));
+}
+
 TEST_CASE("the cancellation test is relative and does not depend on the time unit", "[jobs][check][stress]") {
   // The same loop in seconds and in units 1e4 times faster must be judged alike (scaling s).
   for (double unit : {1e-4, 1.0, 1e4}) {

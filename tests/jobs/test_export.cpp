@@ -37,7 +37,7 @@ bool has_warning(const ExportReport& r, const std::string& part) {
 TEST_CASE("export options are validated", "[export][export_job]") {
   std::string err;
   CHECK(!at(0.0).IsValid(&err));
-  CHECK(err.find("--sample-time") == 0);
+  CHECK(err.find("sample_time_s ") == 0);  // the field, not a command-line option
   CHECK(!at(-1.0).IsValid(&err));
   CHECK(!at(NAN).IsValid(&err));
   ExportOptions o = at(1e-3);
@@ -49,6 +49,109 @@ TEST_CASE("export options are validated", "[export][export_job]") {
   CHECK(!o.IsValid(&err));
   CHECK_THROWS_AS(run_export(lead_result(), 1, at(0.0)), SpecError);
   CHECK_THROWS_AS(run_export(lead_result(), 2, at(1e-3)), SpecError);  // one compensator only
+}
+
+TEST_CASE("export errors name the ExportOptions field to blame, never a command-line option", "[export][export_job]") {
+  auto path_of = [](const ResultInput& in, int rank, const ExportOptions& o) {
+    try {
+      run_export(in, rank, o);
+    } catch (const SpecError& e) {
+      return e.path();
+    }
+    return std::string("(no error)");
+  };
+  CHECK(path_of(lead_result(), 1, at(0.0)) == "sample_time_s");
+  CHECK(path_of(lead_result(), 2, at(1e-3)) == "rank");
+  ExportOptions o = at(1e-3);
+  o.compute_delay = -1;
+  CHECK(path_of(lead_result(), 1, o) == "compute_delay");
+  o = at(1e-3);
+  o.clamp = std::make_pair(1.0, -1.0);
+  CHECK(path_of(lead_result(), 1, o) == "clamp");
+  o = at(1e-3);
+  o.min_rate_ratio = 0.0;
+  CHECK(path_of(lead_result(), 1, o) == "min_rate_ratio");
+  o = at(1e-3);
+  o.float_radius_fraction = 1.0;
+  CHECK(path_of(lead_result(), 1, o) == "float_radius_fraction");
+  // Prewarp with a bare compensator has no crossover to warp at.
+  o = at(1e-2);
+  o.method = DiscreteMethod::Prewarp;
+  CHECK(path_of(parse_result(json{{"gain", 2}, {"zeros", {-1}}, {"poles", {0}}}), 1, o) == "prewarp_rad_s");
+  // Problem() and IsValid agree: the first bad field, then its message.
+  o = at(-1.0);
+  REQUIRE(o.Problem());
+  CHECK(o.Problem()->field == "sample_time_s");
+  std::string err;
+  CHECK(!o.IsValid(&err));
+  CHECK(err == "sample_time_s " + o.Problem()->message);
+  CHECK(!at(1e-3).Problem());
+}
+
+TEST_CASE("a compensator cancelling an unstable plant pole is blamed at its own path in the result", "[export][export_job]") {
+  // Plant 1/((s - 3)(s + 1)); a compensator zero at +3 cancels the unstable pole (refused).
+  const json spec = {{"plant", {{"gain", 1}, {"poles", {3, -1}}}}, {"requirements", {{"phase_margin_deg", {{"min", 30}}}}}};
+  const json good = {{"gain", 20}, {"zeros", {-1}}, {"poles", {-20}}};
+  const json bad = {{"gain", 20}, {"zeros", {3}}, {"poles", {-20}}};
+  const json design = {{"tool", {{"job", "design"}}},
+                       {"spec", spec},
+                       {"candidates", {{{"compensator", good}}, {{"compensator", bad}}}}};
+  const ResultInput in = parse_result(design);
+  CHECK(result_compensator_path(in, 2) == "$.candidates[1].compensator");
+  CHECK_THROWS_WITH(run_export(in, 2, at(1e-3)), Catch::StartsWith("$.candidates[1].compensator: compensator zero"));
+}
+
+TEST_CASE("export's continuous column is check's worst case, and its sampled one uses the same rule", "[export][export_job]") {
+  // One rule for the worst case over the plants (worst_over_plants): the continuous figures export
+  // compares against are exactly what check reports for the same compensator and plants.
+  const json doc = {{"tool", {{"job", "check"}}},
+                    {"spec",
+                     {{"plant", {{"gain", 4}, {"poles", {0, -2}}, {"variants", {{{"gain", 3}}, {{"gain", 6}}}}}},
+                      {"requirements",
+                       {{"phase_margin_deg", {{"min", 45}}}, {"overshoot_pct", {{"max", 25}}}, {"gain_margin_db", {{"min", 6}}},
+                        {"settling_time_s", {{"max", 3}}}}}}},
+                    {"compensator", {{"gain", 4.68}, {"zeros", {-2.9}}, {"poles", {-5.4}}}}};
+  const ResultInput in = parse_result(doc);
+  const ExportReport r = run_export(in, 1, at(0.02));
+  const Spec& spec = *in.spec;
+  const Evaluation ev = evaluate_all(in.compensators[0], spec.plants, spec.requirements,
+                                     region_from_requirements(spec.requirements), spec.analysis);
+  REQUIRE(r.outcomes.size() == ev.outcomes.size());
+  for (size_t k = 0; k < r.outcomes.size(); ++k) {
+    CHECK(r.outcomes[k].continuous.infinite == ev.outcomes[k].worst.infinite);
+    CHECK(r.outcomes[k].continuous.value == ev.outcomes[k].worst.value);  // bit for bit
+    // The sampled worst case is the plant worst_over_plants picks from the sampled figures.
+    const size_t m = static_cast<size_t>(r.outcomes[k].requirement.metric);
+    const WorstCase w = worst_over_plants(r.outcomes[k].requirement, r.loops.size(), [&](size_t i) {
+      return PlantValue{r.loops[i].discrete[m], r.loops[i].discrete_eval.stable};
+    });
+    CHECK(r.outcomes[k].worst_plant == w.plant);
+  }
+}
+
+TEST_CASE("the sampled loop's metrics are assigned by the continuous loop's routines", "[export][export_job]") {
+  // discrete_metric_values on figures copied from a continuous evaluation gives the continuous
+  // values for every metric drawn from them (the pole metrics come from the z-plane poles).
+  const ResultInput in = lead_result();
+  const Spec& spec = *in.spec;
+  const Region region = region_from_requirements(spec.requirements);
+  const LoopEvaluation e = evaluate_loop(in.compensators[0], spec.plants[0], spec.requirements, region, spec.analysis);
+  REQUIRE(e.stable);
+  REQUIRE(e.step);
+  DiscreteLoopAnalysis a;
+  a.well_posed = true;
+  a.stable = true;
+  a.frequency = e.frequency;
+  a.steady_state = e.steady_state;
+  a.step = e.step;
+  const MetricValues v = discrete_metric_values(a);
+  for (MetricId id : {MetricId::PhaseMargin, MetricId::GainMargin, MetricId::Crossover, MetricId::Bandwidth,
+                      MetricId::PeakSensitivity, MetricId::SteadyStateError, MetricId::Overshoot, MetricId::SettlingTime,
+                      MetricId::RiseTime, MetricId::PeakEffort}) {
+    const size_t i = static_cast<size_t>(id);
+    CHECK(v[i].infinite == e.values[i].infinite);
+    CHECK(v[i].value == e.values[i].value);
+  }
 }
 
 TEST_CASE("a fast-sampled export meets what the continuous loop meets", "[export][export_job]") {

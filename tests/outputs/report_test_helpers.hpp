@@ -9,6 +9,8 @@
 #include <string>
 #include <vector>
 
+#include <nlohmann/json.hpp>
+
 #include "polewright/outputs/json_values.hpp"
 
 namespace pw_test_report {

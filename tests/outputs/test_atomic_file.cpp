@@ -6,7 +6,7 @@
 #include <fstream>
 #include <sstream>
 
-#include "polewright/outputs/atomic_file.hpp"
+#include "outputs/atomic_file.hpp"
 
 using namespace pw;
 

@@ -9,6 +9,7 @@
 #include "polewright/outputs/report_sweep.hpp"
 #include "polewright/outputs/sweep_store.hpp"
 #include "polewright/requirements/spec.hpp"
+#include "outputs/report_sweep_map.hpp"
 #include "report_test_helpers.hpp"
 
 using namespace pw;

@@ -2,7 +2,7 @@
 
 #include <cmath>
 
-#include "polewright/outputs/svg_axis.hpp"
+#include "outputs/svg_axis.hpp"
 
 using namespace pw;
 

@@ -2,7 +2,7 @@
 
 #include <cmath>
 
-#include "polewright/outputs/svg_clip.hpp"
+#include "outputs/svg_clip.hpp"
 
 using namespace pw;
 

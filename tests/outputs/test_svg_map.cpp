@@ -3,7 +3,7 @@
 #include <cmath>
 #include <regex>
 
-#include "polewright/outputs/svg_map.hpp"
+#include "outputs/svg_map.hpp"
 
 using namespace pw;
 

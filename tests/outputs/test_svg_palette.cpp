@@ -4,7 +4,7 @@
 #include <set>
 #include <string>
 
-#include "polewright/outputs/svg_palette.hpp"
+#include "outputs/svg_palette.hpp"
 
 using namespace pw;
 

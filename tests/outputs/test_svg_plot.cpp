@@ -3,7 +3,7 @@
 #include <cmath>
 #include <regex>
 
-#include "polewright/outputs/svg_plot.hpp"
+#include "outputs/svg_plot.hpp"
 
 using namespace pw;
 

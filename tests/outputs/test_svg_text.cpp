@@ -3,7 +3,7 @@
 #include <cmath>
 #include <limits>
 
-#include "polewright/outputs/svg_text.hpp"
+#include "outputs/svg_text.hpp"
 
 using namespace pw;
 

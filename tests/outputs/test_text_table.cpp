@@ -1,6 +1,6 @@
 #include <catch2/catch.hpp>
 
-#include "polewright/outputs/text_table.hpp"
+#include "outputs/text_table.hpp"
 
 using namespace pw;
 

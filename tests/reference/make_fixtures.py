@@ -7,7 +7,7 @@ Run with Debian's Python (numpy + scipy from python3-numpy / python3-scipy):
 
 The default output is loops_fixture.json next to this script.  Everything here
 is computed from scratch with numpy/scipy, following the metric definitions of
-README.md ("The spec file", "What the figures mean"); nothing is taken from the
+docs/manual.md ("The spec file", "What the figures mean"); nothing is taken from the
 C++ code.
 
 Loop: unity negative feedback, L(s) = C(s) G(s) exp(-sT); y is the plant
@@ -59,7 +59,7 @@ SCRIPT_REL = "tests/reference/make_fixtures.py"
 
 # --------------------------------------------------------------------------
 # The loops.  Plant and compensator objects are in the spec format of
-# README.md; they are parsed below exactly as written into the fixture.
+# docs/manual.md; they are parsed below exactly as written into the fixture.
 # --------------------------------------------------------------------------
 
 LOOPS = [

@@ -6,7 +6,7 @@ Run with Debian's Python (python3-numpy, python3-scipy):
     /usr/bin/python3 tests/reference/make_stress_fixture.py [-o OUT.json]
 
 The default output is stress_fixture.json next to this script. Nothing here comes from the C++
-code: the loops are defined below in the spec format of README.md and every reference value is
+code: the loops are defined below in the spec format of docs/manual.md and every reference value is
 computed from scratch.
 
 Loop: unity negative feedback, L(s) = C(s) G(s) exp(-sT).

@@ -6,7 +6,7 @@
 Each RESULT.json is the output of `polewright design SPEC -o RESULT.json`.  For every
 candidate with "meets": true, every plant in "plants" (nominal and variants) and every
 requirement key of "requirements", the metric is recomputed here from scratch, following
-README.md ("What the figures mean"), with the numerical building blocks of
+docs/manual.md ("What the figures mean"), with the numerical building blocks of
 make_fixtures.py (exact Pade coefficients, Newton-polished roots, step residues, error
 constants).  Nothing is taken from the C++ code.
 
@@ -20,7 +20,7 @@ constants).  Nothing is taken from the C++ code.
   crossovers of very small or large gains are inside it, extra points at lightly damped
   roots, a linear grid for the delay), crossings refined with brentq; the zero-frequency
   phase crossing of a type-0 loop with L(0) < 0 and the high-frequency limit of a biproper
-  loop count as phase crossovers (README).
+  loop count as phase crossovers (docs/manual.md).
 * damping_ratio / natural_frequency_rad_s: the poles whose step share |c_i| / sum |c_j| is
   at least analysis.residue_share "matter"; gain_tolerance_pct scans the compensator gain
   factor k from 1 outwards in steps of 1 % (then bisection) within [0.01, 100] while the
@@ -552,7 +552,7 @@ def freq_metrics(loop, T0):
             pc.append((wp, 1.0 / abs(v)))
     typ, kconst = mf.loop_type_and_constant(num, den)
     if typ == 0 and kconst < 0.0:
-        pc.append((0.0, 1.0 / abs(kconst)))        # zero-frequency limit (README)
+        pc.append((0.0, 1.0 / abs(kconst)))        # zero-frequency limit (docs/manual.md)
     nt, dt = np.trim_zeros(num, "f"), np.trim_zeros(den, "f")
     if nt.size == dt.size and nt[0] != 0.0:
         linf = nt[0] / dt[0]

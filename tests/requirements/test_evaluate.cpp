@@ -130,3 +130,98 @@ TEST_CASE("delay margin: the smallest over the crossovers; unbounded without one
   CHECK(ev.plants[0].values[static_cast<size_t>(MetricId::DelayMargin)].infinite);
   CHECK(ev.all_met);
 }
+
+namespace {
+MetricValue val(double v) {
+  MetricValue m;
+  m.value = v;
+  return m;
+}
+MetricValue unbounded() {
+  MetricValue m;
+  m.infinite = true;
+  return m;
+}
+WorstCase worst_of(const Requirement& r, const std::vector<PlantValue>& plants, std::vector<double>* viol = nullptr) {
+  return worst_over_plants(r, plants.size(), [&](size_t i) { return plants[i]; }, viol);
+}
+}  // namespace
+
+TEST_CASE("worst_over_plants: the one worst-case rule of check, design, retune and export", "[requirements][evaluate]") {
+  // Hand-worked cases of the documented ranking (requirements/evaluate.hpp).
+  const Requirement os{MetricId::Overshoot, Sense::AtMost, 10.0};     // overshoot <= 10 %
+  const Requirement pm{MetricId::PhaseMargin, Sense::AtLeast, 45.0};  // phase margin >= 45 deg
+  std::vector<double> viol;
+  // The larger violation is worse: 15 % (0.5 of the limit over) beats 12 % (0.2).
+  WorstCase w = worst_of(os, {{val(12.0), true}, {val(15.0), true}, {val(5.0), true}}, &viol);
+  CHECK(w.plant == 1);
+  CHECK(w.violation == Approx(0.5));
+  REQUIRE(viol.size() == 3);
+  CHECK(viol[0] == Approx(0.2));
+  CHECK(viol[2] == 0.0);
+  // All met: the smallest margin is the worst (9 % leaves 1 point, 5 % leaves 5).
+  w = worst_of(os, {{val(5.0), true}, {val(9.0), true}});
+  CHECK(w.plant == 1);
+  CHECK(w.violation == 0.0);
+  // An unstable loop violates by at least kUnstableViolation, even when its figure looks fine.
+  w = worst_of(pm, {{val(40.0), true}, {val(60.0), false}}, &viol);
+  CHECK(w.plant == 1);
+  CHECK(w.violation == kUnstableViolation);
+  CHECK(viol[0] == Approx(5.0 / 45.0));
+  // Violations that tie at the unstable floor: the larger real shortfall is worse (15 % is 0.5 of
+  // the limit over, 12 % only 0.2).
+  w = worst_of(os, {{val(12.0), false}, {val(15.0), false}, {val(13.0), false}});
+  CHECK(w.plant == 1);
+  CHECK(w.violation == kUnstableViolation);
+  // Far beyond the limit the tie-break saturates (tanh = 1): the first of the tied plants stays.
+  w = worst_of(os, {{val(1e6), true}, {val(1e7), true}});
+  CHECK(w.plant == 0);
+  // An unbounded phase margin (no gain crossover) meets and is the best; a missing figure violates.
+  w = worst_of(pm, {{unbounded(), true}, {val(50.0), true}});
+  CHECK(w.plant == 1);
+  w = worst_of(pm, {{val(50.0), true}, {MetricValue{}, true}});
+  CHECK(w.plant == 1);
+  CHECK(w.violation > 0.0);
+  // The tie-breaks never outrank a violation: a met plant's key is below zero, a violated one's above.
+  CHECK(worst_case_key(os, val(9.999), 0.0) < 0.0);
+  CHECK(worst_case_key(os, val(10.001), plant_violation(os, {val(10.001), true})) > 0.0);
+  CHECK(worst_case_key(os, unbounded(), 0.0) == kUnboundedMetKey);
+}
+
+TEST_CASE("metric values are assigned from the analysis figures in one place", "[requirements][evaluate]") {
+  MetricValues v{};
+  auto at = [&](MetricId id) -> const MetricValue& { return v[static_cast<size_t>(id)]; };
+  // No gain or phase crossover: both margins unbounded (infinite), crossover missing.
+  FrequencyMetrics f;
+  set_frequency_metrics(v, f);
+  CHECK(at(MetricId::PhaseMargin).infinite);
+  CHECK(at(MetricId::GainMargin).infinite);
+  CHECK_FALSE(at(MetricId::Crossover).value);
+  f.gain_crossovers_rad_s = {3.0};
+  f.phase_margin_deg = 50.0;
+  f.crossover_rad_s = 3.0;
+  set_frequency_metrics(v, f);
+  CHECK(*at(MetricId::PhaseMargin).value == 50.0);
+  CHECK(*at(MetricId::Crossover).value == 3.0);
+  // A loop with too few integrators for its input has an unbounded steady-state error.
+  SteadyState s;
+  set_steady_state_metrics(v, s);
+  CHECK(at(MetricId::SteadyStateError).infinite);
+  s.error = 0.25;
+  set_steady_state_metrics(v, s);
+  CHECK(*at(MetricId::SteadyStateError).value == 0.25);
+  // Poles: no pole that matters leaves the damping missing; a non-finite figure never gets in.
+  set_pole_metrics(v, INFINITY, std::nullopt);
+  CHECK_FALSE(at(MetricId::DampingRatio).value);
+  set_pole_metrics(v, 0.5, NAN);
+  CHECK(*at(MetricId::DampingRatio).value == 0.5);
+  CHECK_FALSE(at(MetricId::NaturalFrequency).value);
+  StepMetrics st;
+  st.overshoot_pct = 4.3;
+  st.settling_time_s = 1.2;
+  set_step_metrics(v, st);
+  CHECK(*at(MetricId::Overshoot).value == 4.3);
+  CHECK(*at(MetricId::SettlingTime).value == 1.2);
+  set_gain_tolerance_metric(v, 20.0);
+  CHECK(*at(MetricId::GainTolerance).value == 20.0);
+}

@@ -42,6 +42,7 @@ TEST_CASE("a check result reads back with its spec and compensator", "[requireme
   REQUIRE(r.compensators[0].zeros.size() == 1);
   CHECK(r.compensators[0].zeros[0].real() == -15.0);
   CHECK(&result_compensator(r, 1) == &r.compensators[0]);
+  CHECK(result_compensator_path(r, 1) == "$.compensator");
 }
 
 TEST_CASE("a bare compensator object is a result of its own", "[requirements][result_parse]") {
@@ -50,6 +51,7 @@ TEST_CASE("a bare compensator object is a result of its own", "[requirements][re
   CHECK_FALSE(r.spec);
   REQUIRE(r.compensators.size() == 1);
   CHECK(r.compensators[0].poles[0].real() == Approx(-50.0));
+  CHECK(result_compensator_path(r, 1) == "$");
 }
 
 TEST_CASE("bad result files name the field", "[requirements][result_parse]") {
@@ -68,5 +70,7 @@ TEST_CASE("bad result files name the field", "[requirements][result_parse]") {
   CHECK_THROWS_AS(result_compensator(empty, 1), SpecError);
   doc["candidates"] = json::parse(R"([{"compensator": {"gain": 1, "zeros": [], "poles": []}}])");
   const ResultInput one = parse_result(doc);
-  CHECK_THROWS_WITH(result_compensator(one, 2), Catch::StartsWith("--rank: is 2"));
+  CHECK_THROWS_WITH(result_compensator(one, 2), Catch::StartsWith("rank: is 2"));
+  CHECK(result_compensator_path(one, 1) == "$.candidates[0].compensator");
+  CHECK_THROWS_WITH(result_compensator_path(one, 2), Catch::StartsWith("rank: is 2"));
 }

@@ -12,6 +12,10 @@ namespace pw {
 struct CheckOptions {
   LocusOptions locus;       // root-locus tracing of the nominal loop
   bool trace_step = false;  // keep the sampled step responses (reports)
+  // Where the compensator came from, as the JSON path its errors name (a compensator zero that
+  // cancels an unstable plant pole, ...): the spec's current by default; "$" for a compensator
+  // file of its own, "$.candidates[2].compensator" for one read from a result.
+  std::string compensator_path = "$.current";
   bool IsValid(std::string* error) const { return locus.IsValid(error); }
 };
 

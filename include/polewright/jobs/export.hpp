@@ -17,6 +17,13 @@ namespace pw {
 
 enum class Precision { Double, Float };
 
+// What is wrong with an export setting: `field` names the ExportOptions member ("sample_time_s",
+// "prewarp_rad_s", ...) or "rank"; `message` reads after it ("must be a number > 0").
+struct ExportProblem {
+  std::string field;
+  std::string message;
+};
+
 struct ExportOptions {
   double sample_time_s = 0.0;                       // T > 0, required
   DiscreteMethod method = DiscreteMethod::Tustin;   // default Tustin
@@ -36,14 +43,17 @@ struct ExportOptions {
   // by more than this fraction of its distance to the unit circle (or onto or past the circle).
   double float_radius_fraction = 0.5;
 
+  // The first bad setting, if any.
+  std::optional<ExportProblem> Problem() const;
+  // As every options struct: false with "<field> <message>" in *error for a bad setting.
   bool IsValid(std::string* error) const;
 };
 
 // Per plant (nominal first): the continuous and the discrete figures of the loop.
 struct ExportLoop {
   std::string plant_name;
-  std::array<MetricValue, kMetricCount> continuous{};
-  std::array<MetricValue, kMetricCount> discrete{};
+  MetricValues continuous{};
+  MetricValues discrete{};
   bool continuous_stable = false;
   LoopEvaluation continuous_eval;
   DiscreteLoopAnalysis discrete_eval;
@@ -84,10 +94,12 @@ GainToleranceResult discrete_gain_tolerance(const Zpk& cd, const SampledPlant& s
 
 // The figures of a sampled loop as metric values (gain tolerance is left missing: see
 // discrete_gain_tolerance).
-std::array<MetricValue, kMetricCount> discrete_metric_values(const DiscreteLoopAnalysis& a);
+MetricValues discrete_metric_values(const DiscreteLoopAnalysis& a);
 
-// Throws SpecError naming the option ("--sample-time", "--prewarp-rad-s", ...) for bad options
-// or a compensator the method cannot map.
+// Throws SpecError for bad options, a rank outside the result or a compensator the method cannot
+// map; its path is then the ExportProblem field to blame ("sample_time_s", "prewarp_rad_s",
+// "precision", "rank", ...), which a command line maps to its own option names. Errors in the
+// spec or the result name their JSON path.
 ExportReport run_export(const ResultInput& input, int rank, const ExportOptions& options);
 
 }  // namespace pw

@@ -2,7 +2,7 @@
 // transposed: H(z) = gain * prod_i B_i(z^-1) / A_i(z^-1), B_i = b0 + b1 z^-1 + b2 z^-2,
 // A_i = 1 + a1 z^-1 + a2 z^-2.
 //
-// Pairing, ordering and gain rule (stated here and in the README):
+// Pairing, ordering and gain rule (stated here and in docs/manual.md):
 //  * each pole at z = 1 (an integrator) gets a first-order section of its own, so that anti-windup
 //    can freeze exactly that state; each complex pole pair is a section; the remaining real poles
 //    are sorted by radius and paired neighbour with neighbour (an odd one is a first-order section);

@@ -3,13 +3,12 @@
 
 #include <string>
 
-#include <nlohmann/json.hpp>
+#include <nlohmann/json_fwd.hpp>
 
 #include "polewright/jobs/check.hpp"
+#include "polewright/version.hpp"
 
 namespace pw {
-
-extern const char* const kToolVersion;
 
 nlohmann::json region_json(const Region& r);
 // Closed-loop poles with damping, natural frequency, step share and whether they matter.

@@ -4,7 +4,7 @@
 
 #include <optional>
 
-#include <nlohmann/json.hpp>
+#include <nlohmann/json_fwd.hpp>
 
 #include "polewright/model/zpk.hpp"
 #include "polewright/requirements/requirement_set.hpp"

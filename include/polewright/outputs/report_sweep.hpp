@@ -16,7 +16,6 @@
 #include <vector>
 
 #include "polewright/outputs/report.hpp"
-#include "polewright/outputs/svg_map.hpp"
 #include "polewright/requirements/metric.hpp"
 #include "polewright/requirements/sweep_parse.hpp"
 
@@ -65,8 +64,6 @@ SweepReport read_sweep_report(const std::vector<std::string>& dirs, const SweepR
 
 // The points gathered onto (x, y), in ascending (x, y).
 std::vector<SweepCell> sweep_cells(const SweepReport& r);
-// The cells as map points (category, the metric's worst value when finite, feasible = met).
-std::vector<MapPoint> sweep_map_points(const std::vector<SweepCell>& cells);
 
 // The report data of a sweep (job "sweep") and its page.
 ReportData prepare_sweep_report(const std::vector<std::string>& dirs, const SweepReportOptions& options = {});

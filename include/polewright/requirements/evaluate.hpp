@@ -3,6 +3,7 @@
 #pragma once
 
 #include <array>
+#include <cmath>
 #include <functional>
 #include <optional>
 #include <string>
@@ -44,6 +45,22 @@ GainToleranceResult gain_tolerance_scan(const std::function<bool(double)>& ok, d
 GainToleranceResult gain_tolerance_screen(const LoopParts& parts, const Region& region, double residue_share,
                                           double required);
 
+// The metric values of a loop, indexed by MetricId.
+using MetricValues = std::array<MetricValue, kMetricCount>;
+
+// Each metric gets its value from the analysis figures here and only here: the continuous loop of
+// check, design and retune (evaluate_loop) and the sampled loop of export (discrete_metric_values)
+// both go through these, so a new metric is assigned in one place.
+//   poles: the smallest damping ratio among the poles that matter (+inf: none) and the natural
+//   frequency of the dominant one; frequency: margins (infinite when there is no crossover),
+//   crossover, bandwidth, |S| peak; steady state (infinite when the error grows without bound);
+//   step: overshoot, settling time, rise time, peak effort; gain tolerance in percent.
+void set_pole_metrics(MetricValues& v, double min_damping, std::optional<double> natural_frequency);
+void set_frequency_metrics(MetricValues& v, const FrequencyMetrics& f);
+void set_steady_state_metrics(MetricValues& v, const SteadyState& s);
+void set_step_metrics(MetricValues& v, const StepMetrics& s);
+void set_gain_tolerance_metric(MetricValues& v, double tolerance_pct);
+
 struct LoopEvaluation {
   std::string plant_name;
   bool well_posed = true;
@@ -55,7 +72,7 @@ struct LoopEvaluation {
   GainToleranceResult gain;
   bool region_ok = false;                          // every pole that matters inside the region
   std::optional<Complex> dominant_pole;            // slowest-decaying pole that matters
-  std::array<MetricValue, kMetricCount> values{};  // indexed by MetricId
+  MetricValues values{};                           // indexed by MetricId
 };
 
 struct EvaluationNeeds {
@@ -92,6 +109,59 @@ struct Evaluation {
   double total_violation = 0.0;
   int worst_plant = 0;                     // plant with the largest violation sum
 };
+
+// The worst case of one requirement over the plants: the rule check, design, retune and export
+// share. Ranking (larger is worse):
+//   * a larger violation is worse; an unstable loop violates every requirement by at least
+//     kUnstableViolation;
+//   * among violations that tie (capped ones), the larger real shortfall is worse, by a tie-break
+//     of at most kShortfallTieBreak (tanh of the shortfall over the limit's scale);
+//   * among plants that meet it, the smaller margin is worse: the key is -margin / scale times
+//     kMetMarginWeight (below zero, so any violation ranks above it), and an unbounded value that
+//     meets it (an infinite margin) is the best of all (kUnboundedMetKey).
+// Plants are given by count and an accessor: `plant(i)` returns {value, stable} of plant i.
+constexpr double kUnstableViolation = 1e3;
+constexpr double kShortfallTieBreak = 1e-9;
+constexpr double kMetMarginWeight = 1e-6;
+constexpr double kUnboundedMetKey = -1e300;
+
+struct PlantValue {
+  MetricValue value;
+  bool stable = false;
+};
+
+struct WorstCase {
+  MetricValue worst;      // the value of the worst plant
+  int plant = 0;          // its index
+  double violation = 0.0; // its violation (with the unstable floor)
+};
+
+// Violation of r by one plant (requirement_violation, at least kUnstableViolation when unstable).
+double plant_violation(const Requirement& r, const PlantValue& p);
+// The ranking key above for one plant with its violation.
+double worst_case_key(const Requirement& r, const MetricValue& v, double violation);
+
+// `violations`, when given, receives each plant's violation (resized to `count`).
+template <class PlantAt>
+WorstCase worst_over_plants(const Requirement& r, size_t count, const PlantAt& plant,
+                            std::vector<double>* violations = nullptr) {
+  WorstCase w;
+  if (violations) violations->assign(count, 0.0);
+  double worst_key = -INFINITY;
+  for (size_t i = 0; i < count; ++i) {
+    const PlantValue p = plant(i);
+    const double viol = plant_violation(r, p);
+    if (violations) (*violations)[i] = viol;
+    const double key = worst_case_key(r, p.value, viol);
+    if (key > worst_key) {
+      worst_key = key;
+      w.worst = p.value;
+      w.plant = static_cast<int>(i);
+      w.violation = viol;
+    }
+  }
+  return w;
+}
 
 Evaluation evaluate_all(const Zpk& compensator, const std::vector<Plant>& plants, const RequirementSet& req,
                         const Region& region, const AnalysisOptions& options, const EvaluationNeeds& needs = {});

@@ -1,6 +1,7 @@
 // A parsed, validated spec file.
 #pragma once
 
+#include <algorithm>
 #include <optional>
 #include <stdexcept>
 #include <string>
@@ -20,6 +21,11 @@ class SpecError : public std::runtime_error {
   SpecError(std::string path, const std::string& message)
       : std::runtime_error(path + ": " + message), path_(std::move(path)) {}
   const std::string& path() const { return path_; }
+  // What is wrong, without the path in front.
+  std::string message() const {
+    const std::string w = what();
+    return w.substr(std::min(w.size(), path_.size() + 2));
+  }
 
  private:
   std::string path_;

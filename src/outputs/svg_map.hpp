@@ -8,7 +8,7 @@
 #include <string>
 #include <vector>
 
-#include "polewright/outputs/svg_plot.hpp"
+#include "svg_plot.hpp"
 
 namespace pw {
 

@@ -8,8 +8,8 @@
 #include <string>
 #include <vector>
 
-#include "polewright/outputs/svg_axis.hpp"
-#include "polewright/outputs/svg_clip.hpp"
+#include "svg_axis.hpp"
+#include "svg_clip.hpp"
 
 namespace pw {
 

@@ -1,4 +1,4 @@
-#include "polewright/analysis/eigen.hpp"
+#include "polewright/model/eigen.hpp"
 
 #include <unsupported/Eigen/MatrixFunctions>
 

@@ -2,11 +2,11 @@
 
 #include <algorithm>
 
-#include "polewright/analysis/eigen.hpp"
+#include "polewright/model/eigen.hpp"
 
 using namespace pw;
 
-TEST_CASE("balance is a similarity transform that evens row and column norms", "[analysis][eigen]") {
+TEST_CASE("balance is a similarity transform that evens row and column norms", "[model][eigen]") {
   Mat A(3, 3);
   A << 1, 1e6, 0, 1e-6, 2, 1e4, 0, 1e-4, 3;
   Mat B = A;
@@ -17,7 +17,7 @@ TEST_CASE("balance is a similarity transform that evens row and column norms", "
   CHECK(B.cwiseAbs().maxCoeff() < 1e3);
 }
 
-TEST_CASE("eigenvalues of a badly scaled matrix and eigenvectors of the original", "[analysis][eigen]") {
+TEST_CASE("eigenvalues of a badly scaled matrix and eigenvectors of the original", "[model][eigen]") {
   // Companion of (s + 1)(s + 100)(s + 1e4): eigenvalues -1, -100, -1e4 exactly.
   Mat A(3, 3);
   A << -(1 + 100 + 1e4), -(100 + 1e4 + 1e6), -1e6, 1, 0, 0, 0, 1, 0;
@@ -34,7 +34,7 @@ TEST_CASE("eigenvalues of a badly scaled matrix and eigenvectors of the original
   CHECK(r.norm() <= 1e-8 * A.norm() * ed.vectors.norm());
 }
 
-TEST_CASE("dynamic-size overloads: beyond the fixed maximum size", "[analysis][eigen][export]") {
+TEST_CASE("dynamic-size overloads: beyond the fixed maximum size", "[model][eigen][export]") {
   // An upper-triangular 100 x 100 matrix has its diagonal as eigenvalues (closed form); the entries
   // above the diagonal spread over many decades so balancing has work to do.
   const int n = 100;
@@ -59,7 +59,7 @@ TEST_CASE("dynamic-size overloads: beyond the fixed maximum size", "[analysis][e
           1e-8 * ed.vectors.col(i).norm() * A.norm());
 }
 
-TEST_CASE("the zero-order-hold exponential of a first-order system (closed form)", "[analysis][eigen]") {
+TEST_CASE("the zero-order-hold exponential of a first-order system (closed form)", "[model][eigen]") {
   // x' = -a x + b u: over a step h, x -> e^(-a h) x + (b / a)(1 - e^(-a h)) u (closed form).
   Mat A(1, 1);
   A(0, 0) = -3.0;
