@@ -4,15 +4,10 @@
 #include <chrono>
 #include <cmath>
 #include <cstdio>
-#include <random>
-#include <atomic>
-#include <limits>
-#include <condition_variable>
 #include <map>
-#include <set>
-#include <tuple>
-#include <mutex>
+#include <random>
 
+#include "polewright/synthesis/level_scheduler.hpp"
 #include "polewright/synthesis/parallel.hpp"
 #include "polewright/synthesis/problem.hpp"
 #include "polewright/synthesis/seeds.hpp"
@@ -73,11 +68,7 @@ struct StructureSetup {
   long long global_evaluations = 0;
 };
 
-bool better(const DesignScore& a, const DesignScore& b) {
-  if (a.feasible != b.feasible) return a.feasible;
-  if (a.feasible) return a.objective < b.objective;
-  return a.violation < b.violation;
-}
+bool cancelled(const DesignOptions& o) { return o.cancel && o.cancel->load(std::memory_order_relaxed); }
 
 // Distance in the unit cube (max norm), for the diversity rule.
 double unit_distance(const ParamSpace& ps, const std::vector<double>& a, const std::vector<double>& b) {
@@ -128,24 +119,18 @@ StructureSetup prepare(const Structure& s, size_t index, const Spec& spec, const
 
 // Adds the best scored screening points to the starts.
 void add_global_starts(StructureSetup& st, std::vector<PoolEntry>& global, const DesignOptions& o) {
-  std::stable_sort(global.begin(), global.end(), [](const PoolEntry& a, const PoolEntry& b) { return better(a.score, b.score); });
+  std::stable_sort(global.begin(), global.end(), [](const PoolEntry& a, const PoolEntry& b) { return better_score(a.score, b.score); });
   for (size_t i = 0; i < global.size() && static_cast<int>(i) < o.global_starts; ++i)
     st.starts.push_back({global[i].x, global[i].origin});
 }
 
-Candidate verify(const PoolEntry& e, const std::vector<StructureSetup>& setups, const Spec& spec, const Region& region,
+Candidate verify(const PoolEntry& e, const std::vector<StructureSetup>& setups, const Verifier& verifier,
                  Objective objective) {
   const StructureSetup& st = setups[e.structure];
-  Candidate c;
+  Candidate c = verifier.verify(params_to_zpk(st.problem->space(), e.x), objective);
   c.structure = st.structure;
   c.parameters = e.x;
   c.origin = e.origin;
-  c.compensator = params_to_zpk(st.problem->space(), e.x);
-  c.verification = evaluate_all(c.compensator, spec.plants, spec.requirements, region, spec.analysis);
-  c.worst = worst_metrics(c.verification.plants, spec.requirements);
-  c.meets = c.verification.all_met;
-  c.violation = c.verification.total_violation;
-  c.objective = objective_value(objective, c.worst, c.compensator.gain);
   return c;
 }
 
@@ -161,126 +146,68 @@ double metric_score(const Candidate& c, const Requirement& r) {
 DesignReport run_design(const Spec& spec, const DesignOptions& o) {
   const auto t0 = Clock::now();
   auto elapsed = [&] { return std::chrono::duration<double>(Clock::now() - t0).count(); };
+  const Verifier verifier(LoopContext::FromSpec(spec));
+  const LoopContext& ctx = verifier.context();
   DesignReport rep;
   rep.spec_name = spec.name;
   rep.spec_document = spec.document;
-  rep.plants = spec.plants;
-  rep.requirements = spec.requirements;
-  rep.analysis = spec.analysis;
+  rep.plants = ctx.plants;
+  rep.requirements = ctx.requirements;
+  rep.analysis = ctx.analysis;
   rep.objective = o.objective;
-  rep.region = region_from_requirements(spec.requirements);
-  rep.frequency_range = spec.stages.frequency_range_rad_s ? *spec.stages.frequency_range_rad_s
-                                                          : default_frequency_range(spec.plants, rep.region);
+  rep.region = ctx.region;
+  rep.frequency_range = ctx.frequency_range;
   rep.limits = plant_limits(spec.plants, spec.requirements, rep.region, spec.stages);
   rep.summary.seed = o.seed;
   rep.summary.threads = resolve_threads(o.threads);
   const int threads = rep.summary.threads;
 
-  AnalysisOptions screening = AnalysisOptions::Screening(spec.analysis);
+  const AnalysisOptions screening = AnalysisOptions::Screening(spec.analysis);
   const std::vector<Structure> structures = enumerate_structures(spec.stages);
-  // Every structure is one job: prepare, score its screening points, polish its starts. Jobs run in
-  // level order (level = number of stages) from a shared queue. The stopping rule is applied to whole
-  // levels in order and looks only at their results, so the set of results used never depends on the
-  // thread count or on timing; a job of a later level that ran anyway is discarded.
+  // Every structure is one job of the level scheduler (level = number of stages): prepare and score
+  // its screening points, then polish its starts.
   struct Job {
     StructureSetup setup;
     std::vector<LocalResult> results;
-    bool done = false;
     double finished_s = 0.0;
-    std::atomic<bool> cancel{false};  // set when the job's level falls beyond the stop level
   };
   const size_t n_jobs = structures.size();
   std::vector<Job> jobs(n_jobs);
-  std::mutex mutex;
-  int stop_level = std::numeric_limits<int>::max();
-  size_t resolved = 0;  // jobs [0, resolved) belong to levels already judged
   long long feasible_so_far = 0, evaluations_so_far = 0;
   int levels_after_full = -1;
-  std::atomic<bool> out_of_time{false};
-  auto level_of = [&](size_t i) { return structures[i].stage_count(); };
-  // Applies the stopping rule to every level that is complete, in order (called under the mutex).
-  auto judge = [&] {
-    while (resolved < n_jobs && stop_level == std::numeric_limits<int>::max()) {
-      size_t end_of_level = resolved;
-      while (end_of_level < n_jobs && level_of(end_of_level) == level_of(resolved)) ++end_of_level;
-      for (size_t i = resolved; i < end_of_level; ++i)
-        if (!jobs[i].done) return;
-      for (size_t i = resolved; i < end_of_level; ++i) {
-        evaluations_so_far += jobs[i].setup.global_evaluations;
-        for (const LocalResult& r : jobs[i].results) {
-          evaluations_so_far += r.evaluations;
-          feasible_so_far += r.score.feasible;
-        }
-      }
-      const int level = level_of(resolved);
-      resolved = end_of_level;
-      if (levels_after_full < 0 && feasible_so_far >= o.keep) levels_after_full = 0;
-      else if (levels_after_full >= 0) ++levels_after_full;
-      if ((levels_after_full >= 0 && levels_after_full >= o.extra_levels) || evaluations_so_far >= o.max_evaluations) {
-        stop_level = level;
-        for (size_t i = resolved; i < n_jobs; ++i) jobs[i].cancel = true;  // speculative work past the stop
-      }
-    }
+  LevelJobs lj;
+  for (const Structure& s : structures) lj.levels.push_back(s.stage_count());
+  lj.prepare = [&](size_t i, const std::atomic<bool>& cancel) {
+    Job& job = jobs[i];
+    std::vector<PoolEntry> global;
+    job.setup = prepare(structures[i], i, spec, rep.region, rep.frequency_range, screening, o, global);
+    for (PoolEntry& e : global)
+      if (!cancel && !cancelled(o)) e.score = job.setup.problem->score(e.x);
+    add_global_starts(job.setup, global, o);
+    job.results.assign(job.setup.starts.size(), LocalResult{});
+    return job.setup.starts.size();
   };
-  // Tasks: per structure one preparation (seeds, screening points) and then one task per start.
-  // The queue hands out the lowest (level, structure, start) first; tasks of levels past the stop
-  // level are dropped, and running ones are cancelled.
-  using Task = std::tuple<int, size_t, int, size_t>;  // level, job, kind (0 prepare, 1 polish), start
-  std::set<Task> queue;
-  for (size_t i = 0; i < n_jobs; ++i) queue.insert({level_of(i), i, 0, 0});
-  std::vector<int> pending(n_jobs, -1);
-  std::condition_variable wake;
-  int running = 0;
-  parallel_for(static_cast<size_t>(threads), threads, [&](size_t) {
-    std::unique_lock<std::mutex> lock(mutex);
-    for (;;) {
-      while (!queue.empty() && std::get<0>(*queue.begin()) > stop_level) queue.erase(queue.begin());
-      if (queue.empty()) {
-        if (running == 0) {
-          wake.notify_all();
-          return;
-        }
-        wake.wait(lock);
-        continue;
+  lj.run = [&](size_t i, size_t k, const std::atomic<bool>& cancel) {
+    Job& job = jobs[i];
+    job.results[k] = local_search(*job.setup.problem, job.setup.starts[k].x, o.local, &cancel);
+  };
+  lj.job_done = [&](size_t i) { jobs[i].finished_s = elapsed(); };
+  lj.level_done = [&](size_t first, size_t end) {
+    for (size_t i = first; i < end; ++i) {
+      evaluations_so_far += jobs[i].setup.global_evaluations;
+      for (const LocalResult& r : jobs[i].results) {
+        evaluations_so_far += r.evaluations;
+        feasible_so_far += r.score.feasible;
       }
-      const Task task = *queue.begin();
-      queue.erase(queue.begin());
-      ++running;
-      lock.unlock();
-      const size_t i = std::get<1>(task);
-      Job& job = jobs[i];
-      const bool late = elapsed() >= o.time_limit_s;
-      if (late) {
-        out_of_time = true;
-      } else if (std::get<2>(task) == 0) {
-        std::vector<PoolEntry> global;
-        job.setup = prepare(structures[i], i, spec, rep.region, rep.frequency_range, screening, o, global);
-        for (PoolEntry& e : global)
-          if (!job.cancel) e.score = job.setup.problem->score(e.x);
-        add_global_starts(job.setup, global, o);
-        job.results.assign(job.setup.starts.size(), LocalResult{});
-      } else {
-        const size_t k = std::get<3>(task);
-        job.results[k] = local_search(*job.setup.problem, job.setup.starts[k].x, o.local, &job.cancel);
-      }
-      lock.lock();
-      --running;
-      if (!late) {
-        if (std::get<2>(task) == 0) {
-          pending[i] = static_cast<int>(job.setup.starts.size());
-          for (size_t k = 0; k < job.setup.starts.size(); ++k) queue.insert({std::get<0>(task), i, 1, k});
-        } else {
-          --pending[i];
-        }
-        if (pending[i] == 0) {
-          job.done = true;
-          job.finished_s = elapsed();
-          judge();
-        }
-      }
-      wake.notify_all();
     }
-  });
+    if (levels_after_full < 0 && feasible_so_far >= o.keep) levels_after_full = 0;
+    else if (levels_after_full >= 0) ++levels_after_full;
+    return (levels_after_full >= 0 && levels_after_full >= o.extra_levels) || evaluations_so_far >= o.max_evaluations ||
+           cancelled(o);
+  };
+  lj.out_of_time = [&] { return elapsed() >= o.time_limit_s || cancelled(o); };
+  const LevelRun run = run_levels(lj, threads);
+  auto level_of = [&](size_t i) { return structures[i].stage_count(); };
   // The levels used: complete ones up to the stop level.
   std::vector<StructureSetup> setups;
   std::vector<PoolEntry> pool;
@@ -290,9 +217,9 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
     size_t end_of_level = i;
     while (end_of_level < n_jobs && level_of(end_of_level) == level_of(i)) ++end_of_level;
     bool complete = true;
-    for (size_t j = i; j < end_of_level; ++j) complete = complete && jobs[j].done;
+    for (size_t j = i; j < end_of_level; ++j) complete = complete && run.done[j];
     if (!complete) {
-      rep.summary.time_stop = out_of_time;
+      rep.summary.time_stop = run.out_of_time;
       break;
     }
     const size_t first = pool.size();
@@ -313,7 +240,7 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
     level_finished.push_back(finished);
     const int level = level_of(i);
     i = end_of_level;
-    if (level == stop_level) {
+    if (level == run.stop_level) {
       rep.summary.budget_stop = rep.summary.evaluations >= o.max_evaluations && feasible_so_far < o.keep;
       break;
     }
@@ -324,7 +251,7 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
     std::vector<Candidate> out(which.size());
     parallel_for(which.size(), threads, [&](size_t k) {
       const PoolEntry& e = pool[which[k]];
-      out[k] = verify(e, setups, spec, rep.region, o.objective);
+      out[k] = verify(e, setups, verifier, o.objective);
     });
     for (size_t k = 0; k < which.size(); ++k) verified[{pool[which[k]].structure, pool[which[k]].x}] = out[k];
     return out;
@@ -334,7 +261,7 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
     std::vector<size_t> order;
     for (size_t i = level_ranges[l].first; i < level_ranges[l].second; ++i)
       if (pool[i].score.feasible) order.push_back(i);
-    std::stable_sort(order.begin(), order.end(), [&](size_t a, size_t b) { return better(pool[a].score, pool[b].score); });
+    std::stable_sort(order.begin(), order.end(), [&](size_t a, size_t b) { return better_score(pool[a].score, pool[b].score); });
     if (order.size() > 3) order.resize(3);
     const double t_verify = elapsed();
     const std::vector<Candidate> v = verify_cached(order);
@@ -343,7 +270,7 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
   }
 
   // Diverse shortlist by screening score, then full-accuracy verification.
-  std::stable_sort(pool.begin(), pool.end(), [](const PoolEntry& a, const PoolEntry& b) { return better(a.score, b.score); });
+  std::stable_sort(pool.begin(), pool.end(), [](const PoolEntry& a, const PoolEntry& b) { return better_score(a.score, b.score); });
   std::vector<PoolEntry> shortlist;
   for (const PoolEntry& e : pool) {
     bool close = false;
@@ -358,7 +285,7 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
     for (size_t i = 0; i < shortlist.size(); ++i)
       if (!verified.count({shortlist[i].structure, shortlist[i].x})) todo.push_back(i);
     std::vector<Candidate> fresh(todo.size());
-    parallel_for(todo.size(), threads, [&](size_t k) { fresh[k] = verify(shortlist[todo[k]], setups, spec, rep.region, o.objective); });
+    parallel_for(todo.size(), threads, [&](size_t k) { fresh[k] = verify(shortlist[todo[k]], setups, verifier, o.objective); });
     for (size_t k = 0; k < todo.size(); ++k) verified[{shortlist[todo[k]].structure, shortlist[todo[k]].x}] = fresh[k];
     for (size_t i = 0; i < shortlist.size(); ++i) {
       cands[i] = verified.at({shortlist[i].structure, shortlist[i].x});

@@ -1,7 +1,5 @@
 #include "polewright/jobs/retune.hpp"
 
-#include <nlopt.hpp>
-
 #include <algorithm>
 #include <chrono>
 #include <cmath>
@@ -12,6 +10,7 @@
 #include "polewright/synthesis/parallel.hpp"
 #include "polewright/synthesis/parameters.hpp"
 #include "polewright/synthesis/problem.hpp"
+#include "polewright/synthesis/retune_problem.hpp"
 #include "polewright/synthesis/seeds.hpp"
 
 namespace pw {
@@ -44,6 +43,7 @@ namespace {
 
 using Clock = std::chrono::steady_clock;
 
+// The result of one local run, with the change distance it rests on.
 struct Point {
   std::vector<double> x;
   double distance = INFINITY;
@@ -52,95 +52,31 @@ struct Point {
   std::string origin;
 };
 
-// Scores points of one retune space with the screening evaluator.
-struct RetuneProblem {
-  const RetuneSpace* space;
-  const DesignProblem* screen;
-  long long evaluations = 0;
-  Point best;  // feasible with the least distance, else the least violation
-
-  Point score(const std::vector<double>& x) {
-    ++evaluations;
-    const DesignScore s = screen->score_compensator(retune_to_zpk(*space, x));
-    Point p{x, change_distance(*space, x), s.feasible, s.violation, ""};
-    const bool better = best.x.empty() || (p.feasible && !best.feasible) ||
-                        (p.feasible && best.feasible && p.distance < best.distance) ||
-                        (!p.feasible && !best.feasible && p.violation < best.violation);
-    if (better) best = p;
-    return p;
-  }
-};
-
-struct PhaseData {
-  RetuneProblem* problem;
-  double penalty;
-  bool barrier;
-};
-
-double phase_objective(unsigned n, const double* x, double* grad, void* data) {
-  (void)grad;
-  PhaseData* d = static_cast<PhaseData*>(data);
-  const Point p = d->problem->score(std::vector<double>(x, x + n));
-  const double d2 = p.distance * p.distance;
-  if (d->barrier) return p.feasible ? d2 : 1e6 + p.violation;
-  return d2 + d->penalty * p.violation;
+// The local search's options for a retune: feasibility with an exact (L1) penalty on the violation
+// plus the squared distance, a pull back towards the current design, then the squared distance with
+// the requirements as a barrier.
+LocalOptions retune_local_options(const RetuneSpace& rs, const RetuneOptions& o) {
+  LocalOptions lo;
+  lo.feasibility_evaluations = o.evaluations;
+  lo.objective_evaluations = o.evaluations;
+  lo.relative_tolerance = 0.0;
+  lo.absolute_tolerance = 1e-4;
+  lo.absolute_steps = true;  // decades
+  lo.feasibility_step = 0.1;
+  lo.objective_step = 0.02;
+  lo.objective_weight = 1.0;
+  lo.violation_weight = o.penalty;
+  lo.stop_at_feasible = false;
+  lo.anchor = rs.current;
+  return lo;
 }
 
-void run_phase(RetuneProblem& rp, std::vector<double> x, int evals, double step_decades, double penalty, bool barrier) {
-  const RetuneSpace& rs = *rp.space;
-  nlopt::opt opt(nlopt::LN_SBPLX, static_cast<unsigned>(rs.dim()));
-  opt.set_lower_bounds(rs.lower);
-  opt.set_upper_bounds(rs.upper);
-  PhaseData data{&rp, penalty, barrier};
-  opt.set_min_objective(phase_objective, &data);
-  opt.set_maxeval(evals);
-  opt.set_xtol_abs(1e-4);
-  opt.set_initial_step(std::vector<double>(static_cast<size_t>(rs.dim()), step_decades));
-  for (size_t i = 0; i < x.size(); ++i) x[i] = std::clamp(x[i], rs.lower[i], rs.upper[i]);
-  double f = 0.0;
-  try {
-    opt.optimize(x, f);
-  } catch (const std::exception&) {
-    // NLopt throws (roundoff limited, forced stop) even after good points: the problem kept the best.
-  }
-}
-
-// Pulls a feasible point back towards the current design along the segment between them: the
-// least fraction of the step that stays feasible (bisection, 12 steps).
-void pull_back(RetuneProblem& rp, const std::vector<double>& feasible) {
-  const std::vector<double>& x0 = rp.space->current;
-  double lo = 0.0, hi = 1.0;
-  for (int k = 0; k < 12; ++k) {
-    const double t = 0.5 * (lo + hi);
-    std::vector<double> x(x0.size());
-    for (size_t i = 0; i < x.size(); ++i) x[i] = x0[i] + t * (feasible[i] - x0[i]);
-    (rp.score(x).feasible ? hi : lo) = t;
-  }
-}
-
-// One local run: feasibility with an exact (L1) penalty on the violation plus the squared
-// distance, then the squared distance with the requirements as a barrier.
-Point local_retune(const RetuneSpace& rs, const DesignProblem& screen, const std::vector<double>& x0,
+Point local_retune(const RetuneSpace& rs, const CompensatorScorer& screen, const std::vector<double>& x0,
                    const RetuneOptions& o, long long& evaluations) {
-  RetuneProblem rp{&rs, &screen, 0, Point{}};
-  rp.score(x0);
-  if (!rp.best.feasible) run_phase(rp, x0, o.evaluations, 0.1, o.penalty, false);
-  if (rp.best.feasible) {
-    pull_back(rp, rp.best.x);
-    run_phase(rp, rp.best.x, o.evaluations, 0.02, o.penalty, true);
-  }
-  evaluations += rp.evaluations;
-  return rp.best;
-}
-
-Candidate verify(const Zpk& c, const Spec& spec, const Region& region) {
-  Candidate v;
-  v.compensator = c;
-  v.verification = evaluate_all(c, spec.plants, spec.requirements, region, spec.analysis);
-  v.worst = worst_metrics(v.verification.plants, spec.requirements);
-  v.meets = v.verification.all_met;
-  v.violation = v.verification.total_violation;
-  return v;
+  const RetuneProblem problem(rs, screen);
+  const LocalResult r = local_search(problem, x0, retune_local_options(rs, o), o.cancel);
+  evaluations += r.evaluations;
+  return Point{r.x, change_distance(rs, r.x), r.score.feasible, r.score.violation, ""};
 }
 
 std::string requirement_key(const Requirement& r) {
@@ -267,11 +203,11 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
   rep.plants = spec.plants;
   rep.requirements = spec.requirements;
   rep.analysis = spec.analysis;
-  rep.region = region_from_requirements(spec.requirements);
-  rep.frequency_range = spec.stages.frequency_range_rad_s ? *spec.stages.frequency_range_rad_s
-                                                          : default_frequency_range(spec.plants, rep.region);
+  const Verifier verifier(LoopContext::FromSpec(spec));
+  rep.region = verifier.context().region;
+  rep.frequency_range = verifier.context().frequency_range;
   for (const Plant& p : spec.plants) check_cancellations(*spec.current, p, "$.current");
-  rep.current = verify(*spec.current, spec, rep.region);
+  rep.current = verifier.verify(*spec.current);
   rep.current.rank = 0;
   rep.current.origin = "current";
   rep.summary.seed = o.seed;
@@ -283,8 +219,8 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
   }
 
   const AnalysisOptions screening = AnalysisOptions::Screening(spec.analysis);
-  const ParamSpace dummy = make_param_space(Structure{}, rep.frequency_range, -1.0, 1.0, 1.0);
-  const DesignProblem screen(spec.plants, spec.requirements, rep.region, screening, Objective::LeastEffort, dummy);
+  const CompensatorScorer screen(spec.plants, spec.requirements, rep.region, screening, Objective::LeastEffort,
+                                 std::sqrt(rep.frequency_range.first * rep.frequency_range.second));
 
   // Structure levels by added order: the current structure, then one order-1 stage, then a notch.
   std::vector<std::vector<std::vector<AddedStage>>> levels = {{{}}};
@@ -338,10 +274,8 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
     // Screening-feasible points by distance, distinct ones only, then full-accuracy verification.
     std::vector<size_t> order(tasks.size());
     for (size_t i = 0; i < order.size(); ++i) order[i] = i;
-    std::stable_sort(order.begin(), order.end(), [&](size_t a, size_t b) {
-      if (results[a].feasible != results[b].feasible) return results[a].feasible;
-      return results[a].feasible ? results[a].distance < results[b].distance : results[a].violation < results[b].violation;
-    });
+    auto score_of = [&](size_t i) { return DesignScore{results[i].violation, results[i].distance, results[i].feasible}; };
+    std::stable_sort(order.begin(), order.end(), [&](size_t a, size_t b) { return better_score(score_of(a), score_of(b)); });
     std::vector<size_t> picked;
     for (size_t i : order) {
       bool distinct = true;
@@ -359,7 +293,7 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
       const RetuneSpace& rs = spaces[tasks[i].space];
       RetuneCandidate rc;
       rc.added = rs.added;
-      rc.candidate = verify(retune_to_zpk(rs, results[i].x), spec, rep.region);
+      rc.candidate = verifier.verify(retune_to_zpk(rs, results[i].x));
       rc.candidate.parameters = results[i].x;
       rc.candidate.origin = results[i].origin + " (" + structure_label(rs) + ")";
       rc.change_decades = change_distance(rs, results[i].x);

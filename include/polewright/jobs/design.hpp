@@ -2,12 +2,14 @@
 // low-discrepancy starts, NLopt polish, full-accuracy verification, ranking with diversity.
 #pragma once
 
+#include <atomic>
 #include <optional>
 #include <string>
 #include <vector>
 
 #include "polewright/requirements/evaluate.hpp"
 #include "polewright/requirements/spec.hpp"
+#include "polewright/synthesis/candidate.hpp"
 #include "polewright/synthesis/limits.hpp"
 #include "polewright/synthesis/local_search.hpp"
 #include "polewright/synthesis/structure.hpp"
@@ -30,21 +32,11 @@ struct DesignOptions {
   int extra_levels = 0;                   // structure levels searched after the first one that fills `keep`
   bool explain_failure = true;            // binding requirements when nothing meets
   std::optional<Requirement> metric_objective;  // internal: optimise this metric instead (relaxed searches)
+  // When given and set, the search stops at its next check (between tasks and inside every local
+  // search); the result so far is returned.
+  const std::atomic<bool>* cancel = nullptr;
   bool IsValid(std::string* error) const;
   static DesignOptions FromSpec(const Spec& spec);
-};
-
-struct Candidate {
-  int rank = 0;
-  Structure structure;
-  Zpk compensator;
-  std::vector<double> parameters;
-  std::string origin;                  // which start led here
-  Evaluation verification;             // full-accuracy check over every plant
-  std::vector<MetricValue> worst;      // worst case over the plants, per MetricId
-  bool meets = false;
-  double objective = 0.0;
-  double violation = 0.0;
 };
 
 struct BindingRequirement {

@@ -4,6 +4,7 @@
 // first, only when moving the existing ones cannot meet the requirements.
 #pragma once
 
+#include <atomic>
 #include <optional>
 #include <string>
 #include <vector>
@@ -25,6 +26,8 @@ struct RetuneOptions {
   double gain_decades = 2.0;         // how far the gain may move either way
   double penalty = 30.0;             // weight of the violation against the squared distance (phase 1)
   double distinct_decades = 0.02;    // least parameter distance (max norm) between two candidates
+  // When given and set, the search stops at its next check (inside every local search).
+  const std::atomic<bool>* cancel = nullptr;
   bool IsValid(std::string* error) const;
   static RetuneOptions FromSpec(const Spec& spec);
 };
