@@ -7,6 +7,7 @@
 #include <map>
 #include <random>
 
+#include "polewright/synthesis/global_search.hpp"
 #include "polewright/synthesis/level_scheduler.hpp"
 #include "polewright/synthesis/parallel.hpp"
 #include "polewright/synthesis/problem.hpp"
@@ -23,6 +24,7 @@ bool DesignOptions::IsValid(std::string* error) const {
   if (threads < 0) return fail("threads must be >= 0");
   if (max_evaluations < 1) return fail("max_evaluations must be >= 1");
   if (!(time_limit_s > 0.0)) return fail("time_limit_s must be > 0");
+  if (!(budget_s >= 0.0) || budget_s > 1e7) return fail("budget_s must be within 0..1e7");
   if (global_points_base < 0 || global_points_per_dim < 0 || global_starts < 0) return fail("global search sizes must be >= 0");
   if (!(diversity >= 0.0 && diversity < 1.0)) return fail("diversity must be within [0, 1)");
   return local.IsValid(error);
@@ -36,6 +38,7 @@ DesignOptions DesignOptions::FromSpec(const Spec& spec) {
   o.objective = spec.search.objective;
   o.max_evaluations = spec.search.max_evaluations;
   o.time_limit_s = spec.search.time_limit_s;
+  o.budget_s = spec.search.budget_s;
   return o;
 }
 
@@ -47,7 +50,18 @@ std::string DesignSummary::FullReport() const {
                 evaluations, seconds, threads, seed, structures_searched, local_runs,
                 budget_stop ? "; stopped by the evaluation budget" : "", time_stop ? "; stopped by the time limit" : "",
                 first_verified_s ? (std::to_string(*first_verified_s).substr(0, 6) + " s").c_str() : "none");
-  return buf;
+  std::string out = buf;
+  // Only an escalation adds lines, so a design met by the first pass reads as before.
+  if (escalation_budget > 0) {
+    std::snprintf(buf, sizeof buf, "\nescalation: %lld of %lld evaluations spent", escalation_spent, escalation_budget);
+    out += buf;
+    for (const SearchPhase& p : phases) {
+      std::snprintf(buf, sizeof buf, "\n  %-20s %9lld evaluations %5d local run(s) %8.3f s", p.name.c_str(), p.evaluations,
+                    p.local_runs, p.seconds);
+      out += buf;
+    }
+  }
+  return out;
 }
 
 namespace {
@@ -67,6 +81,9 @@ struct StructureSetup {
   std::vector<Seed> starts;
   long long global_evaluations = 0;
 };
+
+// A pool point this close to feasible (total normalised violation) is a near miss worth polishing.
+constexpr double kNearMissViolation = 0.5;
 
 bool cancelled(const DesignOptions& o) { return o.cancel && o.cancel->load(std::memory_order_relaxed); }
 
@@ -132,6 +149,121 @@ Candidate verify(const PoolEntry& e, const std::vector<StructureSetup>& setups, 
   c.parameters = e.x;
   c.origin = e.origin;
   return c;
+}
+
+// Nominal screening evaluations per second of budget on the machine the default was set on (two
+// cores, 2026): the escalation's budget is counted in evaluations so that its outcome does not
+// depend on the machine's speed or load. With a binding plant limit (a bound the requirements
+// exceed, limits.hpp) a tenth of it is spent.
+constexpr double kEvaluationsPerSecond = 5000.0;
+long long escalation_evaluations(double budget_s, bool limited) {
+  return static_cast<long long>(std::llround(budget_s * kEvaluationsPerSecond * (limited ? 0.1 : 1.0)));
+}
+
+// Screening margins per escalation round: every limit tightened by this fraction of its size, so
+// that points on the edge of a bound (screening-feasible, failing the full-accuracy check) are
+// pushed inside. The cycle starts small and returns to none.
+constexpr double kRoundMargins[] = {0.02, 0.05, 0.0, 0.1};
+
+RequirementSet tightened(const RequirementSet& req, double margin) {
+  RequirementSet t = req;
+  for (Requirement& r : t.items) {
+    const double m = margin * std::abs(r.limit);
+    r.limit += r.sense == Sense::AtMost ? -m : m;
+  }
+  return t;
+}
+
+// One escalation round: near misses first (the best pool points, screening-feasible ones that
+// failed the full check and those a small violation away), then fresh low-discrepancy starts per
+// structure, then a global search (NLopt MLSL) per structure; local budgets double every round
+// (up to 16 times the first pass's). Every result is scored again on the true requirements.
+// Returns the evaluations spent; the new points go to `found`.
+long long escalate_round(int round, const std::vector<StructureSetup>& setups, const std::vector<PoolEntry>& pool,
+                         const std::map<std::pair<size_t, std::vector<double>>, Candidate>& verified, const Spec& spec,
+                         const Region& region, const AnalysisOptions& screening, const DesignOptions& o, int threads,
+                         std::vector<PoolEntry>& found, int& runs) {
+  const double margin = kRoundMargins[round % 4];
+  const int scale = std::min(16, 2 << std::min(round, 3));
+  LocalOptions local = o.local;
+  local.feasibility_evaluations *= scale;
+  local.objective_evaluations *= scale;
+  std::vector<std::shared_ptr<DesignProblem>> problems;
+  for (const StructureSetup& st : setups) {
+    problems.push_back(std::make_shared<DesignProblem>(spec.plants, tightened(spec.requirements, margin), region, screening,
+                                                       o.objective, st.problem->space()));
+  }
+  struct Task {
+    int kind = 0;  // 0 polish a near miss, 1 fresh starts, 2 global
+    size_t structure = 0;
+    std::vector<double> x;
+    std::string origin;
+  };
+  std::vector<Task> tasks;
+  const std::string tag = "escalation " + std::to_string(round + 1) + ": ";
+  // Near misses: distinct pool points by screening score, those with a small violation only.
+  std::vector<size_t> order(pool.size());
+  for (size_t i = 0; i < order.size(); ++i) order[i] = i;
+  std::stable_sort(order.begin(), order.end(), [&](size_t a, size_t b) { return better_score(pool[a].score, pool[b].score); });
+  const size_t near_count = static_cast<size_t>(4 + 2 * round);
+  std::vector<size_t> near;
+  for (size_t i : order) {
+    const PoolEntry& e = pool[i];
+    if (!e.score.feasible && e.score.violation > kNearMissViolation) break;
+    bool close = false;
+    for (size_t j : near)
+      if (pool[j].structure == e.structure && unit_distance(setups[e.structure].problem->space(), pool[j].x, e.x) < o.diversity)
+        close = true;
+    if (close) continue;
+    near.push_back(i);
+    tasks.push_back({0, e.structure, e.x, tag + "near miss from " + e.origin});
+    if (near.size() >= near_count) break;
+  }
+  for (size_t s = 0; s < setups.size(); ++s) tasks.push_back({1, s, {}, tag + "fresh starts"});
+  for (size_t s = 0; s < setups.size(); ++s) tasks.push_back({2, s, {}, tag + "global search"});
+  std::vector<std::vector<LocalResult>> results(tasks.size());
+  std::vector<long long> extra(tasks.size(), 0);
+  parallel_for(tasks.size(), threads, [&](size_t t) {
+    const Task& task = tasks[t];
+    const DesignProblem& p = *problems[task.structure];
+    const ParamSpace& ps = p.space();
+    if (task.kind == 0) {
+      results[t].push_back(local_search(p, task.x, local, o.cancel));
+    } else if (task.kind == 1) {
+      // Fresh low-discrepancy points further along the structure's own sequence rotation.
+      std::mt19937_64 rng((o.seed + 7919ULL * static_cast<unsigned long long>(round + 1)) * 0x9E3779B97F4A7C15ULL + task.structure);
+      std::uniform_real_distribution<double> U(0.0, 1.0);
+      std::vector<double> shift(static_cast<size_t>(ps.dim()));
+      for (double& v : shift) v = U(rng);
+      const int n = 2 * (o.global_points_base + o.global_points_per_dim * ps.dim());
+      std::vector<PoolEntry> pts(static_cast<size_t>(n));
+      for (int i = 0; i < n; ++i) {
+        pts[static_cast<size_t>(i)].x = from_unit(ps, halton_point(i, ps.dim(), shift));
+        pts[static_cast<size_t>(i)].score = p.score(pts[static_cast<size_t>(i)].x);
+      }
+      extra[t] += n;
+      std::stable_sort(pts.begin(), pts.end(), [](const PoolEntry& a, const PoolEntry& b) { return better_score(a.score, b.score); });
+      for (int k = 0; k < 2 && k < n; ++k) results[t].push_back(local_search(p, pts[static_cast<size_t>(k)].x, local, o.cancel));
+    } else {
+      GlobalOptions g;
+      g.evaluations = 400 * scale;
+      g.seed = (o.seed * 0x9E3779B97F4A7C15ULL) ^ (static_cast<unsigned long long>(round) << 32) ^ task.structure;
+      const std::vector<double> mid = from_unit(ps, std::vector<double>(static_cast<size_t>(ps.dim()), 0.5));
+      results[t].push_back(global_search(p, mid, g, local, o.cancel));
+    }
+  });
+  long long used = 0;
+  for (size_t t = 0; t < tasks.size(); ++t) {
+    used += extra[t];
+    for (LocalResult& r : results[t]) {
+      used += r.evaluations + 1;
+      runs += 1;
+      const DesignScore truth = setups[tasks[t].structure].problem->score(r.x);
+      found.push_back({tasks[t].structure, r.x, truth, tasks[t].origin});
+    }
+  }
+  (void)verified;
+  return used;
 }
 
 double metric_score(const Candidate& c, const Requirement& r) {
@@ -269,47 +401,88 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
       rep.summary.first_verified_s = level_finished[l] + (elapsed() - t_verify);
   }
 
-  // Diverse shortlist by screening score, then full-accuracy verification.
-  std::stable_sort(pool.begin(), pool.end(), [](const PoolEntry& a, const PoolEntry& b) { return better_score(a.score, b.score); });
-  std::vector<PoolEntry> shortlist;
-  for (const PoolEntry& e : pool) {
-    bool close = false;
-    for (const PoolEntry& s : shortlist)
-      if (s.structure == e.structure && unit_distance(setups[e.structure].problem->space(), s.x, e.x) < o.diversity) close = true;
-    if (!close) shortlist.push_back(e);
-    if (static_cast<int>(shortlist.size()) >= 2 * o.keep) break;
-  }
-  std::vector<Candidate> cands(shortlist.size());
-  {
-    std::vector<size_t> todo;
-    for (size_t i = 0; i < shortlist.size(); ++i)
-      if (!verified.count({shortlist[i].structure, shortlist[i].x})) todo.push_back(i);
-    std::vector<Candidate> fresh(todo.size());
-    parallel_for(todo.size(), threads, [&](size_t k) { fresh[k] = verify(shortlist[todo[k]], setups, verifier, o.objective); });
-    for (size_t k = 0; k < todo.size(); ++k) verified[{shortlist[todo[k]].structure, shortlist[todo[k]].x}] = fresh[k];
-    for (size_t i = 0; i < shortlist.size(); ++i) {
-      cands[i] = verified.at({shortlist[i].structure, shortlist[i].x});
-      cands[i].origin = shortlist[i].origin;
+  // Diverse shortlist by screening score, then full-accuracy verification. After an escalation
+  // round, points already verified and failing go after the others (a screening-feasible point on
+  // the edge of a bound must not crowd out the new ones), verified meeting ones first.
+  auto rank_pool = [&](bool escalated) {
+    if (escalated) {
+      auto group = [&](const PoolEntry& e) {
+        const auto it = verified.find({e.structure, e.x});
+        return it == verified.end() ? 1 : (it->second.meets ? 0 : 2);
+      };
+      std::stable_sort(pool.begin(), pool.end(), [&](const PoolEntry& a, const PoolEntry& b) {
+        const int ga = group(a), gb = group(b);
+        if (ga != gb) return ga < gb;
+        return better_score(a.score, b.score);
+      });
+    } else {
+      std::stable_sort(pool.begin(), pool.end(), [](const PoolEntry& a, const PoolEntry& b) { return better_score(a.score, b.score); });
     }
-  }
-  if (o.metric_objective)
-    for (Candidate& c : cands) c.objective = metric_score(c, *o.metric_objective);
-  std::stable_sort(cands.begin(), cands.end(), [&](const Candidate& a, const Candidate& b) {
-    if (a.meets != b.meets) return a.meets;
-    if (a.meets) {
-      if (o.objective == Objective::Simplest && a.structure.stage_count() != b.structure.stage_count())
-        return a.structure.stage_count() < b.structure.stage_count();
-      return a.objective < b.objective;
+    std::vector<PoolEntry> shortlist;
+    for (const PoolEntry& e : pool) {
+      bool close = false;
+      for (const PoolEntry& s : shortlist)
+        if (s.structure == e.structure && unit_distance(setups[e.structure].problem->space(), s.x, e.x) < o.diversity) close = true;
+      if (!close) shortlist.push_back(e);
+      if (static_cast<int>(shortlist.size()) >= 2 * o.keep) break;
     }
-    return a.violation < b.violation;
-  });
-  // An unstable loop is no candidate while stable ones are there to show.
-  const long stable_count = std::count_if(cands.begin(), cands.end(), [](const Candidate& c) { return c.verification.all_stable; });
-  if (stable_count > 0)
-    cands.erase(std::remove_if(cands.begin(), cands.end(), [](const Candidate& c) { return !c.verification.all_stable; }), cands.end());
-  if (static_cast<int>(cands.size()) > o.keep) cands.resize(static_cast<size_t>(o.keep));
-  for (size_t i = 0; i < cands.size(); ++i) cands[i].rank = static_cast<int>(i) + 1;
-  rep.candidates = std::move(cands);
+    std::vector<Candidate> cands(shortlist.size());
+    {
+      std::vector<size_t> todo;
+      for (size_t i = 0; i < shortlist.size(); ++i)
+        if (!verified.count({shortlist[i].structure, shortlist[i].x})) todo.push_back(i);
+      std::vector<Candidate> fresh(todo.size());
+      parallel_for(todo.size(), threads, [&](size_t k) { fresh[k] = verify(shortlist[todo[k]], setups, verifier, o.objective); });
+      for (size_t k = 0; k < todo.size(); ++k) verified[{shortlist[todo[k]].structure, shortlist[todo[k]].x}] = fresh[k];
+      for (size_t i = 0; i < shortlist.size(); ++i) {
+        cands[i] = verified.at({shortlist[i].structure, shortlist[i].x});
+        cands[i].origin = shortlist[i].origin;
+      }
+    }
+    if (o.metric_objective)
+      for (Candidate& c : cands) c.objective = metric_score(c, *o.metric_objective);
+    std::stable_sort(cands.begin(), cands.end(), [&](const Candidate& a, const Candidate& b) {
+      if (a.meets != b.meets) return a.meets;
+      if (a.meets) {
+        if (o.objective == Objective::Simplest && a.structure.stage_count() != b.structure.stage_count())
+          return a.structure.stage_count() < b.structure.stage_count();
+        return a.objective < b.objective;
+      }
+      return a.violation < b.violation;
+    });
+    // An unstable loop is no candidate while stable ones are there to show.
+    const long stable_count = std::count_if(cands.begin(), cands.end(), [](const Candidate& c) { return c.verification.all_stable; });
+    if (stable_count > 0)
+      cands.erase(std::remove_if(cands.begin(), cands.end(), [](const Candidate& c) { return !c.verification.all_stable; }), cands.end());
+    if (static_cast<int>(cands.size()) > o.keep) cands.resize(static_cast<size_t>(o.keep));
+    for (size_t i = 0; i < cands.size(); ++i) cands[i].rank = static_cast<int>(i) + 1;
+    rep.candidates = std::move(cands);
+  };
+  rank_pool(false);
+  rep.summary.phases.push_back({"first pass", rep.summary.evaluations, rep.summary.local_runs, elapsed()});
+
+  // Escalation: while nothing meets and the budget lasts, rounds of harder search (see
+  // escalate_round). Each round is a fixed set of tasks whose results land in fixed slots, and
+  // the budget is checked between rounds only, so the outcome does not depend on the thread count.
+  if (!rep.met() && !o.metric_objective && o.budget_s > 0.0 && !setups.empty()) {
+    const bool limited = std::any_of(rep.limits.begin(), rep.limits.end(), [](const PlantLimit& l) { return l.binding; });
+    const long long budget = escalation_evaluations(o.budget_s, limited);
+    rep.summary.escalation_budget = budget;
+    long long spent = 0;
+    for (int round = 0; spent < budget && !rep.met() && !cancelled(o) && elapsed() < o.time_limit_s; ++round) {
+      const double t_round = elapsed();
+      std::vector<PoolEntry> found;
+      int runs = 0;
+      const long long used = escalate_round(round, setups, pool, verified, spec, rep.region, screening, o, threads, found, runs);
+      spent += used;
+      rep.summary.evaluations += used;
+      rep.summary.local_runs += runs;
+      for (PoolEntry& e : found) pool.push_back(std::move(e));
+      rank_pool(true);
+      rep.summary.phases.push_back({"escalation round " + std::to_string(round + 1), used, runs, elapsed() - t_round});
+    }
+    rep.summary.escalation_spent = spent;
+  }
   if (!rep.summary.first_verified_s && rep.met()) rep.summary.first_verified_s = elapsed();
 
   // When nothing meets: for each requirement the best candidate misses, the best value reachable

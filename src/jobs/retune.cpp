@@ -28,6 +28,7 @@ bool RetuneOptions::IsValid(std::string* error) const {
   if (!(corner_decades > 0.0) || !(gain_decades > 0.0)) return fail("corner_decades and gain_decades must be > 0");
   if (!(penalty > 0.0)) return fail("penalty must be > 0");
   if (!(distinct_decades >= 0.0)) return fail("distinct_decades must be >= 0");
+  if (!(budget_s >= 0.0) || budget_s > 1e7) return fail("budget_s must be within 0..1e7");
   return true;
 }
 
@@ -36,6 +37,7 @@ RetuneOptions RetuneOptions::FromSpec(const Spec& spec) {
   o.keep = spec.search.keep;
   o.seed = spec.search.seed;
   o.threads = spec.search.threads;
+  o.budget_s = spec.search.budget_s;
   return o;
 }
 

@@ -22,7 +22,12 @@ struct DesignOptions {
   int threads = 0;                        // 0 = all cores; results do not depend on it
   Objective objective = Objective::LeastEffort;
   long long max_evaluations = 200000;     // checked between structure levels (deterministic)
-  double time_limit_s = 30.0;             // checked between structure levels (a safety stop)
+  double time_limit_s = 30.0;             // checked between structure levels and escalation rounds (a safety stop)
+  // Escalation when the first pass has no verified design: rounds of near-miss polish, fresh
+  // starts and global search until a design meets or this budget is spent. The budget is counted
+  // in screening evaluations (budget_s times a nominal rate, see design.cpp), so the same spec,
+  // seed and threads give the same result on any machine; 0 turns the escalation off.
+  double budget_s = 10.0;
   LocalOptions local;
   int global_points_base = 12;            // screening points per structure: base + per_dim * dim
   int global_points_per_dim = 4;
@@ -45,8 +50,19 @@ struct BindingRequirement {
   bool relaxing_meets_the_rest = false;
 };
 
+// What one phase of the search spent.
+struct SearchPhase {
+  std::string name;        // "first pass", "escalation round 1", ...
+  long long evaluations = 0;
+  int local_runs = 0;
+  double seconds = 0.0;
+};
+
 struct DesignSummary {
   long long evaluations = 0;
+  std::vector<SearchPhase> phases;
+  long long escalation_budget = 0;  // evaluations the escalation could spend (0: it did not run)
+  long long escalation_spent = 0;
   double seconds = 0.0;
   std::optional<double> first_verified_s;  // time to the first verified design that meets everything
   int structures_searched = 0;
