@@ -53,7 +53,8 @@ std::string DesignSummary::FullReport() const {
   std::string out = buf;
   // Only an escalation adds lines, so a design met by the first pass reads as before.
   if (escalation_budget > 0) {
-    std::snprintf(buf, sizeof buf, "\nescalation: %lld of %lld evaluations spent", escalation_spent, escalation_budget);
+    std::snprintf(buf, sizeof buf, "\nescalation: %lld of %lld evaluations spent; %s", escalation_spent, escalation_budget,
+                  met ? "a design meets" : "nothing meets after all of this search");
     out += buf;
     for (const SearchPhase& p : phases) {
       std::snprintf(buf, sizeof buf, "\n  %-20s %9lld evaluations %5d local run(s) %8.3f s", p.name.c_str(), p.evaluations,
@@ -488,6 +489,7 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
   // When nothing meets: for each requirement the best candidate misses, the best value reachable
   // when that requirement alone is relaxed (a smaller search over the structures already tried).
   if (!rep.met() && o.explain_failure && !rep.candidates.empty()) {
+    std::vector<Candidate> solutions;
     for (const RequirementOutcome& out : rep.candidates.front().verification.outcomes) {
       if (out.met) continue;
       Spec relaxed = spec;
@@ -504,8 +506,10 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
       BindingRequirement b;
       b.requirement = out.requirement;
       // The best value of the relaxed metric among designs that meet every other requirement: the
-      // relaxed search's top candidate and any candidate already in hand.
-      auto consider = [&](const Evaluation& ev) {
+      // relaxed search's top candidate and every candidate verified so far. A design whose value
+      // meets the limit too is a full solution: it is returned as a candidate.
+      auto consider = [&](const Candidate& c) {
+        const Evaluation& ev = c.verification;
         bool rest = ev.all_stable;
         const RequirementOutcome* mine = nullptr;
         for (const RequirementOutcome& x : ev.outcomes) {
@@ -518,14 +522,46 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
                               (out.requirement.sense == Sense::AtMost ? v < *b.best_value.value : v > *b.best_value.value);
         if (improves) b.best_value = mine->worst;
         b.relaxing_meets_the_rest = true;
+        if (c.meets) solutions.push_back(c);
       };
-      if (!rr.candidates.empty())
-        consider(evaluate_all(rr.candidates.front().compensator, spec.plants, spec.requirements, rep.region, spec.analysis));
-      for (const Candidate& c : rep.candidates) consider(c.verification);
+      if (!rr.candidates.empty()) {
+        const Candidate& top = rr.candidates.front();
+        Candidate c = verifier.verify(top.compensator, o.objective);
+        c.structure = top.structure;
+        c.parameters = top.parameters;
+        c.origin = top.origin + " (search with " + metric_info(out.requirement.metric).key + " relaxed)";
+        consider(c);
+      }
+      for (const Candidate& c : rep.candidates) consider(c);
+      for (const auto& kv : verified) consider(kv.second);
       rep.summary.evaluations += rr.summary.evaluations;
+      rep.summary.phases.push_back({std::string("relaxed ") + metric_info(out.requirement.metric).key, rr.summary.evaluations,
+                                    rr.summary.local_runs, rr.summary.seconds});
       rep.binding.push_back(b);
     }
+    // A design found on the way that meets everything: the spec is met after all.
+    if (!solutions.empty()) {
+      std::vector<Candidate> all = solutions;
+      for (const Candidate& c : rep.candidates) all.push_back(c);
+      std::stable_sort(all.begin(), all.end(), [](const Candidate& a, const Candidate& b) {
+        if (a.meets != b.meets) return a.meets;
+        return a.meets ? a.objective < b.objective : a.violation < b.violation;
+      });
+      std::vector<Candidate> kept;
+      for (const Candidate& c : all) {
+        bool dup = false;
+        for (const Candidate& k : kept) dup = dup || (k.structure == c.structure && k.compensator.gain == c.compensator.gain &&
+                                                      k.parameters == c.parameters);
+        if (!dup) kept.push_back(c);
+      }
+      if (static_cast<int>(kept.size()) > o.keep) kept.resize(static_cast<size_t>(o.keep));
+      for (size_t i = 0; i < kept.size(); ++i) kept[i].rank = static_cast<int>(i) + 1;
+      rep.candidates = std::move(kept);
+      rep.binding.clear();
+      if (!rep.summary.first_verified_s) rep.summary.first_verified_s = elapsed();
+    }
   }
+  rep.summary.met = rep.met();
   rep.summary.seconds = elapsed();
   return rep;
 }

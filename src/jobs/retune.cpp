@@ -192,6 +192,78 @@ std::string structure_label(const RetuneSpace& rs) {
   return s;
 }
 
+// Retune's escalation: a design of the spec (with its own escalation) gives verified candidates;
+// those of the current design's structure (the same kinds of factors, retune_params_of) start a
+// local search that pulls them back towards the current design and then shortens the change with
+// the requirements as a barrier (twice the first pass's budget). Each design candidate is also kept
+// as it is, so retune never ends worse than design in the same structure.
+std::vector<RetuneCandidate> from_design(const Spec& spec, const RetuneOptions& o, const Verifier& verifier,
+                                         const CompensatorScorer& screen, RetuneReport& rep) {
+  DesignOptions d = DesignOptions::FromSpec(spec);
+  d.seed = o.seed;
+  d.threads = o.threads;
+  d.budget_s = o.budget_s;
+  d.keep = 10;
+  d.explain_failure = false;
+  d.cancel = o.cancel;
+  const DesignReport dr = run_design(spec, d);
+  rep.summary.evaluations += dr.summary.evaluations;
+  rep.summary.local_runs += dr.summary.local_runs;
+  struct Start {
+    RetuneSpace space;
+    std::vector<double> x;
+    std::string origin;
+  };
+  std::vector<Start> starts;
+  for (const Candidate& c : dr.candidates) {
+    if (!c.meets) continue;
+    RetuneSpace rs = make_retune_space(*spec.current, rep.frequency_range, {}, o.corner_decades, o.gain_decades);
+    std::vector<double> x;
+    if (retune_params_of(rs, c.compensator, &x)) starts.push_back({rs, x, "design rank " + std::to_string(c.rank)});
+  }
+  RetuneOptions wide = o;
+  wide.evaluations = 2 * o.evaluations;
+  std::vector<Point> results(starts.size());
+  std::vector<long long> evals(starts.size(), 0);
+  parallel_for(starts.size(), rep.summary.threads, [&](size_t i) {
+    results[i] = local_retune(starts[i].space, screen, starts[i].x, wide, evals[i]);
+  });
+  for (long long e : evals) rep.summary.evaluations += e;
+  rep.summary.local_runs += static_cast<int>(starts.size());
+  // Both the pulled-back point and the design point itself, verified.
+  std::vector<std::pair<size_t, std::vector<double>>> points;
+  for (size_t i = 0; i < starts.size(); ++i) {
+    points.push_back({i, results[i].x});
+    points.push_back({i, starts[i].x});
+  }
+  std::vector<RetuneCandidate> out(points.size());
+  parallel_for(points.size(), rep.summary.threads, [&](size_t k) {
+    const Start& st = starts[points[k].first];
+    const std::vector<double>& x = points[k].second;
+    RetuneCandidate rc;
+    rc.candidate = verifier.verify(retune_to_zpk(st.space, x));
+    rc.candidate.parameters = x;
+    rc.candidate.origin = st.origin + (k % 2 == 0 ? " pulled back towards the current design" : " as designed") + " (current)";
+    rc.change_decades = change_distance(st.space, x);
+    rc.response_change = response_distance(rc.candidate.compensator, *spec.current, rep.frequency_range);
+    rc.changes = change_list(st.space, x, spec, rep.region, rep.current);
+    out[k] = rc;
+  });
+  // Distinct ones only (a pull back that did not move duplicates its start).
+  std::vector<RetuneCandidate> distinct;
+  for (const RetuneCandidate& c : out) {
+    bool same = false;
+    for (const RetuneCandidate& d2 : distinct) {
+      double dist = 0.0;
+      for (size_t i = 0; i < c.candidate.parameters.size(); ++i)
+        dist = std::max(dist, std::abs(c.candidate.parameters[i] - d2.candidate.parameters[i]));
+      same = same || dist <= o.distinct_decades;
+    }
+    if (!same) distinct.push_back(c);
+  }
+  return distinct;
+}
+
 }  // namespace
 
 RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
@@ -304,7 +376,14 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
       level_found[k] = rc;
     });
     found.insert(found.end(), level_found.begin(), level_found.end());
-    const bool any_meets = std::any_of(found.begin(), found.end(), [](const RetuneCandidate& c) { return c.candidate.meets; });
+    bool any_meets = std::any_of(found.begin(), found.end(), [](const RetuneCandidate& c) { return c.candidate.meets; });
+    // Escalation in the current structure (before any stage is added): design's verified
+    // candidates of the same structure, each pulled back towards the current design.
+    if (!any_meets && &level == &levels.front() && o.budget_s > 0.0 && !(o.cancel && o.cancel->load())) {
+      const std::vector<RetuneCandidate> more = from_design(spec, o, verifier, screen, rep);
+      found.insert(found.end(), more.begin(), more.end());
+      any_meets = std::any_of(found.begin(), found.end(), [](const RetuneCandidate& c) { return c.candidate.meets; });
+    }
     if (any_meets) break;
   }
   // Meeting candidates first, then the fewest added stages, then the smallest change.

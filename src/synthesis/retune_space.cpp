@@ -173,6 +173,72 @@ Zpk retune_to_zpk(const RetuneSpace& rs, const std::vector<double>& xin) {
   return z;
 }
 
+bool retune_params_of(RetuneSpace& rs, const Zpk& z, std::vector<double>* out) {
+  if (!rs.added.empty() || rs.factors.empty()) return false;
+  const double scale = zpk_frequency_scale(z);
+  // The roots of each kind, by magnitude (pairs: the upper root).
+  std::vector<Complex> roots[6];  // RealZero, RealPole, ZeroPair, PolePair, OriginZero, OriginPole
+  auto kind_index = [](FactorKind k) {
+    switch (k) {
+      case FactorKind::RealZero: return 0;
+      case FactorKind::RealPole: return 1;
+      case FactorKind::ZeroPair: return 2;
+      case FactorKind::PolePair: return 3;
+      case FactorKind::OriginZero: return 4;
+      case FactorKind::OriginPole: return 5;
+      default: return -1;
+    }
+  };
+  for (int zeros = 1; zeros >= 0; --zeros)
+    for (const Complex& r : zeros ? z.zeros : z.poles) {
+      if (at_origin(r, scale)) roots[zeros ? 4 : 5].push_back(r);
+      else if (is_real(r)) roots[zeros ? 0 : 1].push_back(Complex(r.real(), 0.0));
+      else if (r.imag() > 0.0) roots[zeros ? 2 : 3].push_back(r);
+    }
+  for (auto& v : roots) std::stable_sort(v.begin(), v.end(), [](Complex a, Complex b) { return std::abs(a) < std::abs(b); });
+  std::vector<Complex> wanted[6];
+  for (const Factor& f : rs.factors) {
+    const int k = kind_index(f.kind);
+    if (k >= 0) wanted[k].push_back(f.root);
+  }
+  for (int k = 0; k < 6; ++k)
+    if (wanted[k].size() != roots[k].size()) return false;
+  std::vector<double> x(rs.current);
+  const double K = bode_gain(z);
+  if (!(K != 0.0) || !std::isfinite(K) || (K < 0.0) != (rs.factors[0].sign < 0.0)) return false;
+  x[0] = std::log10(std::abs(K));
+  size_t used[6] = {0, 0, 0, 0, 0, 0};
+  std::vector<std::pair<size_t, Complex>> order[6];  // factor index by magnitude of its current root
+  for (size_t i = 0; i < rs.factors.size(); ++i) {
+    const int k = kind_index(rs.factors[i].kind);
+    if (k >= 0) order[k].push_back({i, rs.factors[i].root});
+  }
+  for (auto& v : order)
+    std::stable_sort(v.begin(), v.end(), [](const std::pair<size_t, Complex>& a, const std::pair<size_t, Complex>& b) {
+      return std::abs(a.second) < std::abs(b.second);
+    });
+  for (int k = 0; k < 4; ++k)
+    for (const auto& fi : order[k]) {
+      const Factor& f = rs.factors[fi.first];
+      const Complex r = roots[k][used[k]++];
+      if (k < 2) {
+        if ((r.real() < 0.0 ? 1.0 : -1.0) != f.sign) return false;
+        x[static_cast<size_t>(f.first_param)] = std::log10(std::abs(r.real()));
+      } else {
+        const double wn = std::abs(r), zeta = -r.real() / wn;
+        if ((zeta < 0.0 ? -1.0 : 1.0) != f.sign || std::abs(zeta) >= 1.0) return false;
+        x[static_cast<size_t>(f.first_param)] = std::log10(wn);
+        x[static_cast<size_t>(f.first_param) + 1] = std::log10(std::max(std::abs(zeta), 1e-6));
+      }
+    }
+  for (size_t i = 0; i < x.size(); ++i) {
+    rs.lower[i] = std::min(rs.lower[i], x[i]);
+    rs.upper[i] = std::max(rs.upper[i], x[i]);
+  }
+  *out = x;
+  return true;
+}
+
 double change_distance(const RetuneSpace& rs, const std::vector<double>& x) {
   double sum = 0.0;
   for (int i = 0; i < rs.base_dim; ++i) {

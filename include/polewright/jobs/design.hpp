@@ -63,6 +63,7 @@ struct DesignSummary {
   std::vector<SearchPhase> phases;
   long long escalation_budget = 0;  // evaluations the escalation could spend (0: it did not run)
   long long escalation_spent = 0;
+  bool met = false;                 // the search ended with a design that meets everything
   double seconds = 0.0;
   std::optional<double> first_verified_s;  // time to the first verified design that meets everything
   int structures_searched = 0;

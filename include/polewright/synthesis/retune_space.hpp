@@ -57,6 +57,12 @@ RetuneSpace make_retune_space(const Zpk& current, std::pair<double, double> rang
 
 Zpk retune_to_zpk(const RetuneSpace& rs, const std::vector<double>& x);
 
+// The parameters of `z` in the space of the current design's factors (no added stages): every
+// factor kind (real zeros, zero pairs, real poles, pole pairs, roots at the origin) must come in the
+// same number, with the same signs; roots are matched to the factors of their kind in order of
+// magnitude. The bounds of `rs` are widened to hold the point. False when the structures differ.
+bool retune_params_of(RetuneSpace& rs, const Zpk& z, std::vector<double>* x);
+
 // Low-frequency (Bode-form) gain of a compensator: see the file comment.
 double bode_gain(const Zpk& z);
 
