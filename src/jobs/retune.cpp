@@ -171,7 +171,7 @@ std::vector<ParameterChange> change_list(const RetuneSpace& rs, const std::vecto
   // Added stages: their roots are new.
   int p = rs.base_dim;
   for (AddedStage s : rs.added) {
-    const int dim = s == AddedStage::FirstOrder ? 2 : (s == AddedStage::Notch ? 3 : 1);
+    const int dim = added_stage_parameters(s);
     const std::string why = driver(p, dim);
     RetuneSpace single = make_retune_space(Zpk{{}, {}, 1.0}, rs.range, {s});
     std::vector<double> sx(1, 0.0);

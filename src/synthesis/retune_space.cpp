@@ -9,7 +9,7 @@ namespace pw {
 namespace {
 
 constexpr double kZetaMax = 0.999;  // a pair stays a pair
-constexpr double kRatioMax = 50.0;  // added first-order stage: p / z up to this (common practice)
+constexpr double kRatioMax = kStageRatioMax;  // added first-order stage: p / z up to this
 
 bool at_origin(Complex r, double scale) { return std::abs(r) <= 1e-12 * scale; }
 bool is_real(Complex r) { return std::abs(r.imag()) <= 1e-12 * std::abs(r); }
@@ -48,7 +48,7 @@ Zpk added_stage_zpk(AddedStage kind, const double* p) {
   return z;
 }
 
-int added_dim(AddedStage s) { return s == AddedStage::FirstOrder ? 2 : (s == AddedStage::Notch ? 3 : 1); }
+int added_dim(AddedStage s) { return added_stage_parameters(s); }
 
 double stage_rms_decades(const Zpk& stage, std::pair<double, double> range) {
   const int n = 60;
@@ -72,7 +72,18 @@ const char* added_stage_name(AddedStage s) {
   return "?";
 }
 
-int added_stage_order(AddedStage s) { return s == AddedStage::Notch ? 2 : 1; }
+StageKind added_stage_kind(AddedStage s) {
+  switch (s) {
+    case AddedStage::FirstOrder: return StageKind::Lead;
+    case AddedStage::Notch: return StageKind::Notch;
+    case AddedStage::Integrator: return StageKind::Integrator;
+  }
+  return StageKind::Lead;
+}
+
+int added_stage_parameters(AddedStage s) { return stage_facts(added_stage_kind(s)).parameters; }
+
+int added_stage_order(AddedStage s) { return stage_facts(added_stage_kind(s)).order; }
 
 double bode_gain(const Zpk& z) {
   const double scale = zpk_frequency_scale(z);
@@ -128,8 +139,8 @@ RetuneSpace make_retune_space(const Zpk& current, std::pair<double, double> rang
       push(rs, tag + " ratio", 0.0, -std::log10(kRatioMax), std::log10(kRatioMax));
     } else if (s == AddedStage::Notch) {
       push(rs, tag + " centre", mid, llo, lhi);
-      push(rs, tag + " depth", 0.0, std::log10(0.003), 0.0);
-      push(rs, tag + " width", std::log10(0.3), std::log10(0.08), 0.0);
+      push(rs, tag + " depth", 0.0, std::log10(kNotchDepthMin), 0.0);
+      push(rs, tag + " width", std::log10(0.3), std::log10(kNotchWidthMin), 0.0);
     } else {
       push(rs, tag + " corner", llo, llo, lhi);
     }

@@ -21,6 +21,7 @@
 #include <vector>
 
 #include "polewright/model/zpk.hpp"
+#include "polewright/synthesis/structure.hpp"
 
 namespace pw {
 
@@ -29,6 +30,11 @@ enum class AddedStage { FirstOrder, Notch, Integrator };
 const char* added_stage_name(AddedStage s);
 // Order an added stage adds to the compensator.
 int added_stage_order(AddedStage s);
+// The design stage whose facts (structure.hpp's table) an added stage shares: a first-order stage
+// is a lead or a lag (both have the same facts).
+StageKind added_stage_kind(AddedStage s);
+// Parameters of an added stage (the table's count).
+int added_stage_parameters(AddedStage s);
 
 struct Factor {
   FactorKind kind = FactorKind::Gain;
