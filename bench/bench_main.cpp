@@ -6,16 +6,18 @@
 int bench_evaluate(int argc, char** argv);
 int bench_design(int argc, char** argv);
 int bench_sweep(int argc, char** argv);
+int bench_planted(int argc, char** argv);
 
 int main(int argc, char** argv) {
   if (argc < 2 || std::strcmp(argv[1], "--help") == 0) {
-    std::printf("usage: polewright-bench evaluate [--seconds S | --count N] [--seed N]\n       polewright-bench design [SPEC...]\n       polewright-bench sweep [--points N]\n");
+    std::printf("usage: polewright-bench evaluate [--seconds S | --count N] [--seed N]\n       polewright-bench design [SPEC...]\n       polewright-bench sweep [--points N]\n       polewright-bench planted [--count N] [--seed S] [--slack F] [--threads T] [--budget-s B] [--verbose]\n");
     return argc < 2 ? 2 : 0;
   }
   const std::string what = argv[1];
   if (what == "evaluate") return bench_evaluate(argc - 1, argv + 1);
   if (what == "design") return bench_design(argc - 1, argv + 1);
   if (what == "sweep") return bench_sweep(argc - 1, argv + 1);
+  if (what == "planted") return bench_planted(argc - 1, argv + 1);
   std::fprintf(stderr, "polewright-bench: unknown benchmark '%s'\n", what.c_str());
   return 2;
 }

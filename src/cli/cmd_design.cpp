@@ -15,6 +15,7 @@ void register_design(CLI::App& app) {
     bool json = false, timing = false;
     int keep = -1, threads = -1;
     long long seed = -1;
+    double budget_s = -1.0;
   };
   auto a = std::make_shared<Args>();
   cmd->add_option("SPEC", a->spec, "spec file (JSON)")->required();
@@ -25,6 +26,9 @@ void register_design(CLI::App& app) {
                                        "JSON is byte-identical for the same spec and seed on any thread count)");
   cmd->add_option("--keep", a->keep, "number of candidates (overrides search.keep)")->check(CLI::Range(1, 100));
   cmd->add_option("--seed", a->seed, "seed of the low-discrepancy starts (overrides search.seed)")->check(CLI::NonNegativeNumber);
+  cmd->add_option("--budget-s", a->budget_s, "escalation budget when the first pass meets nothing, seconds at a nominal "
+                                             "evaluation rate (counted in evaluations: deterministic; 0 = none; overrides search.budget_s)")
+      ->check(CLI::Range(0.0, 1e7));
   cmd->add_option("--threads", a->threads, "worker threads, 0 = all cores (overrides search.threads)")->check(CLI::Range(0, 1024));
   cmd->add_option("--objective", a->objective, "least_effort, fastest, most_robust or simplest (overrides search.objective)")
       ->check(CLI::IsMember({"least_effort", "fastest", "most_robust", "simplest"}));
@@ -36,6 +40,7 @@ void register_design(CLI::App& app) {
         if (a->keep > 0) o.keep = a->keep;
         if (a->threads >= 0) o.threads = a->threads;
         if (a->seed >= 0) o.seed = static_cast<unsigned long long>(a->seed);
+        if (a->budget_s >= 0.0) o.budget_s = a->budget_s;
         for (Objective ob : {Objective::LeastEffort, Objective::Fastest, Objective::MostRobust, Objective::Simplest})
           if (a->objective == objective_name(ob)) o.objective = ob;
         std::string err;

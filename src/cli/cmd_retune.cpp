@@ -16,6 +16,7 @@ void register_retune(CLI::App& app) {
     bool json = false, timing = false, allow_new = false;
     int keep = -1, threads = -1;
     long long seed = -1;
+    double budget_s = -1.0;
   };
   auto a = std::make_shared<Args>();
   cmd->add_option("SPEC", a->spec, "spec file (JSON) with a current compensator")->required();
@@ -27,6 +28,9 @@ void register_retune(CLI::App& app) {
                 "when moving the existing corners is not enough, add a stage (lead/lag or integrator, then a notch)");
   cmd->add_option("--keep", a->keep, "number of candidates (overrides search.keep)")->check(CLI::Range(1, 100));
   cmd->add_option("--seed", a->seed, "seed of the perturbed starts (overrides search.seed)")->check(CLI::NonNegativeNumber);
+  cmd->add_option("--budget-s", a->budget_s, "escalation budget when the first pass meets nothing, seconds at a nominal "
+                                             "evaluation rate (counted in evaluations: deterministic; 0 = none; overrides search.budget_s)")
+      ->check(CLI::Range(0.0, 1e7));
   cmd->add_option("--threads", a->threads, "worker threads, 0 = all cores (overrides search.threads)")->check(CLI::Range(0, 1024));
   cmd->callback([a] {
     select([a] {
@@ -38,6 +42,7 @@ void register_retune(CLI::App& app) {
         if (a->keep > 0) o.keep = a->keep;
         if (a->threads >= 0) o.threads = a->threads;
         if (a->seed >= 0) o.seed = static_cast<unsigned long long>(a->seed);
+        if (a->budget_s >= 0.0) o.budget_s = a->budget_s;
         std::string err;
         if (!o.IsValid(&err)) throw SpecError("$.search", err);
         const RetuneReport rep = run_retune(spec, o);

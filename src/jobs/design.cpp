@@ -4,16 +4,11 @@
 #include <chrono>
 #include <cmath>
 #include <cstdio>
-#include <random>
-#include <atomic>
-#include <limits>
-#include <condition_variable>
 #include <map>
-#include <set>
-#include <tuple>
-#include <mutex>
-#include <thread>
+#include <random>
 
+#include "polewright/synthesis/global_search.hpp"
+#include "polewright/synthesis/level_scheduler.hpp"
 #include "polewright/synthesis/parallel.hpp"
 #include "polewright/synthesis/problem.hpp"
 #include "polewright/synthesis/seeds.hpp"
@@ -29,6 +24,7 @@ bool DesignOptions::IsValid(std::string* error) const {
   if (threads < 0) return fail("threads must be >= 0");
   if (max_evaluations < 1) return fail("max_evaluations must be >= 1");
   if (!(time_limit_s > 0.0)) return fail("time_limit_s must be > 0");
+  if (!(budget_s >= 0.0) || budget_s > 1e7) return fail("budget_s must be within 0..1e7");
   if (global_points_base < 0 || global_points_per_dim < 0 || global_starts < 0) return fail("global search sizes must be >= 0");
   if (!(diversity >= 0.0 && diversity < 1.0)) return fail("diversity must be within [0, 1)");
   return local.IsValid(error);
@@ -42,6 +38,7 @@ DesignOptions DesignOptions::FromSpec(const Spec& spec) {
   o.objective = spec.search.objective;
   o.max_evaluations = spec.search.max_evaluations;
   o.time_limit_s = spec.search.time_limit_s;
+  o.budget_s = spec.search.budget_s;
   return o;
 }
 
@@ -53,7 +50,19 @@ std::string DesignSummary::FullReport() const {
                 evaluations, seconds, threads, seed, structures_searched, local_runs,
                 budget_stop ? "; stopped by the evaluation budget" : "", time_stop ? "; stopped by the time limit" : "",
                 first_verified_s ? (std::to_string(*first_verified_s).substr(0, 6) + " s").c_str() : "none");
-  return buf;
+  std::string out = buf;
+  // Only an escalation adds lines, so a design met by the first pass reads as before.
+  if (escalation_budget > 0) {
+    std::snprintf(buf, sizeof buf, "\nescalation: %lld of %lld evaluations spent; %s", escalation_spent, escalation_budget,
+                  met ? "a design meets" : "nothing meets after all of this search");
+    out += buf;
+    for (const SearchPhase& p : phases) {
+      std::snprintf(buf, sizeof buf, "\n  %-20s %9lld evaluations %5d local run(s) %8.3f s", p.name.c_str(), p.evaluations,
+                    p.local_runs, p.seconds);
+      out += buf;
+    }
+  }
+  return out;
 }
 
 namespace {
@@ -74,11 +83,10 @@ struct StructureSetup {
   long long global_evaluations = 0;
 };
 
-bool better(const DesignScore& a, const DesignScore& b) {
-  if (a.feasible != b.feasible) return a.feasible;
-  if (a.feasible) return a.objective < b.objective;
-  return a.violation < b.violation;
-}
+// A pool point this close to feasible (total normalised violation) is a near miss worth polishing.
+constexpr double kNearMissViolation = 0.5;
+
+bool cancelled(const DesignOptions& o) { return o.cancel && o.cancel->load(std::memory_order_relaxed); }
 
 // Distance in the unit cube (max norm), for the diversity rule.
 double unit_distance(const ParamSpace& ps, const std::vector<double>& a, const std::vector<double>& b) {
@@ -129,25 +137,134 @@ StructureSetup prepare(const Structure& s, size_t index, const Spec& spec, const
 
 // Adds the best scored screening points to the starts.
 void add_global_starts(StructureSetup& st, std::vector<PoolEntry>& global, const DesignOptions& o) {
-  std::stable_sort(global.begin(), global.end(), [](const PoolEntry& a, const PoolEntry& b) { return better(a.score, b.score); });
+  std::stable_sort(global.begin(), global.end(), [](const PoolEntry& a, const PoolEntry& b) { return better_score(a.score, b.score); });
   for (size_t i = 0; i < global.size() && static_cast<int>(i) < o.global_starts; ++i)
     st.starts.push_back({global[i].x, global[i].origin});
 }
 
-Candidate verify(const PoolEntry& e, const std::vector<StructureSetup>& setups, const Spec& spec, const Region& region,
+Candidate verify(const PoolEntry& e, const std::vector<StructureSetup>& setups, const Verifier& verifier,
                  Objective objective) {
   const StructureSetup& st = setups[e.structure];
-  Candidate c;
+  Candidate c = verifier.verify(params_to_zpk(st.problem->space(), e.x), objective);
   c.structure = st.structure;
   c.parameters = e.x;
   c.origin = e.origin;
-  c.compensator = params_to_zpk(st.problem->space(), e.x);
-  c.verification = evaluate_all(c.compensator, spec.plants, spec.requirements, region, spec.analysis);
-  c.worst = worst_metrics(c.verification.plants, spec.requirements);
-  c.meets = c.verification.all_met;
-  c.violation = c.verification.total_violation;
-  c.objective = objective_value(objective, c.worst, c.compensator.gain);
   return c;
+}
+
+// Nominal screening evaluations per second of budget on the machine the default was set on (two
+// cores, 2026): the escalation's budget is counted in evaluations so that its outcome does not
+// depend on the machine's speed or load. With a binding plant limit (a bound the requirements
+// exceed, limits.hpp) a tenth of it is spent.
+constexpr double kEvaluationsPerSecond = 5000.0;
+long long escalation_evaluations(double budget_s, bool limited) {
+  return static_cast<long long>(std::llround(budget_s * kEvaluationsPerSecond * (limited ? 0.1 : 1.0)));
+}
+
+// Screening margins per escalation round: every limit tightened by this fraction of its size, so
+// that points on the edge of a bound (screening-feasible, failing the full-accuracy check) are
+// pushed inside. The cycle starts small and returns to none.
+constexpr double kRoundMargins[] = {0.02, 0.05, 0.0, 0.1};
+
+RequirementSet tightened(const RequirementSet& req, double margin) {
+  RequirementSet t = req;
+  for (Requirement& r : t.items) {
+    const double m = margin * std::abs(r.limit);
+    r.limit += r.sense == Sense::AtMost ? -m : m;
+  }
+  return t;
+}
+
+// One escalation round: near misses first (the best pool points, screening-feasible ones that
+// failed the full check and those a small violation away), then fresh low-discrepancy starts per
+// structure, then a global search (NLopt MLSL) per structure; local budgets double every round
+// (up to 16 times the first pass's). Every result is scored again on the true requirements.
+// Returns the evaluations spent; the new points go to `found`.
+long long escalate_round(int round, const std::vector<StructureSetup>& setups, const std::vector<PoolEntry>& pool,
+                         const std::map<std::pair<size_t, std::vector<double>>, Candidate>& verified, const Spec& spec,
+                         const Region& region, const AnalysisOptions& screening, const DesignOptions& o, int threads,
+                         std::vector<PoolEntry>& found, int& runs) {
+  const double margin = kRoundMargins[round % 4];
+  const int scale = std::min(16, 2 << std::min(round, 3));
+  LocalOptions local = o.local;
+  local.feasibility_evaluations *= scale;
+  local.objective_evaluations *= scale;
+  std::vector<std::shared_ptr<DesignProblem>> problems;
+  for (const StructureSetup& st : setups) {
+    problems.push_back(std::make_shared<DesignProblem>(spec.plants, tightened(spec.requirements, margin), region, screening,
+                                                       o.objective, st.problem->space()));
+  }
+  struct Task {
+    int kind = 0;  // 0 polish a near miss, 1 fresh starts, 2 global
+    size_t structure = 0;
+    std::vector<double> x;
+    std::string origin;
+  };
+  std::vector<Task> tasks;
+  const std::string tag = "escalation " + std::to_string(round + 1) + ": ";
+  // Near misses: distinct pool points by screening score, those with a small violation only.
+  std::vector<size_t> order(pool.size());
+  for (size_t i = 0; i < order.size(); ++i) order[i] = i;
+  std::stable_sort(order.begin(), order.end(), [&](size_t a, size_t b) { return better_score(pool[a].score, pool[b].score); });
+  const size_t near_count = static_cast<size_t>(4 + 2 * round);
+  std::vector<size_t> near;
+  for (size_t i : order) {
+    const PoolEntry& e = pool[i];
+    if (!e.score.feasible && e.score.violation > kNearMissViolation) break;
+    bool close = false;
+    for (size_t j : near)
+      if (pool[j].structure == e.structure && unit_distance(setups[e.structure].problem->space(), pool[j].x, e.x) < o.diversity)
+        close = true;
+    if (close) continue;
+    near.push_back(i);
+    tasks.push_back({0, e.structure, e.x, tag + "near miss from " + e.origin});
+    if (near.size() >= near_count) break;
+  }
+  for (size_t s = 0; s < setups.size(); ++s) tasks.push_back({1, s, {}, tag + "fresh starts"});
+  for (size_t s = 0; s < setups.size(); ++s) tasks.push_back({2, s, {}, tag + "global search"});
+  std::vector<std::vector<LocalResult>> results(tasks.size());
+  std::vector<long long> extra(tasks.size(), 0);
+  parallel_for(tasks.size(), threads, [&](size_t t) {
+    const Task& task = tasks[t];
+    const DesignProblem& p = *problems[task.structure];
+    const ParamSpace& ps = p.space();
+    if (task.kind == 0) {
+      results[t].push_back(local_search(p, task.x, local, o.cancel));
+    } else if (task.kind == 1) {
+      // Fresh low-discrepancy points further along the structure's own sequence rotation.
+      std::mt19937_64 rng((o.seed + 7919ULL * static_cast<unsigned long long>(round + 1)) * 0x9E3779B97F4A7C15ULL + task.structure);
+      std::uniform_real_distribution<double> U(0.0, 1.0);
+      std::vector<double> shift(static_cast<size_t>(ps.dim()));
+      for (double& v : shift) v = U(rng);
+      const int n = 2 * (o.global_points_base + o.global_points_per_dim * ps.dim());
+      std::vector<PoolEntry> pts(static_cast<size_t>(n));
+      for (int i = 0; i < n; ++i) {
+        pts[static_cast<size_t>(i)].x = from_unit(ps, halton_point(i, ps.dim(), shift));
+        pts[static_cast<size_t>(i)].score = p.score(pts[static_cast<size_t>(i)].x);
+      }
+      extra[t] += n;
+      std::stable_sort(pts.begin(), pts.end(), [](const PoolEntry& a, const PoolEntry& b) { return better_score(a.score, b.score); });
+      for (int k = 0; k < 2 && k < n; ++k) results[t].push_back(local_search(p, pts[static_cast<size_t>(k)].x, local, o.cancel));
+    } else {
+      GlobalOptions g;
+      g.evaluations = 400 * scale;
+      g.seed = (o.seed * 0x9E3779B97F4A7C15ULL) ^ (static_cast<unsigned long long>(round) << 32) ^ task.structure;
+      const std::vector<double> mid = from_unit(ps, std::vector<double>(static_cast<size_t>(ps.dim()), 0.5));
+      results[t].push_back(global_search(p, mid, g, local, o.cancel));
+    }
+  });
+  long long used = 0;
+  for (size_t t = 0; t < tasks.size(); ++t) {
+    used += extra[t];
+    for (LocalResult& r : results[t]) {
+      used += r.evaluations + 1;
+      runs += 1;
+      const DesignScore truth = setups[tasks[t].structure].problem->score(r.x);
+      found.push_back({tasks[t].structure, r.x, truth, tasks[t].origin});
+    }
+  }
+  (void)verified;
+  return used;
 }
 
 double metric_score(const Candidate& c, const Requirement& r) {
@@ -162,150 +279,68 @@ double metric_score(const Candidate& c, const Requirement& r) {
 DesignReport run_design(const Spec& spec, const DesignOptions& o) {
   const auto t0 = Clock::now();
   auto elapsed = [&] { return std::chrono::duration<double>(Clock::now() - t0).count(); };
+  const Verifier verifier(LoopContext::FromSpec(spec));
+  const LoopContext& ctx = verifier.context();
   DesignReport rep;
   rep.spec_name = spec.name;
   rep.spec_document = spec.document;
-  rep.plants = spec.plants;
-  rep.requirements = spec.requirements;
-  rep.analysis = spec.analysis;
+  rep.plants = ctx.plants;
+  rep.requirements = ctx.requirements;
+  rep.analysis = ctx.analysis;
   rep.objective = o.objective;
-  rep.region = region_from_requirements(spec.requirements);
-  rep.frequency_range = spec.stages.frequency_range_rad_s ? *spec.stages.frequency_range_rad_s
-                                                          : default_frequency_range(spec.plants, rep.region);
+  rep.region = ctx.region;
+  rep.frequency_range = ctx.frequency_range;
   rep.limits = plant_limits(spec.plants, spec.requirements, rep.region, spec.stages);
   rep.summary.seed = o.seed;
   rep.summary.threads = resolve_threads(o.threads);
   const int threads = rep.summary.threads;
 
-  AnalysisOptions screening = AnalysisOptions::Screening(spec.analysis);
+  const AnalysisOptions screening = AnalysisOptions::Screening(spec.analysis);
   const std::vector<Structure> structures = enumerate_structures(spec.stages);
-  // Every structure is one job: prepare, score its screening points, polish its starts. Jobs run in
-  // level order (level = number of stages) from a shared queue. The stopping rule is applied to whole
-  // levels in order and looks only at their results, so the set of results used never depends on the
-  // thread count or on timing; a job of a later level that ran anyway is discarded.
+  // Every structure is one job of the level scheduler (level = number of stages): prepare and score
+  // its screening points, then polish its starts.
   struct Job {
     StructureSetup setup;
     std::vector<LocalResult> results;
-    bool done = false;
     double finished_s = 0.0;
-    std::atomic<bool> cancel{false};  // set when the job's level falls beyond the stop level
   };
   const size_t n_jobs = structures.size();
   std::vector<Job> jobs(n_jobs);
-  std::mutex mutex;
-  int stop_level = std::numeric_limits<int>::max();
-  size_t resolved = 0;  // jobs [0, resolved) belong to levels already judged
   long long feasible_so_far = 0, evaluations_so_far = 0;
   int levels_after_full = -1;
-  std::atomic<bool> out_of_time{false};
-  auto level_of = [&](size_t i) { return structures[i].stage_count(); };
-  // Applies the stopping rule to every level that is complete, in order (called under the mutex).
-  auto judge = [&] {
-    while (resolved < n_jobs && stop_level == std::numeric_limits<int>::max()) {
-      size_t end_of_level = resolved;
-      while (end_of_level < n_jobs && level_of(end_of_level) == level_of(resolved)) ++end_of_level;
-      for (size_t i = resolved; i < end_of_level; ++i)
-        if (!jobs[i].done) return;
-      for (size_t i = resolved; i < end_of_level; ++i) {
-        evaluations_so_far += jobs[i].setup.global_evaluations;
-        for (const LocalResult& r : jobs[i].results) {
-          evaluations_so_far += r.evaluations;
-          feasible_so_far += r.score.feasible;
-        }
-      }
-      const int level = level_of(resolved);
-      resolved = end_of_level;
-      if (levels_after_full < 0 && feasible_so_far >= o.keep) levels_after_full = 0;
-      else if (levels_after_full >= 0) ++levels_after_full;
-      if ((levels_after_full >= 0 && levels_after_full >= o.extra_levels) || evaluations_so_far >= o.max_evaluations) {
-        stop_level = level;
-        for (size_t i = resolved; i < n_jobs; ++i) jobs[i].cancel = true;  // speculative work past the stop
-      }
-    }
+  LevelJobs lj;
+  for (const Structure& s : structures) lj.levels.push_back(s.stage_count());
+  lj.prepare = [&](size_t i, const std::atomic<bool>& cancel) {
+    Job& job = jobs[i];
+    std::vector<PoolEntry> global;
+    job.setup = prepare(structures[i], i, spec, rep.region, rep.frequency_range, screening, o, global);
+    for (PoolEntry& e : global)
+      if (!cancel && !cancelled(o)) e.score = job.setup.problem->score(e.x);
+    add_global_starts(job.setup, global, o);
+    job.results.assign(job.setup.starts.size(), LocalResult{});
+    return job.setup.starts.size();
   };
-  // Tasks: per structure one preparation (seeds, screening points) and then one task per start.
-  // The queue hands out the lowest (level, structure, start) first; tasks of levels past the stop
-  // level are dropped, and running ones are cancelled.
-  using Task = std::tuple<int, size_t, int, size_t>;  // level, job, kind (0 prepare, 1 polish), start
-  std::set<Task> queue;
-  for (size_t i = 0; i < n_jobs; ++i) queue.insert({level_of(i), i, 0, 0});
-  std::vector<int> pending(n_jobs, -1);
-  std::condition_variable wake;
-  int running = 0;
-  // An outside stop (o.cancel) is relayed to every job's flag, so that running local searches stop too.
-  auto stopped = [&] { return o.cancel && o.cancel->load(); };
-  std::atomic<bool> searching{true};
-  std::thread relay;
-  struct JoinRelay {  // also when a task throws
-    std::atomic<bool>& searching;
-    std::thread& relay;
-    ~JoinRelay() {
-      searching = false;
-      if (relay.joinable()) relay.join();
+  lj.run = [&](size_t i, size_t k, const std::atomic<bool>& cancel) {
+    Job& job = jobs[i];
+    job.results[k] = local_search(*job.setup.problem, job.setup.starts[k].x, o.local, &cancel);
+  };
+  lj.job_done = [&](size_t i) { jobs[i].finished_s = elapsed(); };
+  lj.level_done = [&](size_t first, size_t end) {
+    for (size_t i = first; i < end; ++i) {
+      evaluations_so_far += jobs[i].setup.global_evaluations;
+      for (const LocalResult& r : jobs[i].results) {
+        evaluations_so_far += r.evaluations;
+        feasible_so_far += r.score.feasible;
+      }
     }
-  } join_relay{searching, relay};
-  if (o.cancel)
-    relay = std::thread([&] {
-      while (searching && !stopped()) std::this_thread::sleep_for(std::chrono::milliseconds(5));
-      if (stopped())
-        for (Job& job : jobs) job.cancel = true;
-    });
-  parallel_for(static_cast<size_t>(threads), threads, [&](size_t) {
-    std::unique_lock<std::mutex> lock(mutex);
-    for (;;) {
-      while (!queue.empty() && std::get<0>(*queue.begin()) > stop_level) queue.erase(queue.begin());
-      if (queue.empty()) {
-        if (running == 0) {
-          wake.notify_all();
-          return;
-        }
-        wake.wait(lock);
-        continue;
-      }
-      const Task task = *queue.begin();
-      queue.erase(queue.begin());
-      ++running;
-      lock.unlock();
-      const size_t i = std::get<1>(task);
-      Job& job = jobs[i];
-      const bool late = stopped() || elapsed() >= o.time_limit_s;
-      if (late) {
-        if (!stopped()) out_of_time = true;
-      } else if (std::get<2>(task) == 0) {
-        std::vector<PoolEntry> global;
-        job.setup = prepare(structures[i], i, spec, rep.region, rep.frequency_range, screening, o, global);
-        for (PoolEntry& e : global)
-          if (!job.cancel) e.score = job.setup.problem->score(e.x);
-        add_global_starts(job.setup, global, o);
-        job.results.assign(job.setup.starts.size(), LocalResult{});
-      } else {
-        const size_t k = std::get<3>(task);
-        job.results[k] = local_search(*job.setup.problem, job.setup.starts[k].x, o.local, &job.cancel);
-      }
-      lock.lock();
-      --running;
-      if (!late) {
-        if (std::get<2>(task) == 0) {
-          pending[i] = static_cast<int>(job.setup.starts.size());
-          for (size_t k = 0; k < job.setup.starts.size(); ++k) queue.insert({std::get<0>(task), i, 1, k});
-        } else {
-          --pending[i];
-        }
-        if (pending[i] == 0) {
-          job.done = true;
-          job.finished_s = elapsed();
-          judge();
-        }
-      }
-      wake.notify_all();
-    }
-  });
-  searching = false;
-  if (relay.joinable()) relay.join();
-  if (stopped()) {
-    rep.summary.seconds = elapsed();
-    return rep;
-  }
+    if (levels_after_full < 0 && feasible_so_far >= o.keep) levels_after_full = 0;
+    else if (levels_after_full >= 0) ++levels_after_full;
+    return (levels_after_full >= 0 && levels_after_full >= o.extra_levels) || evaluations_so_far >= o.max_evaluations ||
+           cancelled(o);
+  };
+  lj.out_of_time = [&] { return elapsed() >= o.time_limit_s || cancelled(o); };
+  const LevelRun run = run_levels(lj, threads);
+  auto level_of = [&](size_t i) { return structures[i].stage_count(); };
   // The levels used: complete ones up to the stop level.
   std::vector<StructureSetup> setups;
   std::vector<PoolEntry> pool;
@@ -315,9 +350,9 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
     size_t end_of_level = i;
     while (end_of_level < n_jobs && level_of(end_of_level) == level_of(i)) ++end_of_level;
     bool complete = true;
-    for (size_t j = i; j < end_of_level; ++j) complete = complete && jobs[j].done;
+    for (size_t j = i; j < end_of_level; ++j) complete = complete && run.done[j];
     if (!complete) {
-      rep.summary.time_stop = out_of_time;
+      rep.summary.time_stop = run.out_of_time;
       break;
     }
     const size_t first = pool.size();
@@ -338,7 +373,7 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
     level_finished.push_back(finished);
     const int level = level_of(i);
     i = end_of_level;
-    if (level == stop_level) {
+    if (level == run.stop_level) {
       rep.summary.budget_stop = rep.summary.evaluations >= o.max_evaluations && feasible_so_far < o.keep;
       break;
     }
@@ -349,7 +384,7 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
     std::vector<Candidate> out(which.size());
     parallel_for(which.size(), threads, [&](size_t k) {
       const PoolEntry& e = pool[which[k]];
-      out[k] = verify(e, setups, spec, rep.region, o.objective);
+      out[k] = verify(e, setups, verifier, o.objective);
     });
     for (size_t k = 0; k < which.size(); ++k) verified[{pool[which[k]].structure, pool[which[k]].x}] = out[k];
     return out;
@@ -359,7 +394,7 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
     std::vector<size_t> order;
     for (size_t i = level_ranges[l].first; i < level_ranges[l].second; ++i)
       if (pool[i].score.feasible) order.push_back(i);
-    std::stable_sort(order.begin(), order.end(), [&](size_t a, size_t b) { return better(pool[a].score, pool[b].score); });
+    std::stable_sort(order.begin(), order.end(), [&](size_t a, size_t b) { return better_score(pool[a].score, pool[b].score); });
     if (order.size() > 3) order.resize(3);
     const double t_verify = elapsed();
     const std::vector<Candidate> v = verify_cached(order);
@@ -367,55 +402,96 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
       rep.summary.first_verified_s = level_finished[l] + (elapsed() - t_verify);
   }
 
-  // Diverse shortlist by screening score, then full-accuracy verification.
-  std::stable_sort(pool.begin(), pool.end(), [](const PoolEntry& a, const PoolEntry& b) { return better(a.score, b.score); });
-  std::vector<PoolEntry> shortlist;
-  for (const PoolEntry& e : pool) {
-    bool close = false;
-    for (const PoolEntry& s : shortlist)
-      if (s.structure == e.structure && unit_distance(setups[e.structure].problem->space(), s.x, e.x) < o.diversity) close = true;
-    if (!close) shortlist.push_back(e);
-    if (static_cast<int>(shortlist.size()) >= 2 * o.keep) break;
-  }
-  std::vector<Candidate> cands(shortlist.size());
-  {
-    std::vector<size_t> todo;
-    for (size_t i = 0; i < shortlist.size(); ++i)
-      if (!verified.count({shortlist[i].structure, shortlist[i].x})) todo.push_back(i);
-    std::vector<Candidate> fresh(todo.size());
-    parallel_for(todo.size(), threads, [&](size_t k) { fresh[k] = verify(shortlist[todo[k]], setups, spec, rep.region, o.objective); });
-    for (size_t k = 0; k < todo.size(); ++k) verified[{shortlist[todo[k]].structure, shortlist[todo[k]].x}] = fresh[k];
-    for (size_t i = 0; i < shortlist.size(); ++i) {
-      cands[i] = verified.at({shortlist[i].structure, shortlist[i].x});
-      cands[i].origin = shortlist[i].origin;
+  // Diverse shortlist by screening score, then full-accuracy verification. After an escalation
+  // round, points already verified and failing go after the others (a screening-feasible point on
+  // the edge of a bound must not crowd out the new ones), verified meeting ones first.
+  auto rank_pool = [&](bool escalated) {
+    if (escalated) {
+      auto group = [&](const PoolEntry& e) {
+        const auto it = verified.find({e.structure, e.x});
+        return it == verified.end() ? 1 : (it->second.meets ? 0 : 2);
+      };
+      std::stable_sort(pool.begin(), pool.end(), [&](const PoolEntry& a, const PoolEntry& b) {
+        const int ga = group(a), gb = group(b);
+        if (ga != gb) return ga < gb;
+        return better_score(a.score, b.score);
+      });
+    } else {
+      std::stable_sort(pool.begin(), pool.end(), [](const PoolEntry& a, const PoolEntry& b) { return better_score(a.score, b.score); });
     }
-  }
-  if (o.metric_objective)
-    for (Candidate& c : cands) c.objective = metric_score(c, *o.metric_objective);
-  std::stable_sort(cands.begin(), cands.end(), [&](const Candidate& a, const Candidate& b) {
-    if (a.meets != b.meets) return a.meets;
-    if (a.meets) {
-      if (o.objective == Objective::Simplest && a.structure.stage_count() != b.structure.stage_count())
-        return a.structure.stage_count() < b.structure.stage_count();
-      return a.objective < b.objective;
+    std::vector<PoolEntry> shortlist;
+    for (const PoolEntry& e : pool) {
+      bool close = false;
+      for (const PoolEntry& s : shortlist)
+        if (s.structure == e.structure && unit_distance(setups[e.structure].problem->space(), s.x, e.x) < o.diversity) close = true;
+      if (!close) shortlist.push_back(e);
+      if (static_cast<int>(shortlist.size()) >= 2 * o.keep) break;
     }
-    return a.violation < b.violation;
-  });
-  // An unstable loop is no candidate while stable ones are there to show.
-  const long stable_count = std::count_if(cands.begin(), cands.end(), [](const Candidate& c) { return c.verification.all_stable; });
-  if (stable_count > 0)
-    cands.erase(std::remove_if(cands.begin(), cands.end(), [](const Candidate& c) { return !c.verification.all_stable; }), cands.end());
-  if (static_cast<int>(cands.size()) > o.keep) cands.resize(static_cast<size_t>(o.keep));
-  for (size_t i = 0; i < cands.size(); ++i) cands[i].rank = static_cast<int>(i) + 1;
-  rep.candidates = std::move(cands);
+    std::vector<Candidate> cands(shortlist.size());
+    {
+      std::vector<size_t> todo;
+      for (size_t i = 0; i < shortlist.size(); ++i)
+        if (!verified.count({shortlist[i].structure, shortlist[i].x})) todo.push_back(i);
+      std::vector<Candidate> fresh(todo.size());
+      parallel_for(todo.size(), threads, [&](size_t k) { fresh[k] = verify(shortlist[todo[k]], setups, verifier, o.objective); });
+      for (size_t k = 0; k < todo.size(); ++k) verified[{shortlist[todo[k]].structure, shortlist[todo[k]].x}] = fresh[k];
+      for (size_t i = 0; i < shortlist.size(); ++i) {
+        cands[i] = verified.at({shortlist[i].structure, shortlist[i].x});
+        cands[i].origin = shortlist[i].origin;
+      }
+    }
+    if (o.metric_objective)
+      for (Candidate& c : cands) c.objective = metric_score(c, *o.metric_objective);
+    std::stable_sort(cands.begin(), cands.end(), [&](const Candidate& a, const Candidate& b) {
+      if (a.meets != b.meets) return a.meets;
+      if (a.meets) {
+        if (o.objective == Objective::Simplest && a.structure.stage_count() != b.structure.stage_count())
+          return a.structure.stage_count() < b.structure.stage_count();
+        return a.objective < b.objective;
+      }
+      return a.violation < b.violation;
+    });
+    // An unstable loop is no candidate while stable ones are there to show.
+    const long stable_count = std::count_if(cands.begin(), cands.end(), [](const Candidate& c) { return c.verification.all_stable; });
+    if (stable_count > 0)
+      cands.erase(std::remove_if(cands.begin(), cands.end(), [](const Candidate& c) { return !c.verification.all_stable; }), cands.end());
+    if (static_cast<int>(cands.size()) > o.keep) cands.resize(static_cast<size_t>(o.keep));
+    for (size_t i = 0; i < cands.size(); ++i) cands[i].rank = static_cast<int>(i) + 1;
+    rep.candidates = std::move(cands);
+  };
+  rank_pool(false);
+  rep.summary.phases.push_back({"first pass", rep.summary.evaluations, rep.summary.local_runs, elapsed()});
+
+  // Escalation: while nothing meets and the budget lasts, rounds of harder search (see
+  // escalate_round). Each round is a fixed set of tasks whose results land in fixed slots, and
+  // the budget is checked between rounds only, so the outcome does not depend on the thread count.
+  if (!rep.met() && !o.metric_objective && o.budget_s > 0.0 && !setups.empty()) {
+    const bool limited = std::any_of(rep.limits.begin(), rep.limits.end(), [](const PlantLimit& l) { return l.binding; });
+    const long long budget = escalation_evaluations(o.budget_s, limited);
+    rep.summary.escalation_budget = budget;
+    long long spent = 0;
+    for (int round = 0; spent < budget && !rep.met() && !cancelled(o) && elapsed() < o.time_limit_s; ++round) {
+      const double t_round = elapsed();
+      std::vector<PoolEntry> found;
+      int runs = 0;
+      const long long used = escalate_round(round, setups, pool, verified, spec, rep.region, screening, o, threads, found, runs);
+      spent += used;
+      rep.summary.evaluations += used;
+      rep.summary.local_runs += runs;
+      for (PoolEntry& e : found) pool.push_back(std::move(e));
+      rank_pool(true);
+      rep.summary.phases.push_back({"escalation round " + std::to_string(round + 1), used, runs, elapsed() - t_round});
+    }
+    rep.summary.escalation_spent = spent;
+  }
   if (!rep.summary.first_verified_s && rep.met()) rep.summary.first_verified_s = elapsed();
 
   // When nothing meets: for each requirement the best candidate misses, the best value reachable
   // when that requirement alone is relaxed (a smaller search over the structures already tried).
   if (!rep.met() && o.explain_failure && !rep.candidates.empty()) {
+    std::vector<Candidate> solutions;
     for (const RequirementOutcome& out : rep.candidates.front().verification.outcomes) {
       if (out.met) continue;
-      if (stopped()) break;
       Spec relaxed = spec;
       relaxed.requirements.items.clear();
       for (const Requirement& r : spec.requirements.items)
@@ -430,8 +506,10 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
       BindingRequirement b;
       b.requirement = out.requirement;
       // The best value of the relaxed metric among designs that meet every other requirement: the
-      // relaxed search's top candidate and any candidate already in hand.
-      auto consider = [&](const Evaluation& ev) {
+      // relaxed search's top candidate and every candidate verified so far. A design whose value
+      // meets the limit too is a full solution: it is returned as a candidate.
+      auto consider = [&](const Candidate& c) {
+        const Evaluation& ev = c.verification;
         bool rest = ev.all_stable;
         const RequirementOutcome* mine = nullptr;
         for (const RequirementOutcome& x : ev.outcomes) {
@@ -444,14 +522,46 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
                               (out.requirement.sense == Sense::AtMost ? v < *b.best_value.value : v > *b.best_value.value);
         if (improves) b.best_value = mine->worst;
         b.relaxing_meets_the_rest = true;
+        if (c.meets) solutions.push_back(c);
       };
-      if (!rr.candidates.empty())
-        consider(evaluate_all(rr.candidates.front().compensator, spec.plants, spec.requirements, rep.region, spec.analysis));
-      for (const Candidate& c : rep.candidates) consider(c.verification);
+      if (!rr.candidates.empty()) {
+        const Candidate& top = rr.candidates.front();
+        Candidate c = verifier.verify(top.compensator, o.objective);
+        c.structure = top.structure;
+        c.parameters = top.parameters;
+        c.origin = top.origin + " (search with " + metric_info(out.requirement.metric).key + " relaxed)";
+        consider(c);
+      }
+      for (const Candidate& c : rep.candidates) consider(c);
+      for (const auto& kv : verified) consider(kv.second);
       rep.summary.evaluations += rr.summary.evaluations;
+      rep.summary.phases.push_back({std::string("relaxed ") + metric_info(out.requirement.metric).key, rr.summary.evaluations,
+                                    rr.summary.local_runs, rr.summary.seconds});
       rep.binding.push_back(b);
     }
+    // A design found on the way that meets everything: the spec is met after all.
+    if (!solutions.empty()) {
+      std::vector<Candidate> all = solutions;
+      for (const Candidate& c : rep.candidates) all.push_back(c);
+      std::stable_sort(all.begin(), all.end(), [](const Candidate& a, const Candidate& b) {
+        if (a.meets != b.meets) return a.meets;
+        return a.meets ? a.objective < b.objective : a.violation < b.violation;
+      });
+      std::vector<Candidate> kept;
+      for (const Candidate& c : all) {
+        bool dup = false;
+        for (const Candidate& k : kept) dup = dup || (k.structure == c.structure && k.compensator.gain == c.compensator.gain &&
+                                                      k.parameters == c.parameters);
+        if (!dup) kept.push_back(c);
+      }
+      if (static_cast<int>(kept.size()) > o.keep) kept.resize(static_cast<size_t>(o.keep));
+      for (size_t i = 0; i < kept.size(); ++i) kept[i].rank = static_cast<int>(i) + 1;
+      rep.candidates = std::move(kept);
+      rep.binding.clear();
+      if (!rep.summary.first_verified_s) rep.summary.first_verified_s = elapsed();
+    }
   }
+  rep.summary.met = rep.met();
   rep.summary.seconds = elapsed();
   return rep;
 }

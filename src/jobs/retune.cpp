@@ -1,7 +1,5 @@
 #include "polewright/jobs/retune.hpp"
 
-#include <nlopt.hpp>
-
 #include <algorithm>
 #include <chrono>
 #include <cmath>
@@ -12,6 +10,7 @@
 #include "polewright/synthesis/parallel.hpp"
 #include "polewright/synthesis/parameters.hpp"
 #include "polewright/synthesis/problem.hpp"
+#include "polewright/synthesis/retune_problem.hpp"
 #include "polewright/synthesis/seeds.hpp"
 
 namespace pw {
@@ -29,6 +28,7 @@ bool RetuneOptions::IsValid(std::string* error) const {
   if (!(corner_decades > 0.0) || !(gain_decades > 0.0)) return fail("corner_decades and gain_decades must be > 0");
   if (!(penalty > 0.0)) return fail("penalty must be > 0");
   if (!(distinct_decades >= 0.0)) return fail("distinct_decades must be >= 0");
+  if (!(budget_s >= 0.0) || budget_s > 1e7) return fail("budget_s must be within 0..1e7");
   return true;
 }
 
@@ -37,6 +37,7 @@ RetuneOptions RetuneOptions::FromSpec(const Spec& spec) {
   o.keep = spec.search.keep;
   o.seed = spec.search.seed;
   o.threads = spec.search.threads;
+  o.budget_s = spec.search.budget_s;
   return o;
 }
 
@@ -44,6 +45,7 @@ namespace {
 
 using Clock = std::chrono::steady_clock;
 
+// The result of one local run, with the change distance it rests on.
 struct Point {
   std::vector<double> x;
   double distance = INFINITY;
@@ -52,99 +54,31 @@ struct Point {
   std::string origin;
 };
 
-// Scores points of one retune space with the screening evaluator.
-struct RetuneProblem {
-  const RetuneSpace* space;
-  const DesignProblem* screen;
-  long long evaluations = 0;
-  Point best;  // feasible with the least distance, else the least violation
-  const std::atomic<bool>* cancel = nullptr;  // RetuneOptions::cancel
-  bool stopped() const { return cancel && cancel->load(std::memory_order_relaxed); }
-
-  Point score(const std::vector<double>& x) {
-    ++evaluations;
-    const DesignScore s = screen->score_compensator(retune_to_zpk(*space, x));
-    Point p{x, change_distance(*space, x), s.feasible, s.violation, ""};
-    const bool better = best.x.empty() || (p.feasible && !best.feasible) ||
-                        (p.feasible && best.feasible && p.distance < best.distance) ||
-                        (!p.feasible && !best.feasible && p.violation < best.violation);
-    if (better) best = p;
-    return p;
-  }
-};
-
-struct PhaseData {
-  RetuneProblem* problem;
-  double penalty;
-  bool barrier;
-};
-
-double phase_objective(unsigned n, const double* x, double* grad, void* data) {
-  (void)grad;
-  PhaseData* d = static_cast<PhaseData*>(data);
-  if (d->problem->stopped()) throw nlopt::forced_stop();  // caught in run_phase
-  const Point p = d->problem->score(std::vector<double>(x, x + n));
-  const double d2 = p.distance * p.distance;
-  if (d->barrier) return p.feasible ? d2 : 1e6 + p.violation;
-  return d2 + d->penalty * p.violation;
+// The local search's options for a retune: feasibility with an exact (L1) penalty on the violation
+// plus the squared distance, a pull back towards the current design, then the squared distance with
+// the requirements as a barrier.
+LocalOptions retune_local_options(const RetuneSpace& rs, const RetuneOptions& o) {
+  LocalOptions lo;
+  lo.feasibility_evaluations = o.evaluations;
+  lo.objective_evaluations = o.evaluations;
+  lo.relative_tolerance = 0.0;
+  lo.absolute_tolerance = 1e-4;
+  lo.absolute_steps = true;  // decades
+  lo.feasibility_step = 0.1;
+  lo.objective_step = 0.02;
+  lo.objective_weight = 1.0;
+  lo.violation_weight = o.penalty;
+  lo.stop_at_feasible = false;
+  lo.anchor = rs.current;
+  return lo;
 }
 
-void run_phase(RetuneProblem& rp, std::vector<double> x, int evals, double step_decades, double penalty, bool barrier) {
-  const RetuneSpace& rs = *rp.space;
-  nlopt::opt opt(nlopt::LN_SBPLX, static_cast<unsigned>(rs.dim()));
-  opt.set_lower_bounds(rs.lower);
-  opt.set_upper_bounds(rs.upper);
-  PhaseData data{&rp, penalty, barrier};
-  opt.set_min_objective(phase_objective, &data);
-  opt.set_maxeval(evals);
-  opt.set_xtol_abs(1e-4);
-  opt.set_initial_step(std::vector<double>(static_cast<size_t>(rs.dim()), step_decades));
-  for (size_t i = 0; i < x.size(); ++i) x[i] = std::clamp(x[i], rs.lower[i], rs.upper[i]);
-  double f = 0.0;
-  try {
-    opt.optimize(x, f);
-  } catch (const std::exception&) {
-    // NLopt throws (roundoff limited, forced stop) even after good points: the problem kept the best.
-  }
-}
-
-// Pulls a feasible point back towards the current design along the segment between them: the
-// least fraction of the step that stays feasible (bisection, 12 steps).
-void pull_back(RetuneProblem& rp, const std::vector<double>& feasible) {
-  const std::vector<double>& x0 = rp.space->current;
-  double lo = 0.0, hi = 1.0;
-  for (int k = 0; k < 12; ++k) {
-    const double t = 0.5 * (lo + hi);
-    std::vector<double> x(x0.size());
-    for (size_t i = 0; i < x.size(); ++i) x[i] = x0[i] + t * (feasible[i] - x0[i]);
-    (rp.score(x).feasible ? hi : lo) = t;
-  }
-}
-
-// One local run: feasibility with an exact (L1) penalty on the violation plus the squared
-// distance, then the squared distance with the requirements as a barrier.
-Point local_retune(const RetuneSpace& rs, const DesignProblem& screen, const std::vector<double>& x0,
+Point local_retune(const RetuneSpace& rs, const CompensatorScorer& screen, const std::vector<double>& x0,
                    const RetuneOptions& o, long long& evaluations) {
-  RetuneProblem rp{&rs, &screen, 0, Point{}, o.cancel};
-  rp.score(x0);
-  if (rp.stopped()) return rp.best;
-  if (!rp.best.feasible) run_phase(rp, x0, o.evaluations, 0.1, o.penalty, false);
-  if (rp.best.feasible && !rp.stopped()) {
-    pull_back(rp, rp.best.x);
-    run_phase(rp, rp.best.x, o.evaluations, 0.02, o.penalty, true);
-  }
-  evaluations += rp.evaluations;
-  return rp.best;
-}
-
-Candidate verify(const Zpk& c, const Spec& spec, const Region& region) {
-  Candidate v;
-  v.compensator = c;
-  v.verification = evaluate_all(c, spec.plants, spec.requirements, region, spec.analysis);
-  v.worst = worst_metrics(v.verification.plants, spec.requirements);
-  v.meets = v.verification.all_met;
-  v.violation = v.verification.total_violation;
-  return v;
+  const RetuneProblem problem(rs, screen);
+  const LocalResult r = local_search(problem, x0, retune_local_options(rs, o), o.cancel);
+  evaluations += r.evaluations;
+  return Point{r.x, change_distance(rs, r.x), r.score.feasible, r.score.violation, ""};
 }
 
 std::string requirement_key(const Requirement& r) {
@@ -237,7 +171,7 @@ std::vector<ParameterChange> change_list(const RetuneSpace& rs, const std::vecto
   // Added stages: their roots are new.
   int p = rs.base_dim;
   for (AddedStage s : rs.added) {
-    const int dim = s == AddedStage::FirstOrder ? 2 : (s == AddedStage::Notch ? 3 : 1);
+    const int dim = added_stage_parameters(s);
     const std::string why = driver(p, dim);
     RetuneSpace single = make_retune_space(Zpk{{}, {}, 1.0}, rs.range, {s});
     std::vector<double> sx(1, 0.0);
@@ -258,6 +192,78 @@ std::string structure_label(const RetuneSpace& rs) {
   return s;
 }
 
+// Retune's escalation: a design of the spec (with its own escalation) gives verified candidates;
+// those of the current design's structure (the same kinds of factors, retune_params_of) start a
+// local search that pulls them back towards the current design and then shortens the change with
+// the requirements as a barrier (twice the first pass's budget). Each design candidate is also kept
+// as it is, so retune never ends worse than design in the same structure.
+std::vector<RetuneCandidate> from_design(const Spec& spec, const RetuneOptions& o, const Verifier& verifier,
+                                         const CompensatorScorer& screen, RetuneReport& rep) {
+  DesignOptions d = DesignOptions::FromSpec(spec);
+  d.seed = o.seed;
+  d.threads = o.threads;
+  d.budget_s = o.budget_s;
+  d.keep = 10;
+  d.explain_failure = false;
+  d.cancel = o.cancel;
+  const DesignReport dr = run_design(spec, d);
+  rep.summary.evaluations += dr.summary.evaluations;
+  rep.summary.local_runs += dr.summary.local_runs;
+  struct Start {
+    RetuneSpace space;
+    std::vector<double> x;
+    std::string origin;
+  };
+  std::vector<Start> starts;
+  for (const Candidate& c : dr.candidates) {
+    if (!c.meets) continue;
+    RetuneSpace rs = make_retune_space(*spec.current, rep.frequency_range, {}, o.corner_decades, o.gain_decades);
+    std::vector<double> x;
+    if (retune_params_of(rs, c.compensator, &x)) starts.push_back({rs, x, "design rank " + std::to_string(c.rank)});
+  }
+  RetuneOptions wide = o;
+  wide.evaluations = 2 * o.evaluations;
+  std::vector<Point> results(starts.size());
+  std::vector<long long> evals(starts.size(), 0);
+  parallel_for(starts.size(), rep.summary.threads, [&](size_t i) {
+    results[i] = local_retune(starts[i].space, screen, starts[i].x, wide, evals[i]);
+  });
+  for (long long e : evals) rep.summary.evaluations += e;
+  rep.summary.local_runs += static_cast<int>(starts.size());
+  // Both the pulled-back point and the design point itself, verified.
+  std::vector<std::pair<size_t, std::vector<double>>> points;
+  for (size_t i = 0; i < starts.size(); ++i) {
+    points.push_back({i, results[i].x});
+    points.push_back({i, starts[i].x});
+  }
+  std::vector<RetuneCandidate> out(points.size());
+  parallel_for(points.size(), rep.summary.threads, [&](size_t k) {
+    const Start& st = starts[points[k].first];
+    const std::vector<double>& x = points[k].second;
+    RetuneCandidate rc;
+    rc.candidate = verifier.verify(retune_to_zpk(st.space, x));
+    rc.candidate.parameters = x;
+    rc.candidate.origin = st.origin + (k % 2 == 0 ? " pulled back towards the current design" : " as designed") + " (current)";
+    rc.change_decades = change_distance(st.space, x);
+    rc.response_change = response_distance(rc.candidate.compensator, *spec.current, rep.frequency_range);
+    rc.changes = change_list(st.space, x, spec, rep.region, rep.current);
+    out[k] = rc;
+  });
+  // Distinct ones only (a pull back that did not move duplicates its start).
+  std::vector<RetuneCandidate> distinct;
+  for (const RetuneCandidate& c : out) {
+    bool same = false;
+    for (const RetuneCandidate& d2 : distinct) {
+      double dist = 0.0;
+      for (size_t i = 0; i < c.candidate.parameters.size(); ++i)
+        dist = std::max(dist, std::abs(c.candidate.parameters[i] - d2.candidate.parameters[i]));
+      same = same || dist <= o.distinct_decades;
+    }
+    if (!same) distinct.push_back(c);
+  }
+  return distinct;
+}
+
 }  // namespace
 
 RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
@@ -271,11 +277,11 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
   rep.plants = spec.plants;
   rep.requirements = spec.requirements;
   rep.analysis = spec.analysis;
-  rep.region = region_from_requirements(spec.requirements);
-  rep.frequency_range = spec.stages.frequency_range_rad_s ? *spec.stages.frequency_range_rad_s
-                                                          : default_frequency_range(spec.plants, rep.region);
+  const Verifier verifier(LoopContext::FromSpec(spec));
+  rep.region = verifier.context().region;
+  rep.frequency_range = verifier.context().frequency_range;
   for (const Plant& p : spec.plants) check_cancellations(*spec.current, p, "$.current");
-  rep.current = verify(*spec.current, spec, rep.region);
+  rep.current = verifier.verify(*spec.current);
   rep.current.rank = 0;
   rep.current.origin = "current";
   rep.summary.seed = o.seed;
@@ -287,8 +293,8 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
   }
 
   const AnalysisOptions screening = AnalysisOptions::Screening(spec.analysis);
-  const ParamSpace dummy = make_param_space(Structure{}, rep.frequency_range, -1.0, 1.0, 1.0);
-  const DesignProblem screen(spec.plants, spec.requirements, rep.region, screening, Objective::LeastEffort, dummy);
+  const CompensatorScorer screen(spec.plants, spec.requirements, rep.region, screening, Objective::LeastEffort,
+                                 std::sqrt(rep.frequency_range.first * rep.frequency_range.second));
 
   // Structure levels by added order: the current structure, then one order-1 stage, then a notch.
   std::vector<std::vector<std::vector<AddedStage>>> levels = {{{}}};
@@ -336,17 +342,14 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
       results[i] = local_retune(spaces[tasks[i].space], screen, tasks[i].x0, o, evals[i]);
       results[i].origin = tasks[i].origin;
     });
-    if (o.cancel && o.cancel->load()) break;  // stopped from outside: the report is dropped
     for (long long e : evals) rep.summary.evaluations += e;
     rep.summary.local_runs += static_cast<int>(tasks.size());
     rep.summary.structures_searched += static_cast<int>(spaces.size());
     // Screening-feasible points by distance, distinct ones only, then full-accuracy verification.
     std::vector<size_t> order(tasks.size());
     for (size_t i = 0; i < order.size(); ++i) order[i] = i;
-    std::stable_sort(order.begin(), order.end(), [&](size_t a, size_t b) {
-      if (results[a].feasible != results[b].feasible) return results[a].feasible;
-      return results[a].feasible ? results[a].distance < results[b].distance : results[a].violation < results[b].violation;
-    });
+    auto score_of = [&](size_t i) { return DesignScore{results[i].violation, results[i].distance, results[i].feasible}; };
+    std::stable_sort(order.begin(), order.end(), [&](size_t a, size_t b) { return better_score(score_of(a), score_of(b)); });
     std::vector<size_t> picked;
     for (size_t i : order) {
       bool distinct = true;
@@ -364,7 +367,7 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
       const RetuneSpace& rs = spaces[tasks[i].space];
       RetuneCandidate rc;
       rc.added = rs.added;
-      rc.candidate = verify(retune_to_zpk(rs, results[i].x), spec, rep.region);
+      rc.candidate = verifier.verify(retune_to_zpk(rs, results[i].x));
       rc.candidate.parameters = results[i].x;
       rc.candidate.origin = results[i].origin + " (" + structure_label(rs) + ")";
       rc.change_decades = change_distance(rs, results[i].x);
@@ -373,7 +376,14 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
       level_found[k] = rc;
     });
     found.insert(found.end(), level_found.begin(), level_found.end());
-    const bool any_meets = std::any_of(found.begin(), found.end(), [](const RetuneCandidate& c) { return c.candidate.meets; });
+    bool any_meets = std::any_of(found.begin(), found.end(), [](const RetuneCandidate& c) { return c.candidate.meets; });
+    // Escalation in the current structure (before any stage is added): design's verified
+    // candidates of the same structure, each pulled back towards the current design.
+    if (!any_meets && &level == &levels.front() && o.budget_s > 0.0 && !(o.cancel && o.cancel->load())) {
+      const std::vector<RetuneCandidate> more = from_design(spec, o, verifier, screen, rep);
+      found.insert(found.end(), more.begin(), more.end());
+      any_meets = std::any_of(found.begin(), found.end(), [](const RetuneCandidate& c) { return c.candidate.meets; });
+    }
     if (any_meets) break;
   }
   // Meeting candidates first, then the fewest added stages, then the smallest change.

@@ -51,8 +51,10 @@ std::vector<PlantLimit> plant_limits(const std::vector<Plant>& plants, const Req
     }
     if (pmax > 0.0) {
       const double lo = 2.0 * pmax;
-      const std::optional<double> cap = cmax ? cmax : bmax;
-      PlantLimit l{"unstable_pole", p.name, pmax, std::nullopt, lo, cap && *cap < lo, cap && *cap < lo ? (cmax ? "crossover_rad_s" : "bandwidth_rad_s") : "", ""};
+      const std::optional<double> cap = cmax ? cmax : (bmax ? std::optional<double>(*bmax) : std::nullopt);
+      // value_or, not *cap behind a has_value test: the same logic without GCC's -Wmaybe-uninitialized.
+      const bool capped = cap.value_or(INFINITY) < lo;
+      PlantLimit l{"unstable_pole", p.name, pmax, std::nullopt, lo, capped, capped ? (cmax ? "crossover_rad_s" : "bandwidth_rad_s") : "", ""};
       l.message = "unstable pole at " + fmt(pmax) + " rad/s needs a crossover above about " + fmt(lo) + " rad/s";
       if (l.binding) l.message += "; the requirements cap it at " + fmt(*cap) + " rad/s";
       out.push_back(l);

@@ -10,8 +10,8 @@ double objective_value(Objective o, const std::vector<MetricValue>& w, double hf
     return v.value ? *v.value : missing;
   };
   switch (o) {
-    case Objective::Fastest: return get(MetricId::SettlingTime, 1e9);
-    case Objective::MostRobust: return get(MetricId::PeakSensitivity, 1e9);
+    case Objective::Fastest: return get(MetricId::SettlingTime, kMissingObjective);
+    case Objective::MostRobust: return get(MetricId::PeakSensitivity, kMissingObjective);
     case Objective::LeastEffort:
     case Objective::Simplest:
     default: {
@@ -48,16 +48,20 @@ std::vector<MetricValue> worst_metrics(const std::vector<LoopEvaluation>& plants
   return out;
 }
 
+CompensatorScorer::CompensatorScorer(std::vector<Plant> plants, RequirementSet req, Region region,
+                                     AnalysisOptions screening, Objective objective, double frequency_ref)
+    : plants_(std::move(plants)), req_(std::move(req)), region_(region), opt_(screening), objective_(objective),
+      frequency_ref_(frequency_ref) {}
+
 DesignProblem::DesignProblem(std::vector<Plant> plants, RequirementSet req, Region region, AnalysisOptions screening,
                              Objective objective, ParamSpace space)
-    : plants_(std::move(plants)), req_(std::move(req)), region_(region), opt_(screening), objective_(objective),
-      space_(std::move(space)) {
-  frequency_ref_ = std::sqrt(space_.freq_lo * space_.freq_hi);
-}
+    : space_(std::move(space)),
+      scorer_(std::move(plants), std::move(req), region, screening, objective,
+              std::sqrt(space_.freq_lo * space_.freq_hi)) {}
 
-DesignScore DesignProblem::score(const std::vector<double>& x) const { return score_compensator(params_to_zpk(space_, x)); }
+DesignScore DesignProblem::score(const std::vector<double>& x) const { return scorer_.score(params_to_zpk(space_, x)); }
 
-DesignScore DesignProblem::score_compensator(const Zpk& c) const {
+DesignScore CompensatorScorer::score(const Zpk& c) const {
   EvaluationNeeds needs;
   needs.everything = false;
   needs.step = objective_ == Objective::LeastEffort || objective_ == Objective::Simplest || objective_ == Objective::Fastest ||
@@ -71,16 +75,16 @@ DesignScore DesignProblem::score_compensator(const Zpk& c) const {
     evals.push_back(evaluate_loop(c, p, req_, region_, opt_, needs));
     const LoopEvaluation& e = evals.back();
     if (!e.well_posed) {
-      unstable += 200.0;
+      unstable += kIllPosedPenalty;
     } else if (!e.stable) {
       // Graded: how far the rightmost pole sits in the right half plane, so the search can climb out.
       const double re = e.poles.poles.empty() ? 0.0 : e.poles.poles.front().pole.real();
-      unstable += 100.0 + 100.0 * std::tanh(std::max(re, 0.0) / frequency_ref_);
+      unstable += kUnstablePenalty + kUnstablePenalty * std::tanh(std::max(re, 0.0) / frequency_ref_);
     }
   }
   const std::vector<MetricValue> worst = worst_metrics(evals, req_);
   if (unstable > 0.0) {
-    s.violation = 1e3 + unstable;
+    s.violation = kUnstableViolation + unstable;
     return s;
   }
   for (const Requirement& r : req_.items) {

@@ -9,7 +9,7 @@ namespace pw {
 namespace {
 
 constexpr double kZetaMax = 0.999;  // a pair stays a pair
-constexpr double kRatioMax = 50.0;  // added first-order stage: p / z up to this (common practice)
+constexpr double kRatioMax = kStageRatioMax;  // added first-order stage: p / z up to this
 
 bool at_origin(Complex r, double scale) { return std::abs(r) <= 1e-12 * scale; }
 bool is_real(Complex r) { return std::abs(r.imag()) <= 1e-12 * std::abs(r); }
@@ -48,7 +48,7 @@ Zpk added_stage_zpk(AddedStage kind, const double* p) {
   return z;
 }
 
-int added_dim(AddedStage s) { return s == AddedStage::FirstOrder ? 2 : (s == AddedStage::Notch ? 3 : 1); }
+int added_dim(AddedStage s) { return added_stage_parameters(s); }
 
 double stage_rms_decades(const Zpk& stage, std::pair<double, double> range) {
   const int n = 60;
@@ -72,7 +72,18 @@ const char* added_stage_name(AddedStage s) {
   return "?";
 }
 
-int added_stage_order(AddedStage s) { return s == AddedStage::Notch ? 2 : 1; }
+StageKind added_stage_kind(AddedStage s) {
+  switch (s) {
+    case AddedStage::FirstOrder: return StageKind::Lead;
+    case AddedStage::Notch: return StageKind::Notch;
+    case AddedStage::Integrator: return StageKind::Integrator;
+  }
+  return StageKind::Lead;
+}
+
+int added_stage_parameters(AddedStage s) { return stage_facts(added_stage_kind(s)).parameters; }
+
+int added_stage_order(AddedStage s) { return stage_facts(added_stage_kind(s)).order; }
 
 double bode_gain(const Zpk& z) {
   const double scale = zpk_frequency_scale(z);
@@ -128,8 +139,8 @@ RetuneSpace make_retune_space(const Zpk& current, std::pair<double, double> rang
       push(rs, tag + " ratio", 0.0, -std::log10(kRatioMax), std::log10(kRatioMax));
     } else if (s == AddedStage::Notch) {
       push(rs, tag + " centre", mid, llo, lhi);
-      push(rs, tag + " depth", 0.0, std::log10(0.003), 0.0);
-      push(rs, tag + " width", std::log10(0.3), std::log10(0.08), 0.0);
+      push(rs, tag + " depth", 0.0, std::log10(kNotchDepthMin), 0.0);
+      push(rs, tag + " width", std::log10(0.3), std::log10(kNotchWidthMin), 0.0);
     } else {
       push(rs, tag + " corner", llo, llo, lhi);
     }
@@ -171,6 +182,72 @@ Zpk retune_to_zpk(const RetuneSpace& rs, const std::vector<double>& xin) {
     p += added_dim(s);
   }
   return z;
+}
+
+bool retune_params_of(RetuneSpace& rs, const Zpk& z, std::vector<double>* out) {
+  if (!rs.added.empty() || rs.factors.empty()) return false;
+  const double scale = zpk_frequency_scale(z);
+  // The roots of each kind, by magnitude (pairs: the upper root).
+  std::vector<Complex> roots[6];  // RealZero, RealPole, ZeroPair, PolePair, OriginZero, OriginPole
+  auto kind_index = [](FactorKind k) {
+    switch (k) {
+      case FactorKind::RealZero: return 0;
+      case FactorKind::RealPole: return 1;
+      case FactorKind::ZeroPair: return 2;
+      case FactorKind::PolePair: return 3;
+      case FactorKind::OriginZero: return 4;
+      case FactorKind::OriginPole: return 5;
+      default: return -1;
+    }
+  };
+  for (int zeros = 1; zeros >= 0; --zeros)
+    for (const Complex& r : zeros ? z.zeros : z.poles) {
+      if (at_origin(r, scale)) roots[zeros ? 4 : 5].push_back(r);
+      else if (is_real(r)) roots[zeros ? 0 : 1].push_back(Complex(r.real(), 0.0));
+      else if (r.imag() > 0.0) roots[zeros ? 2 : 3].push_back(r);
+    }
+  for (auto& v : roots) std::stable_sort(v.begin(), v.end(), [](Complex a, Complex b) { return std::abs(a) < std::abs(b); });
+  std::vector<Complex> wanted[6];
+  for (const Factor& f : rs.factors) {
+    const int k = kind_index(f.kind);
+    if (k >= 0) wanted[k].push_back(f.root);
+  }
+  for (int k = 0; k < 6; ++k)
+    if (wanted[k].size() != roots[k].size()) return false;
+  std::vector<double> x(rs.current);
+  const double K = bode_gain(z);
+  if (!(K != 0.0) || !std::isfinite(K) || (K < 0.0) != (rs.factors[0].sign < 0.0)) return false;
+  x[0] = std::log10(std::abs(K));
+  size_t used[6] = {0, 0, 0, 0, 0, 0};
+  std::vector<std::pair<size_t, Complex>> order[6];  // factor index by magnitude of its current root
+  for (size_t i = 0; i < rs.factors.size(); ++i) {
+    const int k = kind_index(rs.factors[i].kind);
+    if (k >= 0) order[k].push_back({i, rs.factors[i].root});
+  }
+  for (auto& v : order)
+    std::stable_sort(v.begin(), v.end(), [](const std::pair<size_t, Complex>& a, const std::pair<size_t, Complex>& b) {
+      return std::abs(a.second) < std::abs(b.second);
+    });
+  for (int k = 0; k < 4; ++k)
+    for (const auto& fi : order[k]) {
+      const Factor& f = rs.factors[fi.first];
+      const Complex r = roots[k][used[k]++];
+      if (k < 2) {
+        if ((r.real() < 0.0 ? 1.0 : -1.0) != f.sign) return false;
+        x[static_cast<size_t>(f.first_param)] = std::log10(std::abs(r.real()));
+      } else {
+        const double wn = std::abs(r), zeta = -r.real() / wn;
+        if ((zeta < 0.0 ? -1.0 : 1.0) != f.sign || std::abs(zeta) >= 1.0) return false;
+        x[static_cast<size_t>(f.first_param)] = std::log10(wn);
+        x[static_cast<size_t>(f.first_param) + 1] = std::log10(std::max(std::abs(zeta), 1e-6));
+      }
+    }
+  for (size_t i = 0; i < x.size(); ++i) {
+    rs.lower[i] = std::min(rs.lower[i], x[i]);
+    rs.upper[i] = std::max(rs.upper[i], x[i]);
+  }
+  *out = x;
+  return true;
 }
 
 double change_distance(const RetuneSpace& rs, const std::vector<double>& x) {

@@ -122,7 +122,7 @@ std::vector<Seed> published_seeds(const ParamSpace& ps, const Plant& nominal, co
     {
       size_t j = 1;
       for (StageKind k : ps.stages) {
-        const size_t w = k == StageKind::Integrator ? 1 : (k == StageKind::Notch ? 3 : 2);
+        const size_t w = static_cast<size_t>(stage_facts(k).parameters);
         if (k == StageKind::Integrator || k == StageKind::Notch)
           for (size_t q = 0; q < w; ++q) xf.push_back(x[j + q]);
         j += w;

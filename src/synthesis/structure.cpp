@@ -5,15 +5,22 @@
 
 namespace pw {
 
-const char* stage_name(StageKind k) {
-  switch (k) {
-    case StageKind::Integrator: return "integrator";
-    case StageKind::Lead: return "lead";
-    case StageKind::Lag: return "lag";
-    case StageKind::Notch: return "notch";
-  }
-  return "?";
+namespace {
+constexpr StageFacts kStageTable[] = {
+    {StageKind::Integrator, "integrator", 1, 1},
+    {StageKind::Lead, "lead", 2, 1},
+    {StageKind::Lag, "lag", 2, 1},
+    {StageKind::Notch, "notch", 3, 2},
+};
+}  // namespace
+
+const StageFacts& stage_facts(StageKind k) {
+  for (const StageFacts& f : kStageTable)
+    if (f.kind == k) return f;
+  return kStageTable[0];
 }
+
+const char* stage_name(StageKind k) { return stage_facts(k).name; }
 
 std::vector<StageKind> Structure::stages() const {
   std::vector<StageKind> out;

@@ -1,6 +1,10 @@
 #include <catch2/catch.hpp>
 
+#include <algorithm>
+#include <atomic>
+
 #include "polewright/synthesis/local_search.hpp"
+#include "polewright/synthesis/problem.hpp"
 #include "polewright/synthesis/seeds.hpp"
 
 using namespace pw;
@@ -32,4 +36,48 @@ TEST_CASE("local search reaches feasibility from a poor start and then lowers th
   LocalOptions bad;
   bad.algorithm = "NOT_AN_ALGORITHM";
   CHECK_FALSE(bad.IsValid(&err));
+}
+
+namespace {
+// A toy problem with a known answer: feasible for x0 + x1 >= 1, objective x0^2 + x1^2; the
+// constrained minimum is (0.5, 0.5) with objective 0.5 (Lagrange multipliers, closed form).
+class HalfPlane : public Problem {
+ public:
+  int dim() const override { return 2; }
+  const std::vector<double>& lower() const override { return lo_; }
+  const std::vector<double>& upper() const override { return hi_; }
+  DesignScore score(const std::vector<double>& x) const override {
+    DesignScore s;
+    s.violation = std::max(0.0, 1.0 - x[0] - x[1]);
+    s.feasible = s.violation == 0.0;
+    s.objective = x[0] * x[0] + x[1] * x[1];
+    return s;
+  }
+
+ private:
+  std::vector<double> lo_{-3.0, -3.0}, hi_{3.0, 3.0};
+};
+}  // namespace
+
+TEST_CASE("local search works on any problem; the anchor pulls a feasible point back", "[synthesis][local_search]") {
+  const HalfPlane p;
+  LocalOptions o;
+  o.objective_evaluations = 600;
+  const LocalResult r = local_search(p, {2.5, 2.5}, o);
+  REQUIRE(r.score.feasible);
+  CHECK(r.score.objective == Approx(0.5).epsilon(1e-2));
+  // With the anchor at the origin the pull back alone (no objective phase) moves a feasible start
+  // (2, 2) along the segment: its first bisection point (1, 1) is feasible and becomes the far end
+  // of the segment (the end follows the best point), whose feasible part ends at (0.5, 0.5).
+  LocalOptions a;
+  a.objective_evaluations = 0;
+  a.anchor = {0.0, 0.0};
+  const LocalResult pulled = local_search(p, {2.0, 2.0}, a);
+  REQUIRE(pulled.score.feasible);
+  CHECK(pulled.x[0] == pulled.x[1]);  // still on the segment
+  CHECK(pulled.x[0] <= 1.0);
+  CHECK(pulled.x[0] >= 0.5);
+  CHECK(pulled.evaluations == 1 + a.anchor_bisections);
+  std::atomic<bool> stop{true};  // cancelled before it starts: only the start is scored
+  CHECK(local_search(p, {-2.0, -2.0}, o, &stop).evaluations == 1);
 }

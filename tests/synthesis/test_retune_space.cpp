@@ -98,3 +98,29 @@ TEST_CASE("response distance: a gain of ten is one decade; identical is zero", "
 TEST_CASE("a zero gain has no factorisation", "[synthesis][retune_space]") {
   CHECK_THROWS_AS(make_retune_space(make(0.0, {}, {Complex(-1, 0)}), {0.1, 10.0}), std::invalid_argument);
 }
+
+TEST_CASE("retune_params_of maps a compensator of the same structure into the retune space", "[synthesis][retune_space]") {
+  Zpk cur;  // 2 (s + 1)(s^2 + 0.6 s + 9) / ((s + 10)(s^2 + 6 s + 25))
+  cur.gain = 2.0;
+  cur.zeros = {Complex(-1, 0), Complex(-0.3, std::sqrt(9 - 0.09)), Complex(-0.3, -std::sqrt(9 - 0.09))};
+  cur.poles = {Complex(-10, 0), Complex(-3, 4), Complex(-3, -4)};
+  RetuneSpace rs = make_retune_space(cur, {0.1, 100.0});
+  std::vector<double> x;
+  REQUIRE(retune_params_of(rs, cur, &x));
+  for (size_t i = 0; i < x.size(); ++i) CHECK(x[i] == Approx(rs.current[i]).margin(1e-12));
+  // Another of the same kinds, outside the corner bounds: the bounds widen and the map is exact.
+  Zpk other = cur;
+  other.zeros[0] = Complex(-0.001, 0);
+  other.poles[1] = Complex(-30, 40);
+  other.poles[2] = Complex(-30, -40);
+  REQUIRE(retune_params_of(rs, other, &x));
+  const Zpk back = retune_to_zpk(rs, x);
+  for (double w : {0.01, 1.0, 50.0}) {
+    const Complex a = back.evaluate(Complex(0, w)), b = other.evaluate(Complex(0, w));
+    CHECK(std::abs(a - b) <= 1e-9 * std::abs(b));  // the same frequency response
+  }
+  // A different structure (a real pole pair instead of the complex one) does not map.
+  Zpk real_poles = cur;
+  real_poles.poles = {Complex(-10, 0), Complex(-2, 0), Complex(-12, 0)};
+  CHECK_FALSE(retune_params_of(rs, real_poles, &x));
+}

@@ -1,6 +1,8 @@
 #include <catch2/catch.hpp>
 
 #include "polewright/synthesis/structure.hpp"
+#include "polewright/synthesis/parameters.hpp"
+#include "polewright/synthesis/retune_space.hpp"
 
 using namespace pw;
 
@@ -21,4 +23,28 @@ TEST_CASE("structures are enumerated simplest first", "[synthesis][structure]") 
   REQUIRE(enumerate_structures(on).size() == 1);
   CHECK(enumerate_structures(on)[0].integrator);
   CHECK(std::string(stage_name(StageKind::Notch)) == "notch");
+}
+
+TEST_CASE("one stage table: parameter counts agree with both parametrisations", "[synthesis][structure]") {
+  // Each stage's parameters as make_param_space lays them out, and an added stage's as
+  // make_retune_space does; the orders are those of the stage's transfer function (a first-order
+  // lead or lag, a second-order notch, (s + wi)/s).
+  for (StageKind k : {StageKind::Integrator, StageKind::Lead, StageKind::Lag, StageKind::Notch}) {
+    Structure s;
+    s.integrator = k == StageKind::Integrator;
+    s.lead = k == StageKind::Lead;
+    s.lag = k == StageKind::Lag;
+    s.notch = k == StageKind::Notch;
+    CHECK(make_param_space(s, {0.1, 100.0}, -1, 1, 1.0).dim() == 1 + stage_facts(k).parameters);
+    CHECK(s.order() == stage_facts(k).order);
+    CHECK(std::string(stage_name(k)) == stage_facts(k).name);
+  }
+  Zpk unit;
+  unit.gain = 1.0;
+  for (AddedStage a : {AddedStage::FirstOrder, AddedStage::Notch, AddedStage::Integrator}) {
+    const RetuneSpace rs = make_retune_space(unit, {0.1, 100.0}, {a});
+    CHECK(rs.dim() - rs.base_dim == added_stage_parameters(a));
+    const Zpk z = retune_to_zpk(rs, rs.current);
+    CHECK(static_cast<int>(z.poles.size()) == added_stage_order(a));
+  }
 }

@@ -9,6 +9,7 @@
 
 #include "polewright/requirements/evaluate.hpp"
 #include "polewright/requirements/spec.hpp"
+#include "polewright/synthesis/candidate.hpp"
 #include "polewright/synthesis/limits.hpp"
 #include "polewright/synthesis/local_search.hpp"
 #include "polewright/synthesis/structure.hpp"
@@ -21,7 +22,12 @@ struct DesignOptions {
   int threads = 0;                        // 0 = all cores; results do not depend on it
   Objective objective = Objective::LeastEffort;
   long long max_evaluations = 200000;     // checked between structure levels (deterministic)
-  double time_limit_s = 30.0;             // checked between structure levels (a safety stop)
+  double time_limit_s = 30.0;             // checked between structure levels and escalation rounds (a safety stop)
+  // Escalation when the first pass has no verified design: rounds of near-miss polish, fresh
+  // starts and global search until a design meets or this budget is spent. The budget is counted
+  // in screening evaluations (budget_s times a nominal rate, see design.cpp), so the same spec,
+  // seed and threads give the same result on any machine; 0 turns the escalation off.
+  double budget_s = 10.0;
   LocalOptions local;
   int global_points_base = 12;            // screening points per structure: base + per_dim * dim
   int global_points_per_dim = 4;
@@ -31,24 +37,11 @@ struct DesignOptions {
   int extra_levels = 0;                   // structure levels searched after the first one that fills `keep`
   bool explain_failure = true;            // binding requirements when nothing meets
   std::optional<Requirement> metric_objective;  // internal: optimise this metric instead (relaxed searches)
-  // Set from another thread to stop the search (checked between tasks and in every local search);
-  // the report returned after a stop is incomplete and is meant to be dropped.
+  // When given and set, the search stops at its next check (between tasks and inside every local
+  // search); the result so far is returned.
   const std::atomic<bool>* cancel = nullptr;
   bool IsValid(std::string* error) const;
   static DesignOptions FromSpec(const Spec& spec);
-};
-
-struct Candidate {
-  int rank = 0;
-  Structure structure;
-  Zpk compensator;
-  std::vector<double> parameters;
-  std::string origin;                  // which start led here
-  Evaluation verification;             // full-accuracy check over every plant
-  std::vector<MetricValue> worst;      // worst case over the plants, per MetricId
-  bool meets = false;
-  double objective = 0.0;
-  double violation = 0.0;
 };
 
 struct BindingRequirement {
@@ -57,8 +50,20 @@ struct BindingRequirement {
   bool relaxing_meets_the_rest = false;
 };
 
+// What one phase of the search spent.
+struct SearchPhase {
+  std::string name;        // "first pass", "escalation round 1", ...
+  long long evaluations = 0;
+  int local_runs = 0;
+  double seconds = 0.0;
+};
+
 struct DesignSummary {
   long long evaluations = 0;
+  std::vector<SearchPhase> phases;
+  long long escalation_budget = 0;  // evaluations the escalation could spend (0: it did not run)
+  long long escalation_spent = 0;
+  bool met = false;                 // the search ended with a design that meets everything
   double seconds = 0.0;
   std::optional<double> first_verified_s;  // time to the first verified design that meets everything
   int structures_searched = 0;

@@ -4,6 +4,7 @@
 // first, only when moving the existing ones cannot meet the requirements.
 #pragma once
 
+#include <atomic>
 #include <optional>
 #include <string>
 #include <vector>
@@ -25,8 +26,11 @@ struct RetuneOptions {
   double gain_decades = 2.0;         // how far the gain may move either way
   double penalty = 30.0;             // weight of the violation against the squared distance (phase 1)
   double distinct_decades = 0.02;    // least parameter distance (max norm) between two candidates
-  // Set from another thread to stop the search (checked between tasks and in every local run);
-  // the report returned after a stop is incomplete and is meant to be dropped.
+  // Escalation when no retune of the current structure meets (see run_retune): design's verified
+  // candidates of the current structure pulled back towards the current design, then wider starts
+  // with larger budgets; counted in evaluations like design's (0 = none).
+  double budget_s = 10.0;
+  // When given and set, the search stops at its next check (inside every local search).
   const std::atomic<bool>* cancel = nullptr;
   bool IsValid(std::string* error) const;
   static RetuneOptions FromSpec(const Spec& spec);

@@ -49,6 +49,7 @@ struct SearchSettings {
   int threads = 0;  // 0 = all cores
   long long max_evaluations = 200000;
   double time_limit_s = 30.0;
+  double budget_s = 10.0;  // escalation budget when the first pass finds nothing (jobs/design.hpp)
 };
 
 struct Spec {

@@ -21,10 +21,10 @@ namespace pw {
 
 struct StageLimits {
   double ratio_min = 1.2;    // lead a and lag r
-  double ratio_max = 50.0;
-  double depth_min = 0.003;  // notch zeta_zero / zeta_pole
+  double ratio_max = kStageRatioMax;
+  double depth_min = kNotchDepthMin;  // notch zeta_zero / zeta_pole
   double depth_max = 0.7;
-  double width_min = 0.08;   // notch zeta_pole
+  double width_min = kNotchWidthMin;  // notch zeta_pole
   double width_max = 1.0;    // critically damped at most: the poles stay at the centre
 };
 

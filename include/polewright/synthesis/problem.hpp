@@ -1,5 +1,6 @@
-// The design problem (pagmo style: the problem knows how to score a point, the algorithm does not
-// know what a loop is). One point is scored over every plant with the cheap screening evaluator.
+// The design problem: a point of a structure's parameter space is scored over every plant with
+// the cheap screening evaluator. The scoring of one compensator (CompensatorScorer) is shared with
+// the retune problem (retune_problem.hpp), which maps its own parameters to a compensator.
 #pragma once
 
 #include <optional>
@@ -8,14 +9,9 @@
 #include "polewright/requirements/evaluate.hpp"
 #include "polewright/requirements/spec.hpp"
 #include "polewright/synthesis/parameters.hpp"
+#include "polewright/synthesis/search_problem.hpp"
 
 namespace pw {
-
-struct DesignScore {
-  double violation = 0.0;  // sum over requirements of the worst normalised violation; 0 = feasible
-  double objective = 0.0;  // lower is better; meaningful when feasible
-  bool feasible = false;
-};
 
 // The objective of a set of worst-case metrics (lower is better):
 //   least_effort  log10(peak effort) + 0.25 log10 |C(inf)|   (effort and high-frequency gain)
@@ -28,18 +24,19 @@ double objective_value(Objective o, const std::vector<MetricValue>& worst, doubl
 // bounded above, lower for those bounded below; min-or-max metrics take the requirement's side).
 std::vector<MetricValue> worst_metrics(const std::vector<LoopEvaluation>& plants, const RequirementSet& req);
 
-class DesignProblem {
+// Scores one compensator over every plant: the violation of the requirements (with the graded
+// penalties of search_problem.hpp for loops that are not stable) and the objective.
+class CompensatorScorer {
  public:
-  DesignProblem(std::vector<Plant> plants, RequirementSet req, Region region, AnalysisOptions screening,
-                Objective objective, ParamSpace space);
+  // `frequency_ref` (rad/s) scales the graded instability penalty.
+  CompensatorScorer(std::vector<Plant> plants, RequirementSet req, Region region, AnalysisOptions screening,
+                    Objective objective, double frequency_ref);
 
   // Replaces the objective by one metric (lower is better for an upper bound, higher for a lower
   // bound): used to find the best value of a requirement that is relaxed.
   void set_metric_objective(const Requirement& r) { metric_objective_ = r; }
 
-  DesignScore score(const std::vector<double>& x) const;
-  DesignScore score_compensator(const Zpk& c) const;
-  const ParamSpace& space() const { return space_; }
+  DesignScore score(const Zpk& c) const;
   const RequirementSet& requirements() const { return req_; }
 
  private:
@@ -48,9 +45,28 @@ class DesignProblem {
   Region region_;
   AnalysisOptions opt_;
   Objective objective_;
-  ParamSpace space_;
   double frequency_ref_;
   std::optional<Requirement> metric_objective_;
+};
+
+class DesignProblem : public Problem {
+ public:
+  DesignProblem(std::vector<Plant> plants, RequirementSet req, Region region, AnalysisOptions screening,
+                Objective objective, ParamSpace space);
+
+  void set_metric_objective(const Requirement& r) { scorer_.set_metric_objective(r); }
+
+  int dim() const override { return space_.dim(); }
+  const std::vector<double>& lower() const override { return space_.lower; }
+  const std::vector<double>& upper() const override { return space_.upper; }
+  DesignScore score(const std::vector<double>& x) const override;
+  DesignScore score_compensator(const Zpk& c) const { return scorer_.score(c); }
+  const ParamSpace& space() const { return space_; }
+  const RequirementSet& requirements() const { return scorer_.requirements(); }
+
+ private:
+  ParamSpace space_;
+  CompensatorScorer scorer_;
 };
 
 }  // namespace pw

@@ -21,6 +21,7 @@
 #include <vector>
 
 #include "polewright/model/zpk.hpp"
+#include "polewright/synthesis/structure.hpp"
 
 namespace pw {
 
@@ -29,6 +30,11 @@ enum class AddedStage { FirstOrder, Notch, Integrator };
 const char* added_stage_name(AddedStage s);
 // Order an added stage adds to the compensator.
 int added_stage_order(AddedStage s);
+// The design stage whose facts (structure.hpp's table) an added stage shares: a first-order stage
+// is a lead or a lag (both have the same facts).
+StageKind added_stage_kind(AddedStage s);
+// Parameters of an added stage (the table's count).
+int added_stage_parameters(AddedStage s);
 
 struct Factor {
   FactorKind kind = FactorKind::Gain;
@@ -56,6 +62,12 @@ RetuneSpace make_retune_space(const Zpk& current, std::pair<double, double> rang
                               double gain_decades = 2.0);
 
 Zpk retune_to_zpk(const RetuneSpace& rs, const std::vector<double>& x);
+
+// The parameters of `z` in the space of the current design's factors (no added stages): every
+// factor kind (real zeros, zero pairs, real poles, pole pairs, roots at the origin) must come in the
+// same number, with the same signs; roots are matched to the factors of their kind in order of
+// magnitude. The bounds of `rs` are widened to hold the point. False when the structures differ.
+bool retune_params_of(RetuneSpace& rs, const Zpk& z, std::vector<double>* x);
 
 // Low-frequency (Bode-form) gain of a compensator: see the file comment.
 double bode_gain(const Zpk& z);

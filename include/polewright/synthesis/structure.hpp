@@ -12,6 +12,23 @@ enum class StageKind { Integrator, Lead, Lag, Notch };
 
 const char* stage_name(StageKind k);
 
+// The one table of per-stage facts, shared by the design parametrisation (parameters.cpp, its
+// seeds) and the stages a retune adds (retune_space.cpp): its name, how many parameters it has and
+// the order it adds to the compensator, and the bounds every parametrisation of it keeps.
+struct StageFacts {
+  StageKind kind;
+  const char* name;
+  int parameters;  // integrator: corner; lead, lag: ratio and position (retune: centre and ratio);
+                   // notch: centre, depth and width
+  int order;
+};
+const StageFacts& stage_facts(StageKind k);
+
+// Bounds shared by both parametrisations (common practice).
+constexpr double kStageRatioMax = 50.0;   // pole / zero of a lead or lag
+constexpr double kNotchDepthMin = 0.003;  // zeta_zero / zeta_pole of a notch
+constexpr double kNotchWidthMin = 0.08;   // zeta_pole of a notch
+
 struct Structure {
   bool integrator = false;
   int lead = 0;

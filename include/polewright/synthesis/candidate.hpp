@@ -1,0 +1,52 @@
+// A verified compensator, and the verifier that makes one: the shared loop context (plants,
+// requirements, region, analysis options, frequency range) and a compensator in, the full-accuracy
+// check over every plant out. Design, retune and sweep verify through it.
+#pragma once
+
+#include <string>
+#include <utility>
+#include <vector>
+
+#include "polewright/requirements/evaluate.hpp"
+#include "polewright/requirements/spec.hpp"
+#include "polewright/synthesis/structure.hpp"
+
+namespace pw {
+
+struct Candidate {
+  int rank = 0;
+  Structure structure;
+  Zpk compensator;
+  std::vector<double> parameters;
+  std::string origin;                  // which start led here
+  Evaluation verification;             // full-accuracy check over every plant
+  std::vector<MetricValue> worst;      // worst case over the plants, per MetricId
+  bool meets = false;
+  double objective = 0.0;
+  double violation = 0.0;
+};
+
+// What every search of one spec shares: the loop and how it is judged.
+struct LoopContext {
+  std::vector<Plant> plants;
+  RequirementSet requirements;
+  Region region;
+  AnalysisOptions analysis;              // full accuracy (the screening options derive from it)
+  std::pair<double, double> frequency_range;  // rad/s: where compensator corners go
+
+  // The context of a spec: region from its requirements, the spec's frequency range or the default.
+  static LoopContext FromSpec(const Spec& spec);
+};
+
+class Verifier {
+ public:
+  explicit Verifier(LoopContext context) : context_(std::move(context)) {}
+  // The full-accuracy check of `compensator` over every plant; the objective as the search ranks it.
+  Candidate verify(const Zpk& compensator, Objective objective = Objective::LeastEffort) const;
+  const LoopContext& context() const { return context_; }
+
+ private:
+  LoopContext context_;
+};
+
+}  // namespace pw

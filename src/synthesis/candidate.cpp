@@ -1,0 +1,30 @@
+#include "polewright/synthesis/candidate.hpp"
+
+#include "polewright/synthesis/parameters.hpp"
+#include "polewright/synthesis/problem.hpp"
+
+namespace pw {
+
+LoopContext LoopContext::FromSpec(const Spec& spec) {
+  LoopContext c;
+  c.plants = spec.plants;
+  c.requirements = spec.requirements;
+  c.region = region_from_requirements(spec.requirements);
+  c.analysis = spec.analysis;
+  c.frequency_range = spec.stages.frequency_range_rad_s ? *spec.stages.frequency_range_rad_s
+                                                        : default_frequency_range(spec.plants, c.region);
+  return c;
+}
+
+Candidate Verifier::verify(const Zpk& compensator, Objective objective) const {
+  Candidate c;
+  c.compensator = compensator;
+  c.verification = evaluate_all(compensator, context_.plants, context_.requirements, context_.region, context_.analysis);
+  c.worst = worst_metrics(c.verification.plants, context_.requirements);
+  c.meets = c.verification.all_met;
+  c.violation = c.verification.total_violation;
+  c.objective = objective_value(objective, c.worst, compensator.gain);
+  return c;
+}
+
+}  // namespace pw
