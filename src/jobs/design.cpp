@@ -249,7 +249,7 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
       lock.unlock();
       const size_t i = std::get<1>(task);
       Job& job = jobs[i];
-      const bool late = elapsed() >= o.time_limit_s;
+      const bool late = elapsed() >= o.time_limit_s || (o.cancel && o.cancel->load());
       if (late) {
         out_of_time = true;
       } else if (std::get<2>(task) == 0) {

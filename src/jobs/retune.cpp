@@ -58,8 +58,10 @@ struct RetuneProblem {
   const DesignProblem* screen;
   long long evaluations = 0;
   Point best;  // feasible with the least distance, else the least violation
+  const std::atomic<bool>* cancel = nullptr;
 
   Point score(const std::vector<double>& x) {
+    if (cancel && cancel->load(std::memory_order_relaxed)) return Point{x, INFINITY, false, INFINITY, ""};  // winding down
     ++evaluations;
     const DesignScore s = screen->score_compensator(retune_to_zpk(*space, x));
     Point p{x, change_distance(*space, x), s.feasible, s.violation, ""};
@@ -122,7 +124,7 @@ void pull_back(RetuneProblem& rp, const std::vector<double>& feasible) {
 // distance, then the squared distance with the requirements as a barrier.
 Point local_retune(const RetuneSpace& rs, const DesignProblem& screen, const std::vector<double>& x0,
                    const RetuneOptions& o, long long& evaluations) {
-  RetuneProblem rp{&rs, &screen, 0, Point{}};
+  RetuneProblem rp{&rs, &screen, 0, Point{}, o.cancel};
   rp.score(x0);
   if (!rp.best.feasible) run_phase(rp, x0, o.evaluations, 0.1, o.penalty, false);
   if (rp.best.feasible) {

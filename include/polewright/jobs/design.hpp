@@ -2,6 +2,7 @@
 // low-discrepancy starts, NLopt polish, full-accuracy verification, ranking with diversity.
 #pragma once
 
+#include <atomic>
 #include <optional>
 #include <string>
 #include <vector>
@@ -30,6 +31,7 @@ struct DesignOptions {
   int extra_levels = 0;                   // structure levels searched after the first one that fills `keep`
   bool explain_failure = true;            // binding requirements when nothing meets
   std::optional<Requirement> metric_objective;  // internal: optimise this metric instead (relaxed searches)
+  const std::atomic<bool>* cancel = nullptr;    // when set and true, the search stops at its next task (like the time limit)
   bool IsValid(std::string* error) const;
   static DesignOptions FromSpec(const Spec& spec);
 };

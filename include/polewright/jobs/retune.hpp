@@ -25,6 +25,7 @@ struct RetuneOptions {
   double gain_decades = 2.0;         // how far the gain may move either way
   double penalty = 30.0;             // weight of the violation against the squared distance (phase 1)
   double distinct_decades = 0.02;    // least parameter distance (max norm) between two candidates
+  const std::atomic<bool>* cancel = nullptr;  // when set and true, the remaining evaluations are skipped
   bool IsValid(std::string* error) const;
   static RetuneOptions FromSpec(const Spec& spec);
 };
