@@ -24,17 +24,22 @@ const pw::SweepFile& sweep() {
     "parameters": {"k": {"values": [1, 2, 3, 4]}}, "job": "check"})"));
   return f;
 }
+// Made once and never destroyed (the exit handler that removes it runs after static destructors
+// may have run).
 const std::string& directory() {
-  static const std::string dir = [] {
+  static const std::string* dir = [] {
     char tmpl[] = "/tmp/pw-fuzz-points-XXXXXX";
     const char* d = mkdtemp(tmpl);
     if (!d) std::abort();
-    const std::string out = std::string(d) + "/run";
-    { pw::SweepStore st(out, sweep(), {}, false); }  // writes sweep.json
-    std::atexit([] { std::filesystem::remove_all(std::filesystem::path(directory()).parent_path()); });
+    auto* out = new std::string(std::string(d) + "/run");
+    { pw::SweepStore st(*out, sweep(), {}, false); }  // writes sweep.json
+    std::atexit([] {
+      std::error_code ec;
+      std::filesystem::remove_all(std::filesystem::path(directory()).parent_path(), ec);
+    });
     return out;
   }();
-  return dir;
+  return *dir;
 }
 }  // namespace
 
