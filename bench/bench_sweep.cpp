@@ -46,7 +46,7 @@ RunFigures run_child(const nlohmann::json& doc, int threads) {
       for (long long i = 0; i < f.point_count(); ++i) o.todo.push_back(i);
       run_sweep(f, o, [&](const SweepPointResult& r) {
         store.append(r);
-        met += r.status == "met";
+        met += r.status == pw::PointStatus::Met;
       });
       store.finish();
     }

@@ -24,12 +24,12 @@ void register_design(CLI::App& app) {
   cmd->add_option("--report", a->report, "also write the HTML report to this file (atomically)");
   cmd->add_flag("--timing", a->timing, "add the timings to the JSON (they vary from run to run; without them the "
                                        "JSON is byte-identical for the same spec and seed on any thread count)");
-  cmd->add_option("--keep", a->keep, "number of candidates (overrides search.keep)")->check(CLI::Range(1, 100));
-  cmd->add_option("--seed", a->seed, "seed of the low-discrepancy starts (overrides search.seed)")->check(CLI::NonNegativeNumber);
+  cmd->add_option("--keep", a->keep, "number of candidates (overrides search.keep)")->check(whole_range(1, 100));
+  cmd->add_option("--seed", a->seed, "seed of the low-discrepancy starts (overrides search.seed)")->check(whole_range(0, 9007199254740991LL));  // the spec's search.seed range
   cmd->add_option("--budget-s", a->budget_s, "escalation budget when the first pass meets nothing, seconds at a nominal "
                                              "evaluation rate (counted in evaluations: deterministic; 0 = none; overrides search.budget_s)")
       ->check(CLI::Range(0.0, 1e7));
-  cmd->add_option("--threads", a->threads, "worker threads, 0 = all cores (overrides search.threads)")->check(CLI::Range(0, 1024));
+  cmd->add_option("--threads", a->threads, "worker threads, 0 = all cores (overrides search.threads)")->check(whole_range(0, 1024));
   cmd->add_option("--objective", a->objective, "least_effort, fastest, most_robust or simplest (overrides search.objective)")
       ->check(CLI::IsMember({"least_effort", "fastest", "most_robust", "simplest"}));
   cmd->callback([a] {

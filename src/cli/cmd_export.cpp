@@ -112,6 +112,14 @@ void register_export(CLI::App& app) {
         o.min_rate_ratio = number_option("--min-rate-ratio", a->rate, "a number > 0");
         const int rank = whole_option("--rank", a->rank, 1, 1000000);
         if (a->format == "c" && a->out == "-") throw SpecError("-o", "must name a base for OUT.h and OUT.c with --format c");
+        if (a->format == "c") {
+          // The files are named as given (OUT.h, OUT.c); the source includes OUT.h by that name.
+          const std::string base = strip_c_extension(a->out);
+          const size_t slash = base.find_last_of('/');
+          const std::string stem = slash == std::string::npos ? base : base.substr(slash + 1);
+          const std::string why = stem.empty() || stem == ".c" || stem == ".h" ? c_header_file_error("") : c_header_file_error(stem + ".h");
+          if (!why.empty()) throw SpecError("-o", "is \"" + a->out + "\": " + why);
+        }
 
         ResultInput in = parse_result(read_json_file(a->result));
         if (!a->spec.empty()) {
@@ -129,8 +137,10 @@ void register_export(CLI::App& app) {
         if (a->format == "c") {
           const std::string base = strip_c_extension(a->out);
           const std::string name = c_identifier(base);
-          emit(base + ".h", export_c_header(r, name));
-          emit(base + ".c", export_c_source(r, name));
+          const size_t slash = base.find_last_of('/');
+          const std::string stem = slash == std::string::npos ? base : base.substr(slash + 1);
+          emit(base + ".h", export_c_header(r, name, stem + ".h"));
+          emit(base + ".c", export_c_source(r, name, stem + ".h", stem + ".c"));
         } else if (a->format == "json") {
           emit(a->out, export_json(r).dump(1) + "\n");
         } else {

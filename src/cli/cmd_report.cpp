@@ -35,7 +35,10 @@ void register_report(CLI::App& app) {
         if (a->inputs.size() > 1) throw SpecError("RESULT", "give one result file (several inputs are for sweep shard directories)");
         for (const auto& [name, value] : {std::pair<const char*, const std::string*>{"--x", &a->x}, {"--y", &a->y}, {"--metric", &a->metric}})
           if (!value->empty()) throw SpecError(name, "applies to sweep directories only");
-        emit(a->out, report_html(parse_result(read_json_file(a->inputs.front()))));
+        const nlohmann::json doc = read_json_file(a->inputs.front());
+        if (doc.is_object() && doc.contains("base") && doc.contains("parameters") && !doc.contains("tool"))
+          throw SpecError("$", "is a sweep file, not a result: run it with `polewright sweep FILE --out DIR`, then report DIR");
+        emit(a->out, report_html(parse_result(doc)));
         return kExitMet;
       });
     });

@@ -26,12 +26,12 @@ void register_retune(CLI::App& app) {
   cmd->add_flag("--timing", a->timing, "add the timings to the JSON");
   cmd->add_flag("--allow-new-stages", a->allow_new,
                 "when moving the existing corners is not enough, add a stage (lead/lag or integrator, then a notch)");
-  cmd->add_option("--keep", a->keep, "number of candidates (overrides search.keep)")->check(CLI::Range(1, 100));
-  cmd->add_option("--seed", a->seed, "seed of the perturbed starts (overrides search.seed)")->check(CLI::NonNegativeNumber);
+  cmd->add_option("--keep", a->keep, "number of candidates (overrides search.keep)")->check(whole_range(1, 100));
+  cmd->add_option("--seed", a->seed, "seed of the perturbed starts (overrides search.seed)")->check(whole_range(0, 9007199254740991LL));  // the spec's search.seed range
   cmd->add_option("--budget-s", a->budget_s, "escalation budget when the first pass meets nothing, seconds at a nominal "
                                              "evaluation rate (counted in evaluations: deterministic; 0 = none; overrides search.budget_s)")
       ->check(CLI::Range(0.0, 1e7));
-  cmd->add_option("--threads", a->threads, "worker threads, 0 = all cores (overrides search.threads)")->check(CLI::Range(0, 1024));
+  cmd->add_option("--threads", a->threads, "worker threads, 0 = all cores (overrides search.threads)")->check(whole_range(0, 1024));
   cmd->callback([a] {
     select([a] {
       return guarded(a->spec, [&] {

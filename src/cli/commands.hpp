@@ -31,6 +31,14 @@ int run_selected();
 // Runs `body` and maps exceptions to exit codes with one line on stderr naming the file.
 int guarded(const std::string& file, const std::function<int()>& body);
 
+// A whole number within [lo, hi], read without wrapping or saturating (strtoll with its range
+// error checked); false for anything else.
+bool parse_whole(const std::string& text, long long lo, long long hi, long long* value);
+
+// A CLI11 check for an integer option: the text is a whole number within [lo, hi] (applied to the
+// text before CLI11 converts it, so "2^63" or "4294967297" is refused, not wrapped).
+CLI::Validator whole_range(long long lo, long long hi);
+
 // Writes to `path` atomically, or to stdout when path is "-".
 void emit(const std::string& path, const std::string& content);
 

@@ -1,4 +1,6 @@
+#include <cerrno>
 #include <cstdio>
+#include <cstdlib>
 #include <iostream>
 
 #include "commands.hpp"
@@ -28,6 +30,27 @@ int guarded(const std::string& file, const std::function<int()>& body) {
     std::fprintf(stderr, "polewright: internal error: %s\n", e.what());
     return kExitInternal;
   }
+}
+
+bool parse_whole(const std::string& text, long long lo, long long hi, long long* value) {
+  if (text.empty() || !(std::isdigit(static_cast<unsigned char>(text[0])) || text[0] == '-' || text[0] == '+')) return false;
+  errno = 0;
+  char* end = nullptr;
+  const long long v = std::strtoll(text.c_str(), &end, 10);
+  if (errno == ERANGE || end == text.c_str() || *end != '\0' || v < lo || v > hi) return false;
+  *value = v;
+  return true;
+}
+
+CLI::Validator whole_range(long long lo, long long hi) {
+  const std::string range = std::to_string(lo) + ".." + std::to_string(hi);
+  return CLI::Validator(
+      [lo, hi, range](std::string& text) {
+        long long v = 0;
+        if (parse_whole(text, lo, hi, &v)) return std::string();
+        return "\"" + text + "\" is not a whole number within " + range;
+      },
+      "INT in " + range);
 }
 
 void emit(const std::string& path, const std::string& content) {

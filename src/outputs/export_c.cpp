@@ -13,10 +13,27 @@ std::string c_identifier(const std::string& path) {
   const size_t dot = base.find('.');
   if (dot != std::string::npos && dot > 0) base = base.substr(0, dot);
   std::string id;
-  for (char ch : base) id += (std::isalnum(static_cast<unsigned char>(ch)) || ch == '_') ? ch : '_';
-  if (id.empty()) id = "compensator";
-  if (std::isdigit(static_cast<unsigned char>(id[0]))) id = "pw_" + id;
+  for (char ch : base) {
+    // ASCII letters and digits only (isalnum would follow the locale); every other byte, a UTF-8
+    // one included, becomes one '_' per run.
+    const bool keep = (ch >= 'a' && ch <= 'z') || (ch >= 'A' && ch <= 'Z') || (ch >= '0' && ch <= '9') || ch == '_';
+    if (keep) id += ch;
+    else if (id.empty() || id.back() != '_') id += '_';
+  }
+  while (!id.empty() && id.back() == '_' && id.size() > 1 && id.find_first_not_of('_') != std::string::npos) id.pop_back();
+  if (id.empty() || id.find_first_not_of('_') == std::string::npos) id = "compensator";
+  // A leading digit is not an identifier; a leading underscore is reserved at file scope (C99 7.1.3).
+  if (std::isdigit(static_cast<unsigned char>(id[0])) || id[0] == '_') id = "pw_" + id;
   return id;
+}
+
+std::string c_header_file_error(const std::string& file) {
+  if (file.empty() || file == ".h") return "names no file (the base name before .h/.c is empty)";
+  for (char ch : file) {
+    if (ch == '"' || ch == '\\') return "has a quote or backslash, which a C #include \"...\" cannot name";
+    if (static_cast<unsigned char>(ch) < 0x20 || ch == 0x7f) return "has a control character, which a C #include cannot name";
+  }
+  return "";
 }
 
 int integrator_sign(const Zpk& d) {
@@ -51,10 +68,21 @@ std::string num(double v) {
   return buf;
 }
 
+// Text that is safe inside a C block comment: no "*/", no control characters.
+std::string comment_text(const std::string& text) {
+  std::string out;
+  for (char ch : text) {
+    if (static_cast<unsigned char>(ch) < 0x20 || ch == 0x7f) ch = ' ';
+    if (ch == '/' && !out.empty() && out.back() == '*') out += ' ';
+    out += ch;
+  }
+  return out;
+}
+
 // The comment block both files start with.
 std::string banner(const ExportReport& r, const std::string& file) {
-  std::string s = "/* " + file + ": discrete compensator exported by polewright.\n";
-  s += " *\n * Design: " + r.design_name + " (rank " + std::to_string(r.rank) + " of a " + r.source_job + " file)\n";
+  std::string s = "/* " + comment_text(file) + ": discrete compensator exported by polewright.\n";
+  s += " *\n * Design: " + comment_text(r.design_name) + " (rank " + std::to_string(r.rank) + " of a " + r.source_job + " file)\n";
   s += " * Continuous: C(s) = " + zpk_to_string(r.continuous) + "\n";
   s += " * Method: " + std::string(discrete_method_name(r.options.method));
   if (r.warp_rad_s) s += " (warped at " + num(*r.warp_rad_s) + " rad/s; notches at their own centres)";
@@ -74,9 +102,9 @@ std::string banner(const ExportReport& r, const std::string& file) {
 
 }  // namespace
 
-std::string export_c_header(const ExportReport& r, const std::string& name) {
+std::string export_c_header(const ExportReport& r, const std::string& name, const std::string& file) {
   const std::string N = upper(name), real = name + "_real";
-  std::string s = banner(r, name + ".h");
+  std::string s = banner(r, file.empty() ? name + ".h" : file);
   s += "#ifndef " + N + "_H\n#define " + N + "_H\n\n#ifdef __cplusplus\nextern \"C\" {\n#endif\n\n";
   s += "#define " + N + "_SECTIONS " + std::to_string(r.cascade.sections.size()) + "\n";
   s += "#define " + N + "_SAMPLE_TIME_S " + c_literal(r.options.sample_time_s, Precision::Double) + "\n\n";
@@ -92,12 +120,15 @@ std::string export_c_header(const ExportReport& r, const std::string& name) {
   return s;
 }
 
-std::string export_c_source(const ExportReport& r, const std::string& name) {
+std::string export_c_source(const ExportReport& r, const std::string& name, const std::string& header_file,
+                            const std::string& file) {
   const Precision p = r.options.precision;
   const std::string N = upper(name), real = name + "_real";
   const size_t n = r.cascade.sections.size();
-  std::string s = banner(r, name + ".c");
-  s += "#include \"" + name + ".h\"\n\n";
+  const std::string header = header_file.empty() ? name + ".h" : header_file;
+  if (!c_header_file_error(header).empty()) throw std::invalid_argument("C header file name \"" + header + "\" " + c_header_file_error(header));
+  std::string s = banner(r, file.empty() ? name + ".c" : file);
+  s += "#include \"" + header + "\"\n\n";
   // One spare row keeps the arrays non-empty for a pure gain.
   s += "/* b0, b1, b2 of each section; the comment gives its peak gain max |B/A| on the unit circle and the\n"
        " * running peak from e to its output (before kGain), for fixed-point scaling. */\n"

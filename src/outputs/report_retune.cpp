@@ -73,10 +73,13 @@ std::string report_retune_section(const ReportData& d) {
        "</tr></thead><tbody>\n";
   size_t rows = 0;
   if (cand.is_object() && cand.contains("changes") && cand["changes"].is_array()) {
-    for (const nlohmann::json& c : cand["changes"]) {
+    for (size_t ci = 0; ci < cand["changes"].size(); ++ci) {
+      const nlohmann::json& c = cand["changes"][ci];
       if (!c.is_object()) continue;
       ++rows;
-      const std::string item = c.value("item", std::string("?"));
+      if (c.contains("item") && !c["item"].is_string())
+        throw SpecError("$.candidates[0].changes[" + std::to_string(ci) + "].item", "must be a string (gain, zero or pole)");
+      const std::string item = c.contains("item") ? c["item"].get<std::string>() : std::string("?");
       const int index = c.contains("index") && c["index"].is_number_integer() ? c["index"].get<int>() : 0;
       const nlohmann::json& pc = c.contains("percent_change") ? c["percent_change"] : none;
       std::string pct = "new";

@@ -102,12 +102,13 @@ std::string report_sweep_summary_section(const ReportData& d) {
   row("missing (not run yet, or in another shard)", r.expected - found, "");
   row("met", met, colour::kMet);
   row("not met", not_met, colour::kNotMet);
-  row("bad point (the point's spec is invalid)", bad, colour::kMuted);
+  row("bad point (an invalid spec, or a per-point limit)", bad, colour::kMuted);
   row("error", err, colour::kMuted);
   h += "</tbody></table>\n";
   for (const std::string& t : r.torn)
-    h += "<p class=\"pw-note\">" + xml_escape(t) + ": the points file ends in a torn or corrupt line (a run cut short); it was "
-         "skipped, and <code>sweep --resume</code> redoes that point.</p>\n";
+    h += "<p class=\"pw-note\">" + xml_escape(t) + ": the points file has a torn or corrupt line, or an index outside the "
+         "sweep (a run cut short or a damaged file); those lines were skipped, and <code>sweep --resume</code> repairs the "
+         "file and redoes those points.</p>\n";
   h += "</div>\n<div>\n<div class=\"pw-kv\">";
   h += "<span class=\"k\">job at every point</span><span>" + xml_escape(sweep_job_name(f.job)) + "</span>";
   h += "<span class=\"k\">sampling</span><span>" + xml_escape(sample_name(f.sample)) +

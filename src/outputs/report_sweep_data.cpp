@@ -180,8 +180,13 @@ SweepReport read_sweep_report(const std::vector<std::string>& dirs, const SweepR
   for (const std::string& d : dirs) {
     const std::string path = d + "/points.jsonl";
     if (!std::filesystem::is_regular_file(path)) throw SpecError(d, "holds no points.jsonl");
+    long long outside = 0;
     const PointsScan scan = for_each_point(path, [&](const nlohmann::json& p) {
       const long long i = p["index"].get<long long>();
+      if (i < 0 || i >= r.expected) {  // not a point of this sweep: never counted as one
+        ++outside;
+        return;
+      }
       std::string text = p.dump();
       auto it = by_index.find(i);
       if (it != by_index.end()) {
@@ -190,7 +195,7 @@ SweepReport read_sweep_report(const std::vector<std::string>& dirs, const SweepR
       }
       by_index.emplace(i, std::make_pair(std::move(text), point_of(f, p)));
     });
-    if (scan.torn) r.torn.push_back(d);
+    if (scan.torn || !scan.corrupt_lines.empty() || outside > 0) r.torn.push_back(d);
   }
   for (auto& kv : by_index) r.points.push_back(std::move(kv.second.second));
   if (o.metric.empty()) r.metric = default_map_metric(r, req);

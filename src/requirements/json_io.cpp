@@ -1,7 +1,9 @@
 #include <sys/stat.h>
 
 #include <fstream>
+#include <set>
 #include <sstream>
+#include <vector>
 
 #include "json_reader.hpp"
 #include "polewright/requirements/spec_parse.hpp"
@@ -31,6 +33,60 @@ void check_nesting(const std::string& text) {
   }
 }
 
+// Refuses a key that appears twice in one object (nlohmann keeps the last one silently) and a NUL
+// character in any string. Follows the parser's events to know the JSON path being read.
+class DuplicateKeyGuard {
+ public:
+  bool operator()(int, nlohmann::json::parse_event_t event, nlohmann::json& parsed) {
+    using E = nlohmann::json::parse_event_t;
+    switch (event) {
+      case E::object_start:
+      case E::array_start:
+        frames_.push_back({event == E::object_start, child_path(), {}, {}, 0});
+        break;
+      case E::key: {
+        Frame& f = frames_.back();
+        f.key = parsed.is_string() ? parsed.get<std::string>() : std::string();
+        if (f.key.find('\0') != std::string::npos)
+          throw SpecError(f.path, "has a key with a NUL character (\\u0000), which no name may hold");
+        if (!f.keys.insert(f.key).second)
+          throw SpecError(detail::key_path(f.path, f.key), "appears twice in one object (a duplicate key)");
+        break;
+      }
+      case E::object_end:
+      case E::array_end:
+        frames_.pop_back();
+        advance();
+        break;
+      case E::value:
+        // A NUL inside a string would cut names short in C APIs and reach the text and HTML outputs.
+        if (parsed.is_string() && parsed.get_ref<const std::string&>().find('\0') != std::string::npos)
+          throw SpecError(child_path(), "holds a NUL character (\\u0000), which no text may hold");
+        advance();
+        break;
+    }
+    return true;
+  }
+
+ private:
+  struct Frame {
+    bool object = false;
+    std::string path;
+    std::set<std::string> keys;
+    std::string key;
+    size_t index = 0;
+  };
+  std::string child_path() const {
+    if (frames_.empty()) return "$";
+    const Frame& f = frames_.back();
+    return f.object ? detail::key_path(f.path, f.key) : detail::index_path(f.path, f.index);
+  }
+  void advance() {
+    if (!frames_.empty() && !frames_.back().object) ++frames_.back().index;
+  }
+  std::vector<Frame> frames_;
+};
+
 }  // namespace
 
 nlohmann::json parse_json_text(const std::string& text) {
@@ -38,7 +94,10 @@ nlohmann::json parse_json_text(const std::string& text) {
     throw SpecError("$", "input is larger than " + std::to_string(kMaxInputBytes >> 20) + " MiB");
   check_nesting(text);
   try {
-    return nlohmann::json::parse(text);
+    DuplicateKeyGuard guard;
+    return nlohmann::json::parse(text, [&guard](int depth, nlohmann::json::parse_event_t event, nlohmann::json& parsed) {
+      return guard(depth, event, parsed);
+    });
   } catch (const nlohmann::json::parse_error& e) {
     // Line and column of the byte offset.
     size_t line = 1, col = 1;

@@ -4,8 +4,12 @@
 #include <muParser.h>
 
 #include <algorithm>
+#include <cerrno>
 #include <cmath>
+#include <cstdlib>
+#include <mutex>
 #include <set>
+#include <stdexcept>
 
 #include "json_reader.hpp"
 #include "polewright/requirements/spec_parse.hpp"
@@ -64,11 +68,62 @@ std::string names_of(const std::vector<SweepParameter>& ps) {
   return s;
 }
 
+// Names the expression parser defines itself: a parameter of that name would be shadowed or
+// clash (the error would then be blamed on an expression).
+bool reserved_name(const std::string& n) {
+  static const std::set<std::string> kReserved = {
+      "_pi", "_e", "sin", "cos", "tan", "asin", "acos", "atan", "sinh", "cosh", "tanh", "asinh", "acosh",
+      "atanh", "log2", "log10", "log", "ln", "exp", "sqrt", "sign", "rint", "abs", "min", "max", "sum", "avg"};
+  return kReserved.count(n) > 0;
+}
+
+// A pure expression: no assignment ("k=7", "k+=1") and one value (no "k,3" list). Returns why not.
+std::string impurity(const std::string& text) {
+  for (size_t i = 0; i < text.size(); ++i) {
+    if (text[i] == ',') {
+      // A comma is fine inside a function call's parentheses: min(a,b).
+      int depth = 0;
+      for (size_t j = 0; j < i; ++j) depth += text[j] == '(' ? 1 : text[j] == ')' ? -1 : 0;
+      if (depth <= 0) return "is a list of values (\",\" outside a function call); give one expression";
+    }
+    if (text[i] != '=') continue;
+    if (i + 1 < text.size() && text[i + 1] == '=') {  // "==": a comparison
+      ++i;
+      continue;
+    }
+    if (i > 0 && (text[i - 1] == '!' || text[i - 1] == '<' || text[i - 1] == '>')) continue;
+    return "assigns a value (\"=\"); a sweep expression computes a value from the parameters and changes none";
+  }
+  return "";
+}
+
+// A number written in the expression that is beyond double range ("1e400"): the expression parser
+// would read its tail as a name.
+std::string out_of_range_number(const std::string& text) {
+  for (size_t i = 0; i < text.size(); ++i) {
+    const bool starts = std::isdigit(static_cast<unsigned char>(text[i])) &&
+                        (i == 0 || !(std::isalnum(static_cast<unsigned char>(text[i - 1])) || text[i - 1] == '_' || text[i - 1] == '.'));
+    if (!starts) continue;
+    char* end = nullptr;
+    errno = 0;
+    const double v = std::strtod(text.c_str() + i, &end);
+    const size_t len = static_cast<size_t>(end - (text.c_str() + i));
+    if (errno == ERANGE && std::isinf(v)) return text.substr(i, len);
+    i += len > 0 ? len - 1 : 0;
+  }
+  return "";
+}
+
 // Evaluates one expression with the parameters bound to `values`. Throws SpecError at site.path.
 double evaluate(const ExpressionSite& site, const std::vector<SweepParameter>& ps, const std::vector<double>& values) {
   std::vector<double> vars(values);
   mu::Parser parser;
   try {
+    const std::string why = impurity(site.text);
+    if (!why.empty()) throw SpecError(site.path, "expression \"" + site.text + "\" " + why);
+    const std::string huge = out_of_range_number(site.text);
+    if (!huge.empty())
+      throw SpecError(site.path, "expression \"" + site.text + "\": the number " + huge + " is beyond double range");
     parser.SetExpr(site.text);
     for (const auto& used : parser.GetUsedVar()) {
       const bool known = std::any_of(ps.begin(), ps.end(), [&](const SweepParameter& p) { return p.name == used.first; });
@@ -87,6 +142,8 @@ double evaluate(const ExpressionSite& site, const std::vector<SweepParameter>& p
 
 SweepParameter parse_parameter(const json& j, const std::string& name, const std::string& path) {
   if (!valid_name(name)) throw SpecError(path, "is not a usable parameter name (letters, digits and _, not starting with a digit)");
+  if (reserved_name(name))
+    throw SpecError(path, "is a name the expression language defines itself (a constant or function); choose another");
   SweepParameter p;
   p.name = name;
   if (member(j, "values")) {
@@ -158,7 +215,7 @@ unsigned long long point_seed(unsigned long long sweep_seed, long long index) {
 }
 
 SweepFile parse_sweep(const json& doc) {
-  const std::vector<std::string> top = {"$schema", "name", "base", "parameters", "sample", "job", "seed"};
+  const std::vector<std::string> top = {"$schema", "name", "base", "parameters", "sample", "job", "seed", "point_limit"};
   if (doc.is_object())  // a spec key written beside base instead of inside it
     for (auto it = doc.begin(); it != doc.end(); ++it) {
       const std::vector<std::string>& spec_keys = known_keys("spec");
@@ -207,7 +264,30 @@ SweepFile parse_sweep(const json& doc) {
     f.job = *j == "design" ? SweepJob::Design : (*j == "check" ? SweepJob::Check : SweepJob::Retune);
   }
   if (const json* s = member(doc, "seed")) f.seed = static_cast<unsigned long long>(read_integer(*s, "$.seed", 0, 9007199254740991LL));
+  if (const json* l = member(doc, "point_limit")) {
+    detail::expect_object(*l, "$.point_limit", {"evaluations", "seconds"});
+    if (const json* e = member(*l, "evaluations")) f.point_evaluations = read_integer(*e, "$.point_limit.evaluations", 1, 1000000000LL);
+    if (const json* t = member(*l, "seconds")) {
+      f.point_seconds = read_number(*t, "$.point_limit.seconds");
+      if (!(f.point_seconds > 0.0)) throw SpecError("$.point_limit.seconds", "must be > 0");
+    }
+  }
   find_expressions(f.base, json::json_pointer(), "", f.expressions);
+  // A parameter no expression uses multiplies the points without changing them: warn.
+  std::set<std::string> used;
+  for (const ExpressionSite& site : f.expressions) {
+    try {
+      mu::Parser parser;
+      parser.SetExpr(site.text);
+      for (const auto& v : parser.GetUsedVar()) used.insert(v.first);
+    } catch (const mu::Parser::exception_type&) {
+      // reported with its path by the evaluation at the first point below
+    }
+  }
+  for (const SweepParameter& p : f.parameters)
+    if (!used.count(p.name))
+      f.warnings.push_back(key_path("$.parameters", p.name) + ": no expression of the base uses it; its " +
+                           std::to_string(p.grid_count()) + " value(s) repeat the same points");
   // Every expression, and the base spec itself, checked at the first point before any point runs.
   SweepPoints points(f);
   const std::vector<double> first = points.at(0);
@@ -222,33 +302,53 @@ SweepFile parse_sweep(const json& doc) {
   return f;
 }
 
+struct SweepPoints::Cursor {
+  std::mutex mutex;
+  gsl_qrng* q = nullptr;
+  long long position = 0;  // index of the next point the generator gives
+  std::vector<double> x;
+  ~Cursor() {
+    if (q) gsl_qrng_free(q);
+  }
+};
+
+namespace {
+constexpr unsigned long long kLatinSalt = 0x5EED5EED5EEDULL;
+constexpr unsigned long long kGolden = 0x9E3779B97F4A7C15ULL;
+// The k-th (0-based) draw of unit_from from `state0`, without drawing the ones before it.
+double unit_draw(unsigned long long state0, unsigned long long k) {
+  unsigned long long s = state0 + k * kGolden;
+  return static_cast<double>(splitmix64(s) >> 11) * 0x1.0p-53;
+}
+}  // namespace
+
 SweepPoints::SweepPoints(const SweepFile& f) : file_(&f), count_(f.point_count()) {
   const size_t dim = f.parameters.size();
   if (f.sample == SweepSample::Grid) return;
-  unit_.assign(static_cast<size_t>(count_), std::vector<double>(dim));
-  unsigned long long state = f.seed ^ 0x5EED5EED5EEDULL;
+  unsigned long long state = f.seed ^ kLatinSalt;
   if (f.sample == SweepSample::Sobol) {
-    std::vector<double> shift(dim);
-    for (double& s : shift) s = unit_from(state);  // Cranley-Patterson rotation by the seed
-    gsl_qrng* q = gsl_qrng_alloc(gsl_qrng_sobol, static_cast<unsigned>(dim));
-    std::vector<double> x(dim);
-    for (long long i = 0; i < count_; ++i) {
-      gsl_qrng_get(q, x.data());
-      for (size_t d = 0; d < dim; ++d) unit_[static_cast<size_t>(i)][d] = std::fmod(x[d] + shift[d], 1.0);
-    }
-    gsl_qrng_free(q);
+    shift_.resize(dim);
+    for (double& s : shift_) s = unit_from(state);  // Cranley-Patterson rotation by the seed
+    cursor_ = std::make_unique<Cursor>();
+    cursor_->q = gsl_qrng_alloc(gsl_qrng_sobol, static_cast<unsigned>(dim));
+    cursor_->x.resize(dim);
     return;
   }
-  // Latin hypercube: in every dimension each of the count strata holds exactly one point.
+  // Latin hypercube: in every dimension each of the count strata holds exactly one point. Only the
+  // strata are kept (4 bytes per point and dimension); the jitter inside a stratum is recomputed
+  // from the draw's number.
+  strata_.assign(dim, {});
   for (size_t d = 0; d < dim; ++d) {
-    std::vector<long long> perm(static_cast<size_t>(count_));
-    for (long long i = 0; i < count_; ++i) perm[static_cast<size_t>(i)] = i;
+    std::vector<uint32_t>& perm = strata_[d];
+    perm.resize(static_cast<size_t>(count_));
+    for (long long i = 0; i < count_; ++i) perm[static_cast<size_t>(i)] = static_cast<uint32_t>(i);
     for (long long i = count_ - 1; i > 0; --i)
       std::swap(perm[static_cast<size_t>(i)], perm[splitmix64(state) % static_cast<unsigned long long>(i + 1)]);
-    for (long long i = 0; i < count_; ++i)
-      unit_[static_cast<size_t>(i)][d] = (static_cast<double>(perm[static_cast<size_t>(i)]) + unit_from(state)) / count_;
+    state += static_cast<unsigned long long>(count_) * kGolden;  // the jitter draws of this dimension
   }
 }
+
+SweepPoints::~SweepPoints() = default;
 
 std::vector<double> SweepPoints::at(long long index) const {
   const SweepFile& f = *file_;
@@ -262,7 +362,25 @@ std::vector<double> SweepPoints::at(long long index) const {
     }
     return v;
   }
-  for (size_t d = 0; d < v.size(); ++d) v[d] = f.parameters[d].at_unit(unit_[static_cast<size_t>(index)][d]);
+  if (index < 0 || index >= count_) throw std::out_of_range("sweep point index out of range");
+  if (f.sample == SweepSample::Sobol) {
+    std::lock_guard<std::mutex> lock(cursor_->mutex);
+    if (index < cursor_->position) {
+      gsl_qrng_init(cursor_->q);
+      cursor_->position = 0;
+    }
+    for (; cursor_->position <= index; ++cursor_->position) gsl_qrng_get(cursor_->q, cursor_->x.data());
+    for (size_t d = 0; d < v.size(); ++d) v[d] = f.parameters[d].at_unit(std::fmod(cursor_->x[d] + shift_[d], 1.0));
+    return v;
+  }
+  // Draw numbers of dimension d: (count - 1) swaps, then one jitter per point in index order.
+  const unsigned long long n = static_cast<unsigned long long>(count_);
+  const unsigned long long state0 = f.seed ^ kLatinSalt;
+  for (size_t d = 0; d < v.size(); ++d) {
+    const unsigned long long draw = d * (2 * n - 1) + (n - 1) + static_cast<unsigned long long>(index);
+    const double u = (static_cast<double>(strata_[d][static_cast<size_t>(index)]) + unit_draw(state0, draw)) / static_cast<double>(count_);
+    v[d] = f.parameters[d].at_unit(u);
+  }
   return v;
 }
 

@@ -76,6 +76,40 @@ expect 2 "missing --sample-time" -- "$bin" export "$tmp/r.json" --format json -o
 one_line "sample-time"; untouched
 expect 2 "missing result file" -- "$bin" export "$tmp/nope.json" --sample-time 0.001 --format json -o "$tmp/keep.json"
 [ "$(wc -l <"$tmp/err")" = 1 ] && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: missing file: not one line"; cat "$tmp/err"; }
+# Tiny sample times: a step cut at the sample cap gives no figure (and cannot pass); a crossover
+# that moves less than 1e-8 rad per sample is beyond double precision: refused.
+expect 1 "a step cut at the sample cap" -- "$bin" export "$tmp/r.json" --sample-time 1e-6 --format json -o "$tmp/tiny.json"
+grep -q "^warning: .*the sampled step stops at 200000 samples .*no step figure is given" "$tmp/out" && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: no warning for a cut step"; cat "$tmp/out"; }
+grep -E "^  overshoot +<= 25 % +[0-9.]+ % +- +NO" "$tmp/out" >/dev/null && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: a cut step still shows an overshoot figure or a pass"; grep overshoot "$tmp/out"; }
+/usr/bin/python3 -c "import json,sys; d=json.load(open('$tmp/tiny.json')); o=[q for q in d['reverification']['requirements'] if q['requirement'] == 'overshoot_pct']; sys.exit(not (len(o) == 1 and o[0]['met'] is False and o[0]['discrete'] is None))" \
+  && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: the JSON of a cut step says met"; }
+for t in 1e-11 1e-14; do
+  expect 2 "--sample-time $t beyond double precision" -- "$bin" export "$tmp/r.json" --sample-time $t --format json -o "$tmp/keep.json"
+  one_line "--sample-time: is too short for double precision"; untouched
+done
+
+# C file names as given; one sanitised identifier; the source includes its own header by name,
+# and every case compiles (gcc -std=c99 -pedantic -Werror).
+mkdir -p "$tmp/c"
+for name in axis-x "my axis" "Äxis ünit" v1.2-axis 9lives _hidden x; do
+  expect 0 "C export as '$name'" -- "$bin" export "$tmp/r.json" --sample-time 0.001 -o "$tmp/c/$name"
+  if [ -s "$tmp/c/$name.h" ] && [ -s "$tmp/c/$name.c" ] && grep -qF "#include \"$name.h\"" "$tmp/c/$name.c"; then pass=$((pass+1))
+  else fail=$((fail+1)); echo "FAIL: C export '$name': files not named as given or the include is wrong"; ls "$tmp/c"; fi
+  if command -v gcc >/dev/null; then
+    gcc -std=c99 -pedantic -Wall -Wextra -Werror -c "$tmp/c/$name.c" -I"$tmp/c" -o "$tmp/c/obj.o" && pass=$((pass+1)) ||
+      { fail=$((fail+1)); echo "FAIL: '$name.c' does not compile"; }
+  fi
+done
+grep -q "^void axis_x_init(axis_x_state\* st);" "$tmp/c/axis-x.h" && grep -q "my_axis_step" "$tmp/c/my axis.h" &&
+  grep -q "pw_9lives_step" "$tmp/c/9lives.h" && grep -q "pw__hidden_step" "$tmp/c/_hidden.h" && grep -q " v1_step(" "$tmp/c/v1.2-axis.h" &&
+  pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: C identifiers"; grep -h "_step(" "$tmp/c/"*.h; }
+for o in .c .h "$tmp/c/" "$tmp/c/.c" "$tmp/c/a\"b" "$tmp/c/a\\b"; do
+  expect 2 "-o '$o' names no usable C file" -- "$bin" export "$tmp/r.json" --sample-time 0.001 -o "$o"
+  one_line "-o: is"
+done
+ls -a "$tmp/c" | grep -q '^\.[ch]$' && { fail=$((fail+1)); echo "FAIL: hidden .h/.c written"; } || pass=$((pass+1))
+( cd "$tmp" && ls -a | grep -q '^\.[ch]$' ) && { fail=$((fail+1)); echo "FAIL: hidden .h/.c written"; } || pass=$((pass+1))
+
 # Same input, byte-identical output.
 "$bin" export "$tmp/r.json" --sample-time 0.002 --method zoh --format json -o "$tmp/d1.json" >/dev/null
 "$bin" export "$tmp/r.json" --sample-time 0.002 --method zoh --format json -o "$tmp/d2.json" >/dev/null

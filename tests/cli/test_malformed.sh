@@ -67,6 +67,10 @@ deep=$(printf '[%.0s' $(seq 1 100)); deepc=$(printf ']%.0s' $(seq 1 100))
 spec_case deep-nesting '$: nesting deeper than 64' "{ \"plant\": $deep$deepc, \"requirements\": {} }"
 spec_case unstable-cancellation '$.current: compensator zero at 3' '{ "plant": { "gain": 1, "poles": [3, -1] }, "requirements": {}, "current": { "zeros": [3], "poles": [-10] } }'
 spec_case variant-both-forms '$.plant.variants[0]' '{ "plant": { "gain": 1, "poles": [-1], "variants": [ { "numerator": [1], "denominator": [1, 1] } ] }, "requirements": {} }'
+# Duplicate keys (nlohmann would keep the last one silently): refused, naming the key.
+spec_case dup-plant '$.plant: appears twice in one object' '{ "plant": { "gain": 1, "poles": [-1] }, "plant": { "gain": 2, "poles": [-1] }, "requirements": {} }'
+spec_case dup-max '$.requirements.overshoot_pct.max: appears twice' '{ "plant": { "gain": 1, "poles": [-1] }, "requirements": { "overshoot_pct": { "max": 10, "max": 50 } } }'
+spec_case dup-in-variant '$.plant.variants[1].gain: appears twice' '{ "plant": { "gain": 1, "poles": [-1], "variants": [ { "gain": 2 }, { "gain": 3, "gain": 4 } ] }, "requirements": {} }'
 
 comp_case comp-improper '$.zeros: improper compensator' '{ "gain": 1, "zeros": [-1, -2], "poles": [-3] }'
 comp_case comp-zero-gain '$.gain: must be non-zero' '{ "gain": 0, "poles": [-3] }'
@@ -74,6 +78,7 @@ comp_case comp-delay '$.delay_s: unknown key' '{ "gain": 1, "poles": [-3], "dela
 comp_case comp-broken '$: invalid JSON' '{ "gain": 1, '
 comp_case comp-root-missing-im '$.poles[0].im: is missing' '{ "poles": [{ "re": -1 }] }'
 comp_case comp-order-too-high '$.poles: compensator order 21' "{ \"poles\": [$(printf -- '-%s,' $(seq 1 20))-21] }"
+comp_case comp-dup-gain '$.gain: appears twice in one object' '{ "gain": 1, "poles": [-3], "gain": 5 }'
 
 # Files that are not readable JSON files.
 mkdir -p "$tmp/dir.json"
@@ -135,6 +140,7 @@ sweep_case sweep-base-negative-limit '$.base.requirements.settling_time_s.max' "
 sweep_case sweep-search-not-object '$.base.search: must be an object' "{ \"base\": { \"plant\": { \"numerator\": [\"k\"], \"denominator\": [1, 1] }, \"requirements\": {}, \"search\": 3 }, \"parameters\": { \"k\": { \"values\": [1] } } }"
 sweep_case sweep-sample-too-many '$.sample.count' "{ $base, \"parameters\": { \"k\": { \"values\": [1] }, \"a\": { \"values\": [2] } }, \"sample\": { \"method\": \"latin\", \"count\": 2000000 } }"
 sweep_case sweep-deep '$: nesting deeper than 64' "{ \"base\": $deep$deepc, \"parameters\": {} }"
+sweep_case sweep-dup-parameter '$.parameters.k: appears twice in one object' "{ $base, \"parameters\": { \"k\": { \"values\": [1] }, \"a\": { \"values\": [2] }, \"k\": { \"values\": [3] } } }"
 mkdir -p "$tmp/sweepdir.json"
 rm -rf "$tmp/sweep-out"
 "$bin" sweep "$tmp/sweepdir.json" --out "$tmp/sweep-out" --quiet >/dev/null 2>"$tmp/err"
@@ -172,6 +178,7 @@ result_case result-no-compensator '$.compensator: is missing' 'del d["compensato
 result_case result-improper-compensator '$.compensator.zeros: improper compensator' 'd["compensator"] = {"gain": 1, "zeros": [-1, -2], "poles": [-3]}'
 result_case result-nan-gain '$.compensator.gain: must be a number, not the string' 'd["compensator"]["gain"] = "NaN"'
 result_case result-bare-compensator '$.tool.job' 'd = d["compensator"]'
+result_case result-dup-key '$.compensator.gain: appears twice in one object' 'd = json.dumps(d).replace("\"compensator\": {", "\"compensator\": {\"gain\": 3, ", 1)'
 "$bin" design "$src/specs/greenhouse-heater.json" -o "$tmp/design-result.json" --threads 1 >/dev/null
 /usr/bin/python3 -c "
 import json, sys
@@ -185,6 +192,40 @@ json.dump(d, open(sys.argv[2], 'w'))" "$tmp/design-result.json" "$tmp/design-can
 run_case result-candidates-not-array '$.candidates: is missing or not an array' -- "$bin" report "$tmp/design-candidates-object.json"
 mkdir -p "$tmp/result-dir.json"
 run_case result-directory 'is a directory' -- "$bin" report "$tmp/result-dir.json"
+# A sweep file is not a result: said so (not "unknown key $.base").
+run_case report-sweep-file '$: is a sweep file, not a result' -- "$bin" report "$src/specs/sweeps/joint-inertia.json"
+# A retune result whose change item is a number: named, exit 2 (it was an internal error).
+printf '{ "plant": { "gain": 1, "poles": [0, -1] }, "requirements": { "phase_margin_deg": { "min": 60 } }, "current": { "gain": 4 } }' >"$tmp/retune-spec.json"
+"$bin" retune "$tmp/retune-spec.json" -o "$tmp/retune-result.json" >/dev/null
+/usr/bin/python3 -c "
+import json, sys
+d = json.load(open(sys.argv[1])); d['candidates'][0]['changes'][0]['item'] = 7
+json.dump(d, open(sys.argv[2], 'w'))" "$tmp/retune-result.json" "$tmp/retune-bad-item.json"
+run_case retune-item-number '$.candidates[0].changes[0].item: must be a string' -- "$bin" report "$tmp/retune-bad-item.json"
+# NUL characters never reach the outputs.
+spec_case nul-in-name '$.name: holds a NUL character' '{ "name": "wafer\u0000stage", "plant": { "gain": 1, "poles": [-1] }, "requirements": {} }'
+# Integer options and environment variables: range-checked, never wrapped or saturated.
+printf '%s' "$good" >"$tmp/good.json"
+run_case seed-2-63 '--seed' -- "$bin" design "$tmp/good.json" --seed 9223372036854775808
+run_case seed-above-spec-range '--seed' -- "$bin" design "$tmp/good.json" --seed 9007199254740992
+run_case threads-wrap '--threads' -- "$bin" design "$tmp/good.json" --threads 4294967297
+run_case keep-wrap '--keep' -- "$bin" retune "$tmp/good.json" --keep 4294967298
+shard_case() {  # shard_case NAME WANT ENV... -- SWEEP-ARGS...
+  local name=$1 want=$2; shift 2
+  rm -rf "$tmp/shard-out"
+  env "$@" --quiet >/dev/null 2>"$tmp/err"; local rc=$?
+  if [ "$rc" = 2 ] && [ "$(wc -l <"$tmp/err")" = 1 ] && grep -qF -- "$want" "$tmp/err" && [ ! -s "$tmp/shard-out/points.jsonl" ]; then
+    pass=$((pass+1))
+  else
+    fail=$((fail+1)); echo "FAIL: $name: exit $rc, want '$want':"; cat "$tmp/err"
+  fi
+}
+sw="$src/specs/sweeps/joint-inertia.json"
+shard_case shard-wrap '--shard: is "4294967297/4294967298"' -- "$bin" sweep "$sw" --out "$tmp/shard-out" --shard 4294967297/4294967298
+shard_case shard-zero '--shard' -- "$bin" sweep "$sw" --out "$tmp/shard-out" --shard 0/2
+shard_case shard-tail '--shard' -- "$bin" sweep "$sw" --out "$tmp/shard-out" --shard 1/2x
+shard_case slurm-wrap 'SLURM_ARRAY_TASK_ID' SLURM_ARRAY_TASK_ID=4294967297 SLURM_ARRAY_TASK_COUNT=2 SLURM_ARRAY_TASK_MIN=4294967296 "$bin" sweep "$sw" --out "$tmp/shard-out"
+shard_case slurm-huge 'SLURM_ARRAY_TASK_COUNT' SLURM_ARRAY_TASK_ID=1 SLURM_ARRAY_TASK_COUNT=99999999999999999999 "$bin" sweep "$sw" --out "$tmp/shard-out"
 
 echo "$pass passed, $fail failed"
 [ "$fail" = 0 ]

@@ -101,6 +101,75 @@ assert lines[-1] == ''
 "$bin" sweep "$sweep" --out "$tmp/term" --threads 2 --quiet --resume
 same "$tmp/ref/summary.csv" "$tmp/term/summary.csv" "summary.csv after SIGTERM and resume"
 
+# SIGTERM cancels a point in flight: a design point with a huge search (a minute or more on its
+# own) ends within seconds, with exit 4, no line for it, and the cancel (not the grace exit) used.
+/usr/bin/python3 - "$src/specs/wafer-stage.json" "$tmp/slow.json" <<'PY'
+import json, sys
+d = json.load(open(sys.argv[1])); d.pop("$schema", None)
+d["stages"] = {"lead": 2, "lag": 2, "notch": 2, "integrator": "auto", "frequency_range_rad_s": [0.5, 600]}
+d["search"] = {"keep": 100, "max_evaluations": 100000000}
+d["requirements"]["overshoot_pct"] = {"max": "os"}
+json.dump({"base": d, "parameters": {"os": {"values": [0.01]}}, "job": "design"}, open(sys.argv[2], "w"))
+PY
+"$bin" sweep "$tmp/slow.json" --out "$tmp/slow" --threads 1 --quiet 2>"$tmp/slow.err" &
+pid=$!
+sleep 2
+kill -TERM "$pid"
+for i in $(seq 1 150); do kill -0 "$pid" 2>/dev/null || break; sleep 0.1; done
+if kill -0 "$pid" 2>/dev/null; then bad "SIGTERM: a point in flight was not stopped within 15 s"; kill -9 "$pid"; fi
+wait "$pid"; rc=$?
+[ "$rc" = 4 ] && ok || bad "SIGTERM with a point in flight: exit $rc, want 4"
+[ ! -s "$tmp/slow/points.jsonl" ] && ok || bad "a cancelled point was written"
+grep -q "was left" "$tmp/slow.err" && bad "the point was left by the grace exit, not cancelled" || ok
+
+# One writer per directory: a second run on the same --out says who holds it and exits 2.
+"$bin" sweep "$tmp/slow.json" --out "$tmp/locked" --threads 1 --quiet &
+pid=$!
+for i in $(seq 1 50); do [ -s "$tmp/locked/sweep.lock" ] && break; sleep 0.1; done
+expect2_lock() {
+  "$bin" sweep "$tmp/slow.json" --out "$tmp/locked" --resume --quiet >/dev/null 2>"$tmp/err"; local rc=$?
+  if [ $rc = 2 ] && [ "$(wc -l <"$tmp/err")" = 1 ] && grep -qF "is in use by another sweep run (pid $pid on host $(hostname)" "$tmp/err"; then ok
+  else bad "second run on a locked directory: exit $rc, stderr: $(cat "$tmp/err")"; fi
+}
+expect2_lock
+kill -TERM "$pid"; wait "$pid"
+# The lock goes with the process (also after SIGKILL): the next run may continue.
+"$bin" sweep "$tmp/slow.json" --out "$tmp/locked" --threads 1 --quiet --resume &
+pid=$!
+sleep 0.5
+kill -9 "$pid"; wait "$pid" 2>/dev/null
+timeout 1 "$bin" sweep "$tmp/slow.json" --out "$tmp/locked" --threads 1 --quiet --resume 2>"$tmp/err"; rc=$?
+[ "$rc" = 124 ] && ok || bad "a run after SIGKILL of the lock holder could not start: exit $rc, $(cat "$tmp/err")"
+
+# Damaged points files: resume drops and reports exactly what it cannot use (every line twice, as
+# two runs would have written it, a corrupt line, an index outside the sweep) and the result is
+# the reference.
+mkdir -p "$tmp/dup"
+cp "$tmp/ref/sweep.json" "$tmp/dup/"
+{ head -n 5 "$tmp/ref/points.jsonl"; echo '{"index": 7, broken'; head -n 5 "$tmp/ref/points.jsonl"; echo '{"index":100000,"status":"met"}'; sed -n '6,$p' "$tmp/ref/points.jsonl"; } >"$tmp/dup/points.jsonl"
+"$bin" sweep "$sweep" --out "$tmp/dup" --threads 1 --resume 2>"$tmp/dup.err" || bad "resume of a damaged points file exited $?"
+grep -q "dropped 5 repeated identical line(s)" "$tmp/dup.err" && ok || bad "repeated lines not reported: $(cat "$tmp/dup.err")"
+grep -q "dropped 1 corrupt line(s) (line 6)" "$tmp/dup.err" && ok || bad "corrupt line not reported: $(cat "$tmp/dup.err")"
+grep -q "outside this sweep: line 12 (index 100000)" "$tmp/dup.err" && ok || bad "outside index not reported: $(cat "$tmp/dup.err")"
+same "$tmp/ref/summary.csv" "$tmp/dup/summary.csv" "summary.csv after repairing a damaged points file"
+same "$tmp/ref/points.jsonl" "$tmp/dup/points.jsonl" "points.jsonl after repairing a damaged points file"
+# Merge does not count an index outside the sweep as a point.
+{ head -n 3 "$tmp/ref/points.jsonl"; echo '{"index":100000,"status":"met"}'; } >"$tmp/dup2.jsonl"
+mkdir -p "$tmp/dup2"; cp "$tmp/ref/sweep.json" "$tmp/dup2/"; mv "$tmp/dup2.jsonl" "$tmp/dup2/points.jsonl"
+"$bin" merge "$tmp/dup2" -o "$tmp/dup2.csv" 2>"$tmp/dup2.err"
+[ $? = 1 ] && grep -q "index outside the sweep (index 100000)" "$tmp/dup2.err" && grep -q "$((total - 3)) of $total point(s) missing" "$tmp/dup2.err" && ok ||
+  bad "merge with an index outside the sweep: $(cat "$tmp/dup2.err")"
+
+# A parameter no expression uses: a warning, and the sweep runs.
+/usr/bin/python3 - "$sweep" "$tmp/unused.json" <<'PY'
+import json, sys
+d = json.load(open(sys.argv[1])); d["job"] = "check"; d["parameters"]["spare"] = {"values": [1, 2]}
+json.dump(d, open(sys.argv[2], "w"))
+PY
+"$bin" sweep "$tmp/unused.json" --out "$tmp/unused" --quiet 2>"$tmp/unused.err"; rc=$?
+[ "$rc" -le 1 ] && grep -q 'warning: .*\$.parameters.spare: no expression of the base uses it' "$tmp/unused.err" && ok ||
+  bad "unused parameter: exit $rc, stderr: $(cat "$tmp/unused.err")"
+
 # Bad input: exit 2 with one line naming the field; nothing run.
 expect2() {  # expect2 WHAT PATTERN -- command...
   local what=$1 pat=$2; shift 3

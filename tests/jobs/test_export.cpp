@@ -265,3 +265,26 @@ TEST_CASE("discrete_closed_loop_poles scales the compensator", "[export][discret
   CHECK(discrete_closed_loop_poles(one, sp, 0.9 * limit, 0.02).stable);
   CHECK(!discrete_closed_loop_poles(one, sp, 1.1 * limit, 0.02).stable);
 }
+
+TEST_CASE("a step cut at the sample cap gives no step figure and cannot pass", "[export][export_job]") {
+  // The loop settles in a few seconds (closed-loop poles near -2 +/- 3.5j, from the report): at
+  // T = 1e-6 that is millions of samples, above the 200000-sample cap.
+  const ExportReport r = run_export(lead_result(), 1, at(1e-6));
+  REQUIRE(r.loops.size() == 1);
+  CHECK(r.loops[0].discrete_eval.step_truncated);
+  CHECK_FALSE(r.loops[0].discrete[static_cast<size_t>(MetricId::Overshoot)].known());
+  CHECK_FALSE(r.loops[0].discrete[static_cast<size_t>(MetricId::SettlingTime)].known());
+  CHECK(r.loops[0].discrete[static_cast<size_t>(MetricId::PhaseMargin)].known());  // frequency figures stay
+  for (const ExportOutcome& o : r.outcomes)
+    if (o.requirement.metric == MetricId::Overshoot) CHECK_FALSE(o.met);
+  CHECK_FALSE(r.all_met);
+  CHECK(has_warning(r, "no step figure is given"));
+  // At 1e-3 the same loop is stepped to the end and meets.
+  CHECK(run_export(lead_result(), 1, at(1e-3)).all_met);
+}
+
+TEST_CASE("a sample time beyond double precision is refused", "[export][export_job]") {
+  // Crossover about 3.3 rad/s: 3.3e-11 rad per sample at T = 1e-11, under the 1e-8 floor.
+  CHECK_THROWS_WITH(run_export(lead_result(), 1, at(1e-11)), Catch::Contains("too short for double precision"));
+  CHECK_NOTHROW(run_export(lead_result(), 1, at(1e-8)));  // 3.3e-8 rad per sample
+}

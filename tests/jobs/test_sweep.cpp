@@ -1,5 +1,8 @@
 #include <catch2/catch.hpp>
 
+#include <chrono>
+#include <thread>
+
 #include "polewright/jobs/sweep.hpp"
 
 using namespace pw;
@@ -48,7 +51,7 @@ TEST_CASE("a check point is met or not by the current compensator's verdict", "[
   const SweepPointResult r = run_sweep_point(f, pts, 0);
   REQUIRE(r.top);
   CHECK(r.structure == "current");
-  CHECK(r.status == (r.top->meets ? "met" : "not_met"));
+  CHECK(r.status == (r.top->meets ? PointStatus::Met : PointStatus::NotMet));
   CHECK(r.values == std::vector<double>{0.5, 5.0});
 }
 
@@ -73,7 +76,7 @@ TEST_CASE("a point whose spec is invalid is reported, not fatal", "[jobs][sweep]
   const SweepFile f = parse_sweep(j);
   const SweepPoints pts(f);
   const SweepPointResult bad = run_sweep_point(f, pts, 1);
-  CHECK(bad.status == "bad_point");
+  CHECK(bad.status == PointStatus::BadPoint);
   CHECK_THAT(bad.message, Catch::StartsWith("$.plant.denominator"));
   CHECK_FALSE(bad.top);
 }
@@ -85,8 +88,8 @@ TEST_CASE("retune and design points carry their top candidate", "[jobs][sweep]")
     const SweepPointResult r = run_sweep_point(f, pts, 4);
     INFO(job << ": " << r.message);
     REQUIRE(r.top);
-    CHECK((r.status == "met" || r.status == "not_met"));
-    CHECK(r.status == (r.top->meets ? "met" : "not_met"));
+    CHECK((r.status == PointStatus::Met || r.status == PointStatus::NotMet));
+    CHECK(r.status == (r.top->meets ? PointStatus::Met : PointStatus::NotMet));
     if (std::string(job) == "retune") {
       CHECK(r.structure.rfind("current", 0) == 0);
       REQUIRE(r.change_decades);
@@ -98,4 +101,71 @@ TEST_CASE("retune and design points carry their top candidate", "[jobs][sweep]")
     const SweepPointResult again = run_sweep_point(f, pts, 4);
     CHECK(again.top->compensator.gain == r.top->compensator.gain);
   }
+}
+
+TEST_CASE("the per-point evaluation limit records a cut search as a bad point (deterministic)", "[jobs][sweep]") {
+  // Zero ramp error needs a type-2 loop (final value theorem, from memory); one integrator on this
+  // type-0 plant cannot give it, so no search meets the requirement: a full search is not_met, a
+  // search cut by the limit is a bad point.
+  json j = small_sweep("design").document;
+  j["base"]["requirements"]["steady_state_error"]["input"] = "ramp";
+  j["point_limit"] = {{"evaluations", 1}};
+  const SweepFile f = parse_sweep(j);
+  const SweepPoints pts(f);
+  for (int run = 0; run < 2; ++run) {
+    const SweepPointResult r = run_sweep_point(f, pts, 4);
+    CHECK(r.status == PointStatus::BadPoint);
+    CHECK_THAT(r.message, Catch::StartsWith("stopped by the per-point evaluation limit (point_limit.evaluations = 1)"));
+  }
+  // Without the limit the same point is judged.
+  j.erase("point_limit");
+  const SweepFile free = parse_sweep(j);
+  const SweepPoints fp(free);
+  const SweepPointResult r = run_sweep_point(free, fp, 4);
+  CHECK(r.status == PointStatus::NotMet);
+  CHECK(r.message.empty());
+}
+
+TEST_CASE("the per-point wall-clock cap stops a long point and says so", "[jobs][sweep]") {
+  json j = small_sweep("design").document;
+  j["point_limit"] = {{"seconds", 1e-6}};
+  const SweepFile f = parse_sweep(j);
+  SweepRunOptions o;
+  o.threads = 2;
+  o.poll_s = 0.001;
+  for (long long i = 0; i < 3; ++i) o.todo.push_back(i);
+  std::vector<SweepPointResult> got;
+  const SweepRunSummary s = run_sweep(f, o, [&](const SweepPointResult& r) { got.push_back(r); });
+  REQUIRE(got.size() == 3);
+  CHECK(s.time_limited == 3);
+  for (const SweepPointResult& r : got) {
+    CHECK(r.status == PointStatus::BadPoint);
+    CHECK_THAT(r.message, Catch::StartsWith("stopped by the per-point time limit (point_limit.seconds = 1e-06; wall clock"));
+    CHECK_FALSE(r.top);
+  }
+  CHECK(std::string(point_status_name(PointStatus::BadPoint)) == "bad_point");
+  CHECK(std::string(point_status_name(PointStatus::NotMet)) == "not_met");
+}
+
+TEST_CASE("a stop request cancels the points in flight; they are not delivered", "[jobs][sweep]") {
+  const SweepFile f = small_sweep("design");
+  std::atomic<bool> stop{false};
+  SweepRunOptions o;
+  o.threads = 2;
+  o.poll_s = 0.001;
+  o.stop = &stop;
+  for (long long i = 0; i < f.point_count(); ++i) o.todo.push_back(i);
+  std::vector<long long> delivered;
+  // Raised as the first point starts: both workers are inside a design search.
+  std::thread raise([&] {
+    std::this_thread::sleep_for(std::chrono::milliseconds(5));
+    stop = true;
+  });
+  const SweepRunSummary s = run_sweep(f, o, [&](const SweepPointResult& r) { delivered.push_back(r.index); });
+  raise.join();
+  CHECK(s.stopped);
+  CHECK(s.abandoned >= 1);
+  CHECK(s.ran == static_cast<long long>(delivered.size()));
+  CHECK(s.ran + s.abandoned <= 2 + static_cast<long long>(delivered.size()));
+  for (size_t i = 0; i < delivered.size(); ++i) CHECK(delivered[i] == static_cast<long long>(i));  // an in-order prefix
 }

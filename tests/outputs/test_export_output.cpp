@@ -24,6 +24,19 @@ TEST_CASE("C identifiers and literals", "[export][export_output]") {
   CHECK(c_identifier("out/axis-x.ctrl.c") == "axis_x");
   CHECK(c_identifier("/tmp/9lives") == "pw_9lives");
   CHECK(c_identifier("") == "compensator");
+  // One identifier for any file name: runs of other bytes (UTF-8 included) become one '_', a
+  // leading underscore is reserved at file scope (C99 7.1.3) and a leading digit is not allowed.
+  CHECK(c_identifier("out/my axis") == "my_axis");
+  CHECK(c_identifier("\xc3\x84xis \xc3\xbcnit") == "pw__xis_nit");
+  CHECK(c_identifier("v1.2-axis") == "v1");
+  CHECK(c_identifier("_hidden") == "pw__hidden");
+  CHECK(c_identifier("---") == "compensator");
+  CHECK(c_header_file_error("axis-x.h").empty());
+  CHECK(c_header_file_error("my axis.h").empty());
+  CHECK_FALSE(c_header_file_error("").empty());
+  CHECK_FALSE(c_header_file_error(".h").empty());
+  CHECK_FALSE(c_header_file_error("a\"b.h").empty());
+  CHECK_FALSE(c_header_file_error("a\nb.h").empty());
   CHECK(c_literal(1.0, Precision::Double) == "1.0");
   CHECK(c_literal(1.0, Precision::Float) == "1.0f");
   CHECK(c_literal(0.1, Precision::Double) == "0.10000000000000001");  // %.17g round-trips

@@ -225,6 +225,23 @@ TEST_CASE("sweep report: a torn last line is skipped and said so", "[outputs][re
   std::filesystem::remove_all(dir);
 }
 
+TEST_CASE("sweep report: an index outside the sweep is not a point, and said so", "[outputs][report][sweep]") {
+  const std::string dir = run_sweep_into(kSweep, "outside");
+  // Drop point 3, add an index past the end (the sweep has 24 points) and a negative one.
+  std::ifstream in(dir + "/points.jsonl");
+  std::string line, kept;
+  for (int n = 0; std::getline(in, line); ++n)
+    if (n != 3) kept += line + "\n";
+  in.close();
+  std::ofstream(dir + "/points.jsonl", std::ios::binary | std::ios::trunc)
+      << kept << "{\"index\": 99, \"status\": \"met\"}\n{\"index\": -1, \"status\": \"met\"}\n";
+  const ReportData d = prepare_sweep_report({dir});
+  CHECK(d.sweep->points.size() == 23);  // 23 of 24: the missing point stays missing
+  REQUIRE(d.sweep->torn.size() == 1);
+  CHECK(report_sweep_summary_section(d).find("an index outside the sweep") != std::string::npos);
+  std::filesystem::remove_all(dir);
+}
+
 TEST_CASE("sweep table is cut at kSweepTableRows with a note", "[outputs][report][sweep]") {
   auto r = std::make_shared<SweepReport>();
   r->file = parse_sweep(nlohmann::json::parse(kSweep));

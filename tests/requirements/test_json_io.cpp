@@ -64,3 +64,22 @@ TEST_CASE("every input the fuzzers once crashed on is now a clean SpecError or a
   closedir(d);
   CHECK(count >= 2);
 }
+
+TEST_CASE("a key given twice in one object is refused with its JSON path, at any depth", "[requirements][json_io]") {
+  // RFC 8259 section 4: names within an object SHOULD be unique; a parser that keeps the last one
+  // silently (nlohmann does) turns a pasted second "plant" into a different design.
+  CHECK(error_of([] { parse_json_text(R"({"plant": 1, "plant": 2})"); }) == "$.plant: appears twice in one object (a duplicate key)");
+  CHECK(error_of([] { parse_json_text(R"({"a": {"b": [0, {"c": 1, "c": 1}]}})"); }).rfind("$.a.b[1].c: appears twice", 0) == 0);
+  CHECK(error_of([] { parse_json_text(R"([[1, 2], {"x": 1}, {"y": {"z": 1, "z": 2}}])"); }).rfind("$[2].y.z: appears twice", 0) == 0);
+  CHECK(error_of([] { parse_json_text(R"({"odd key": 1, "odd key": 1})"); }).rfind("$[\"odd key\"]: appears twice", 0) == 0);
+  // The same key in sibling objects, or as a value, is fine.
+  CHECK(error_of([] { parse_json_text(R"({"a": {"k": 1}, "b": {"k": 2}, "k": "k", "l": [{"k": 1}, {"k": 2}]})"); }).empty());
+  CHECK(parse_json_text(R"({"a": {"k": 1}, "b": [{"k": 2}]})").at("b").at(0).at("k") == 2);
+}
+
+TEST_CASE("a NUL character in a string or key is refused with its path", "[requirements][json_io]") {
+  CHECK(error_of([] { parse_json_text(R"({"name": "wafer\u0000stage"})"); }).rfind("$.name: holds a NUL character", 0) == 0);
+  CHECK(error_of([] { parse_json_text(R"({"a": ["x", "y\u0000"]})"); }).rfind("$.a[1]: holds a NUL character", 0) == 0);
+  CHECK(error_of([] { parse_json_text(R"({"a": {"b\u0000": 1}})"); }).rfind("$.a: has a key with a NUL character", 0) == 0);
+  CHECK(error_of([] { parse_json_text(R"({"name": "wafer \u00e9 stage \u0001"})"); }).empty());  // other characters are text
+}

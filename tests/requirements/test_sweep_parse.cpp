@@ -121,3 +121,83 @@ TEST_CASE("bad sweep files: one line naming the field", "[requirements][sweep_pa
              StartsWith("$.base.plant.numerator[0]: expression \"k / (J - 0.1)\" is not finite"));
   CHECK(error_after([](json&) {}).empty());
 }
+
+TEST_CASE("expressions are pure: no assignment, no list of values", "[requirements][sweep_parse]") {
+  using Catch::StartsWith;
+  using Catch::Contains;
+  // "k=7" would set k at every point while the k column shows the swept values; "k,3" is a list
+  // whose last value (3) is used. Both are refused, naming the field.
+  CHECK_THAT(error_after([](json& j) { j["base"]["plant"]["numerator"][0] = "k=7"; }),
+             StartsWith("$.base.plant.numerator[0]: expression \"k=7\" assigns a value"));
+  CHECK_THAT(error_after([](json& j) { j["base"]["plant"]["numerator"][0] = "k+=1"; }), Contains("assigns a value"));
+  CHECK_THAT(error_after([](json& j) { j["base"]["plant"]["numerator"][0] = "k,3"; }),
+             StartsWith("$.base.plant.numerator[0]: expression \"k,3\" is a list of values"));
+  CHECK_THAT(error_after([](json& j) { j["base"]["plant"]["numerator"][0] = "(k),(3)"; }), Contains("list of values"));
+  // Comparisons and function arguments are expressions: 40 == 40 is 1, min(40, 45) = 40, k <= 45 is 1 at k = 40.
+  for (const char* ok : {"k*(k==40)", "min(k,45)", "k*(k<=45)", "k*(k!=3)", "k*(k>=40)"}) {
+    INFO(ok);
+    CHECK(error_after([&](json& j) { j["base"]["plant"]["numerator"][0] = ok; }).empty());
+    json j = json::parse(kSweep);
+    j["base"]["plant"]["numerator"][0] = ok;
+    const SweepFile f = parse_sweep(j);
+    const SweepPoints pts(f);
+    CHECK(point_spec(f, pts.at(0), 1)["plant"]["numerator"][0] == 40.0);  // k = 40 at the first point
+  }
+}
+
+TEST_CASE("expression and parameter messages blame the right thing", "[requirements][sweep_parse]") {
+  using Catch::StartsWith;
+  // 1e400 overflows a double (max about 1.8e308, IEEE 754): said so, not "unknown name e400".
+  CHECK_THAT(error_after([](json& j) { j["base"]["plant"]["numerator"][0] = "1e400*k"; }),
+             StartsWith("$.base.plant.numerator[0]: expression \"1e400*k\": the number 1e400 is beyond double range"));
+  CHECK(error_after([](json& j) { j["base"]["plant"]["numerator"][0] = "1e300*k*1e-300"; }).empty());
+  // A parameter named like the expression language's own constants or functions is blamed on itself.
+  for (const char* name : {"_pi", "_e", "sin", "sqrt"}) {
+    INFO(name);
+    CHECK_THAT(error_after([&](json& j) { j["parameters"][name] = {{"values", {1}}}; }),
+               StartsWith(std::string("$.parameters.") + name + ": is a name the expression language defines"));
+  }
+}
+
+TEST_CASE("a parameter that no expression uses is warned about", "[requirements][sweep_parse]") {
+  json j = json::parse(kSweep);
+  CHECK(parse_sweep(j).warnings.empty());
+  j["parameters"]["unused"] = {{"values", {1, 2, 3}}};
+  const SweepFile f = parse_sweep(j);
+  REQUIRE(f.warnings.size() == 1);
+  CHECK_THAT(f.warnings[0], Catch::StartsWith("$.parameters.unused: no expression of the base uses it"));
+  CHECK(f.point_count() == 3 * 2 * 4 * 3);  // it still multiplies the grid: the reason to warn
+}
+
+TEST_CASE("per-point limits: read and range-checked", "[requirements][sweep_parse]") {
+  using Catch::StartsWith;
+  json j = json::parse(kSweep);
+  CHECK(parse_sweep(j).point_evaluations == 0);
+  CHECK(parse_sweep(j).point_seconds == kDefaultPointSeconds);
+  j["point_limit"] = {{"evaluations", 500}, {"seconds", 2.5}};
+  CHECK(parse_sweep(j).point_evaluations == 500);
+  CHECK(parse_sweep(j).point_seconds == 2.5);
+  CHECK_THAT(error_after([](json& d) { d["point_limit"] = {{"evaluations", 0}}; }), StartsWith("$.point_limit.evaluations"));
+  CHECK_THAT(error_after([](json& d) { d["point_limit"] = {{"seconds", -1}}; }), StartsWith("$.point_limit.seconds: must be > 0"));
+  CHECK_THAT(error_after([](json& d) { d["point_limit"] = {{"secs", 1}}; }), StartsWith("$.point_limit.secs: unknown key"));
+}
+
+TEST_CASE("sample points are the same in any order of asking (streamed generation)", "[requirements][sweep_parse]") {
+  for (const char* method : {"sobol", "latin"}) {
+    json j = json::parse(kSweep);
+    j["sample"] = {{"method", method}, {"count", 37}};
+    const SweepFile f = parse_sweep(j);
+    const SweepPoints forward(f), backward(f);
+    std::vector<std::vector<double>> a, b(37);
+    for (long long i = 0; i < 37; ++i) a.push_back(forward.at(i));
+    for (long long i = 36; i >= 0; --i) b[static_cast<size_t>(i)] = backward.at(i);
+    CHECK(a == b);
+    if (std::string(method) == "latin") {
+      // Latin hypercube property (McKay, Beckman and Conover 1979): every one of the 37 strata of
+      // each range parameter holds exactly one point. J is log-scaled over [0.1, 10].
+      std::set<int> strata;
+      for (const auto& v : a) strata.insert(static_cast<int>(std::floor(std::log(v[0] / 0.1) / std::log(100.0) * 37)));
+      CHECK(strata.size() == 37);
+    }
+  }
+}

@@ -14,10 +14,15 @@
 
 namespace pw {
 
+// How a point ended. BadPoint: its spec is invalid, or it hit a per-point limit (the message says
+// which); Error: an unexpected failure.
+enum class PointStatus { Met, NotMet, BadPoint, Error };
+const char* point_status_name(PointStatus s);  // "met", "not_met", "bad_point", "error" (the points file)
+
 struct SweepPointResult {
   long long index = 0;
   std::vector<double> values;      // parameter values, in the sweep file's parameter order
-  std::string status;              // "met", "not_met", "bad_point" (the point's spec is invalid) or "error"
+  PointStatus status = PointStatus::Error;
   std::string message;             // why, for bad_point and error
   std::optional<Candidate> top;    // the top candidate (design, retune) or the checked compensator
   std::string structure;           // "lead+notch", "current", "current + lead/lag"
@@ -28,18 +33,26 @@ struct SweepPointResult {
 struct SweepRunOptions {
   int threads = 0;                 // 0 = all cores; results do not depend on it
   std::vector<long long> todo;     // the points to run, ascending
-  const std::atomic<bool>* stop = nullptr;  // when set, no new point starts; points in flight finish
+  // When set: no new point starts, the points in flight are cancelled (their searches stop at the
+  // next task or evaluation) and are not delivered: a resumed run does them again.
+  const std::atomic<bool>* stop = nullptr;
+  double poll_s = 0.02;            // how often the watchdog looks at the stop flag and the clock
   bool IsValid(std::string* error) const;
 };
 
 struct SweepRunSummary {
   long long ran = 0;               // points delivered
+  long long abandoned = 0;         // points cancelled by the stop flag (not delivered)
+  long long time_limited = 0;      // points stopped by the per-point wall-clock cap (delivered as bad_point)
   bool stopped = false;            // the stop flag ended the run before the last point
   double seconds = 0.0;
 };
 
-// Runs one point (never throws for a bad point: it becomes status bad_point).
-SweepPointResult run_sweep_point(const SweepFile& file, const SweepPoints& points, long long index);
+// Runs one point (never throws for a bad point: it becomes status bad_point). `cancel` stops its
+// search early (the caller decides what a cancelled point means); the per-point evaluation limit
+// of the sweep file applies here.
+SweepPointResult run_sweep_point(const SweepFile& file, const SweepPoints& points, long long index,
+                                 const std::atomic<bool>* cancel = nullptr);
 
 // Runs the points of options.todo; `deliver` is called on the calling thread's behalf (serialised)
 // for each finished point, in todo order: a point is delivered only after all points before it.
