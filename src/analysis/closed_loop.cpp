@@ -88,10 +88,26 @@ void finish_analysis(const ClosedLoop& loop, const CVec& values, const CVec& slo
     if (std::abs(p.pole.imag()) <= 1e-12 * std::max(1.0, p.natural_frequency)) p.pole.imag(0.0);
 }
 
-bool all_stable(const CVec& v) {
-  for (int i = 0; i < v.size(); ++i)
-    if (!(v(i).real() < 0.0)) return false;
-  return true;
+// Strictly stable: every pole further left of the imaginary axis than numerical noise. A pole
+// with |Re p| <= kMarginalRel max(|p|, 1e-6 max_j |p_j|) and none to the right is marginal: the
+// loop sits on the stability boundary (a critical gain), which no rounding may turn into a pass.
+void judge_stability(const CVec& v, PoleAnalysis& out) {
+  double scale = 0.0;
+  for (int i = 0; i < v.size(); ++i) scale = std::max(scale, std::abs(v(i)));
+  out.stable = true;
+  out.marginal = false;
+  bool unstable = false;
+  for (int i = 0; i < v.size(); ++i) {
+    const double re = v(i).real();
+    if (!(re < 0.0) && !(std::abs(re) <= kMarginalRel * std::max(std::abs(v(i)), 1e-6 * scale))) {
+      unstable = true;
+    } else if (!(re < -kMarginalRel * std::max(std::abs(v(i)), 1e-6 * scale))) {
+      if (!out.marginal || re > out.marginal_pole.real()) out.marginal_pole = v(i);
+      out.marginal = true;
+    }
+  }
+  if (unstable) out.marginal = false;
+  out.stable = !unstable && !out.marginal;
 }
 
 // gain * prod(s - zeros) / (lead * s * prod_{j != skip} (s - poles_j)), interleaved to stay in range.
@@ -195,7 +211,7 @@ PoleAnalysis analyze_poles(const ClosedLoop& loop, double threshold) {
     return out;
   }
   const EigenDecomposition ed = eigen_decompose(loop.A);
-  out.stable = all_stable(ed.values);
+  judge_stability(ed.values, out);
   // c_i = (C v_i) (W B)_i / lambda_i with W = V^-1.
   Eigen::PartialPivLU<CMat> lu(ed.vectors);
   const CVec wb = lu.solve(loop.B.cast<Complex>());
@@ -225,7 +241,7 @@ PoleAnalysis analyze_poles(const ClosedLoop& loop, const LoopParts& parts, doubl
   // Eigenvalues of the balanced closed-loop matrix, refined on the factored characteristic
   // equation: the matrix of a high-order loop can lose digits the factored form still has.
   const CVec values = polish_closed_loop_poles(eigenvalues_balanced(loop.A), L, k);
-  out.stable = all_stable(values);
+  judge_stability(values, out);
   // Closed-loop denominator D + k N: monic unless the loop is biproper.
   const double lead = L.relative_degree() == 0 ? 1.0 + k * L.gain : 1.0;
   const Zpk& C = parts.compensator_tf;

@@ -4,6 +4,9 @@
 #include <cmath>
 #include <functional>
 #include <stdexcept>
+#include <string>
+
+#include "polewright/model/eigen.hpp"
 
 namespace pw {
 
@@ -105,10 +108,35 @@ std::vector<double> frequency_grid(const Zpk& loop, double delay_s, const Freque
     const double g = std::abs(loop.gain);
     lo = hi = (rel > 0 && g > 0.0) ? std::pow(g, 1.0 / rel) : 1.0;
   }
+  const double root_lo = lo, root_hi = hi;
   lo /= 100.0;
   hi *= 100.0;
   const int type = zpk_integrators(loop);
   const LoopResponse Lw(loop, delay_s);
+  // Every gain crossing lies inside bounds from the loop's asymptotes (|e^(-jwT)| = 1):
+  // above w >= 2 M (M the largest root magnitude) each factor |jw - r| is within [w/2, 3w/2], so
+  // |L| <= |g| 1.5^m 2^n w^-rel, below 1 for w > (|g| 1.5^m 2^n)^(1/rel); below w <= m0/2 (m0
+  // the smallest non-zero root) each non-zero factor is within [|r|/2, 3|r|/2] of |r|, so
+  // |L| >= |K0| 0.5^mz (2/3)^np w^-type, above 1 for w < (|K0| 0.5^mz (2/3)^np)^(1/type). The
+  // grid spans both bounds with a decade to spare, whatever the slowest or fastest root.
+  if (rel > 0 && loop.gain != 0.0) {
+    const double m = static_cast<double>(loop.zeros.size()), n = static_cast<double>(loop.poles.size());
+    const double log_top = (std::log(std::abs(loop.gain)) + m * std::log(1.5) + n * std::log(2.0)) / rel;
+    const double top = std::max(2.0 * root_hi, std::exp(std::min(log_top, 700.0)));
+    if (std::isfinite(top)) hi = std::max(hi, 10.0 * top);
+  }
+  if (type > 0 && loop.gain != 0.0) {
+    double log_k = std::log(std::abs(loop.gain));
+    double mz = 0.0, np = 0.0;
+    for (const Complex& z : loop.zeros)
+      if (std::abs(z) > 0.0) { log_k += std::log(std::abs(z)); mz += 1.0; }
+    for (const Complex& p : loop.poles)
+      if (std::abs(p) > 0.0) { log_k -= std::log(std::abs(p)); np += 1.0; }
+    const double log_bottom = (log_k + mz * std::log(0.5) + np * std::log(2.0 / 3.0)) / type;
+    const double bottom = std::min(0.5 * root_lo, std::exp(std::max(log_bottom, -700.0)));
+    if (bottom > 0.0 && std::isfinite(bottom)) lo = std::min(lo, 0.1 * bottom);
+  }
+  // Beyond the bounds (a loop with large cancellation), a few more decades while |L| says so.
   for (int i = 0; i < 6 && type > 0 && std::abs(Lw(lo)) < 1.0; ++i) lo /= 10.0;
   for (int i = 0; i < 6 && rel > 0 && std::abs(Lw(hi)) > 1.0; ++i) hi *= 10.0;
   if (opt.w_min > 0.0) lo = opt.w_min;
@@ -350,7 +378,22 @@ FrequencyMetrics frequency_metrics(const Zpk& loop, double delay_s, const Freque
     // Biproper loop: the high-frequency limit |L| -> |gain| is a boundary as well.
     lim.upper_crossing = std::make_pair(INFINITY, 1.0 / std::abs(loop.gain));
   }
-  return metrics_core(LoopResponse(loop, delay_s), frequency_grid(loop, delay_s, opt), lim, opt);
+  const LoopResponse Lw(loop, delay_s);
+  const std::vector<double> grid = frequency_grid(loop, delay_s, opt);
+  FrequencyMetrics m = metrics_core(Lw, grid, lim, opt);
+  if (loop.relative_degree() > 0 && loop.gain != 0.0 && opt.w_max == 0.0) {
+    // Sanity: a strictly proper loop has S(j inf) = 1, so sup |S| >= 1, and its grid must end
+    // where |L| has rolled off below 1. Either failing means a crossing was missed: say so
+    // rather than report margins of a loop the grid did not see.
+    const double top = std::abs(Lw(grid.back()));
+    if (!(top < 1.0))
+      throw NumericalError("frequency response: the grid ends at " + std::to_string(grid.back()) +
+                           " rad/s with |L| = " + std::to_string(top) + " >= 1: a gain crossing lies beyond it");
+    if (m.peak_sensitivity && *m.peak_sensitivity < (1.0 - top) * (1.0 - 1e-9))
+      throw NumericalError("frequency response: peak |S| = " + std::to_string(*m.peak_sensitivity) +
+                           " is below 1 for a strictly proper loop: the frequency grid missed part of the response");
+  }
+  return m;
 }
 
 FrequencyMetrics frequency_metrics_of(const std::function<Complex(double)>& response, const std::vector<double>& grid,

@@ -196,7 +196,12 @@ Locus root_locus(const LoopParts& parts, const LocusOptions& opt) {
   double k = opt.gain_min;
   double ratio = 1.25;
   bool first = true;
-  while (k <= opt.gain_max && static_cast<int>(out.gains.size()) < opt.max_points) {
+  // Every pass either records a point or shrinks the step (at most ~14 halvings of the log
+  // ratio before it falls under 1e-4) or nudges past a gain with an ill-posed loop: the cap on
+  // passes keeps a pathological loop from tracing for ever.
+  const long max_passes = 50L * opt.max_points + 100000L;
+  for (long pass = 0; k <= opt.gain_max && static_cast<int>(out.gains.size()) < opt.max_points; ++pass) {
+    if (pass >= max_passes) throw NumericalError("root locus: the gain trace did not finish within its iteration cap");
     sc.set(k);
     if (!sc.ok) { k *= 1.0 + 1e-6; continue; }
     const std::vector<Complex> next = match(prev, eigenvalues_balanced(sc.A));

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <functional>
 #include <string>
 
 
@@ -291,41 +292,76 @@ StepMetrics step_response(const ClosedLoop& L, const PoleAnalysis& poles, const 
   const double sgn = yf >= 0.0 ? 1.0 : -1.0;
   const double F = std::abs(yf);
   const double band = opt.band * F;
+  const size_t Ns = y.size();
 
   // Sample-level events.
   size_t kpeak = 0, kumax = 0;
   double undershoot = 0.0;
-  for (size_t k = 0; k < y.size(); ++k) {
+  for (size_t k = 0; k < Ns; ++k) {
     if (sgn * y[k] > sgn * y[kpeak]) kpeak = k;
     if (std::abs(u[k]) > std::abs(u[kumax])) kumax = k;
     undershoot = std::max(undershoot, -sgn * y[k]);
   }
   auto first_reach = [&](double frac) -> long {
-    for (size_t k = 0; k < y.size(); ++k)
+    for (size_t k = 0; k < Ns; ++k)
       if (sgn * y[k] >= frac * F) return static_cast<long>(k);
     return -1;
   };
   const long k10 = first_reach(0.1), k90 = first_reach(0.9);
   long klast = -1;  // last sample outside the band
-  for (size_t k = y.size(); k-- > 0;)
+  for (size_t k = Ns; k-- > 0;)
     if (std::abs(y[k] - yf) > band) {
       klast = static_cast<long>(k);
       break;
     }
 
+  // Between two samples a signal can rise above its sampled local maximum by at most about a
+  // quarter of the larger neighbouring step (a parabola through the peak); modes too small to
+  // get samples of their own (see adaptive_count) can add up to twice their amplitude. Every
+  // local maximum that comes within that margin of a threshold is refined exactly.
+  double unresolved = 0.0;
+  {
+    const double visible = 0.05 * opt.band * F;
+    for (const PoleInfo& p : poles.poles)
+      if (!p.matters && p.residue < visible) unresolved += p.residue;
+  }
+  auto local_max = [](const std::vector<double>& v, size_t k, double s) {
+    return s * v[k] >= s * v[k - 1] && s * v[k] >= s * v[k + 1];
+  };
+  auto reach = [&](const std::vector<double>& v, size_t k) {
+    return std::max(std::abs(v[k] - v[k - 1]), std::abs(v[k + 1] - v[k])) + 2.0 * unresolved;
+  };
+  // Interior local maxima of s * v within reach of `level`, sample index ascending.
+  auto near_peaks = [&](const std::vector<double>& v, double s, double level, size_t from, std::vector<size_t>& out) {
+    out.clear();
+    for (size_t k = std::max<size_t>(from, 1); k + 1 < v.size(); ++k)
+      if (local_max(v, k, s) && s * v[k] + reach(v, k) >= level) out.push_back(k);
+  };
+  // Settling candidates: local maxima of |y - y_f| after the last sample outside the band.
+  std::vector<size_t> settle_cand;
+  if (F > 0.0 && klast >= 0) {
+    for (size_t k = static_cast<size_t>(klast) + 1; k + 1 < Ns; ++k) {
+      const double e = y[k] - yf, s = e >= 0.0 ? 1.0 : -1.0;
+      if (k >= 1 && local_max(y, k, s) && std::abs(e) + reach(y, k) >= band) settle_cand.push_back(k);
+    }
+  }
+  std::vector<size_t> peak_cand, u_cand_pos, u_cand_neg;
+  if (kpeak > 0 && kpeak + 1 < Ns) near_peaks(y, sgn, sgn * y[kpeak], 1, peak_cand);
+  const double umax_s = std::abs(u[kumax]);
+  near_peaks(u, 1.0, umax_s, 1, u_cand_pos);
+  near_peaks(u, -1.0, umax_s, 1, u_cand_neg);
+
   const RowVec cy = output_row(L.Cy, L.Dy);
   const RowVec cu = output_row(L.Cu, L.Du);
-  const bool interior_peak = kpeak > 0 && kpeak + 1 < y.size();
-  const bool interior_u = kumax > 0 && kumax + 1 < u.size();
 
-  // Capture states for exact refinement.
+  // Capture states for exact refinement: at the sample before each window.
   std::vector<int> want;
   if (opt.exact_refinement) {
-    if (interior_peak) want.push_back(static_cast<int>(kpeak) - 1);
-    if (interior_u) want.push_back(static_cast<int>(kumax) - 1);
+    for (const auto* c : {&peak_cand, &u_cand_pos, &u_cand_neg, &settle_cand})
+      for (size_t k : *c) want.push_back(static_cast<int>(k) - 1);
     if (k10 > 0) want.push_back(static_cast<int>(k10) - 1);
     if (k90 > 0) want.push_back(static_cast<int>(k90) - 1);
-    if (klast >= 0 && klast + 1 < static_cast<long>(y.size())) want.push_back(static_cast<int>(klast));
+    if (klast >= 0 && klast + 1 < static_cast<long>(Ns)) want.push_back(static_cast<int>(klast));
     std::sort(want.begin(), want.end());
     want.erase(std::unique(want.begin(), want.end()), want.end());
   }
@@ -339,17 +375,74 @@ StepMetrics step_response(const ClosedLoop& L, const PoleAnalysis& poles, const 
     return states[i];
   };
 
-  // Peak of y and overshoot.
-  double peak_val = sgn * y[kpeak], peak_t = dt * static_cast<double>(kpeak);
-  if (interior_peak) {
+  // Exact values between samples on the screening path: the modal expansion at any time.
+  const ModalStep& ms = poles.modal;
+  auto modal_value = [&](bool of_y, double t, int deriv) {
+    const CVec& c = of_y ? ms.cy : ms.cu;
+    Complex acc(0.0, 0.0);
+    for (int i = 0; i < ms.lambda.size(); ++i) {
+      Complex term = c(i) * std::exp(ms.lambda(i) * t);
+      if (deriv) term *= ms.lambda(i);
+      acc += term;
+    }
+    return (deriv ? 0.0 : (of_y ? ms.y_final : ms.u_final)) + acc.real();
+  };
+  // Root of f on [a, b] (a sign change) by Illinois false position, at most 60 steps.
+  auto modal_root = [&](const std::function<double(double)>& f, double a, double b) {
+    double fa = f(a), fb = f(b);
+    if (fa == 0.0) return a;
+    if ((fa > 0.0) == (fb > 0.0)) return (std::abs(fa) < std::abs(fb)) ? a : b;
+    int side = 0;
+    for (int it = 0; it < 60 && (b - a) > 1e-13 * std::max(dt, b); ++it) {
+      double c = (a * fb - b * fa) / (fb - fa);
+      if (!(c > a && c < b)) c = 0.5 * (a + b);
+      const double fc = f(c);
+      if (fc == 0.0) return c;
+      if ((fc > 0.0) == (fa > 0.0)) {
+        a = c; fa = fc;
+        if (side == -1) fb *= 0.5;
+        side = -1;
+      } else {
+        b = c; fb = fc;
+        if (side == 1) fa *= 0.5;
+        side = 1;
+      }
+    }
+    return 0.5 * (a + b);
+  };
+  // Largest s * out over the window [t_{k-1}, t_{k+1}] around sample k: (time, s * value).
+  auto window_peak = [&](bool of_y, size_t k, double s) -> std::pair<double, double> {
+    const std::vector<double>& v = of_y ? y : u;
+    const double t0 = dt * (static_cast<double>(k) - 1.0);
     if (opt.exact_refinement) {
-      const auto pk = exact_peak(L, state_at(static_cast<long>(kpeak) - 1), cy, 2.0 * dt, sgn);
-      peak_t = dt * (static_cast<double>(kpeak) - 1.0) + pk.first;
-      peak_val = std::max(peak_val, pk.second);
-    } else {
-      const auto pk = parabola_peak(sgn * y[kpeak - 1], sgn * y[kpeak], sgn * y[kpeak + 1]);
-      peak_t = dt * (static_cast<double>(kpeak) + pk.first);
+      const auto pk = exact_peak(L, state_at(static_cast<long>(k) - 1), of_y ? cy : cu, 2.0 * dt, s);
+      if (pk.second >= s * v[k]) return {t0 + pk.first, pk.second};
+      return {dt * static_cast<double>(k), s * v[k]};
+    }
+    if (modal) {
+      auto d = [&](double t) { return s * modal_value(of_y, t, 1); };
+      double best_t = dt * static_cast<double>(k), best = s * v[k];
+      for (int half = 0; half < 2; ++half) {
+        const double a = t0 + half * dt, b = a + dt;
+        if (d(a) > 0.0 && d(b) < 0.0) {
+          const double t = modal_root(d, a, b), val = s * modal_value(of_y, t, 0);
+          if (val > best) { best = val; best_t = t; }
+        }
+      }
+      return {best_t, best};
+    }
+    const auto pk = parabola_peak(s * v[k - 1], s * v[k], s * v[k + 1]);
+    return {dt * (static_cast<double>(k) + pk.first), std::max(pk.second, s * v[k])};
+  };
+
+  // Peak of y and overshoot: the largest refined local maximum.
+  double peak_val = sgn * y[kpeak], peak_t = dt * static_cast<double>(kpeak);
+  const bool interior_peak = !peak_cand.empty();
+  for (size_t k : peak_cand) {
+    const auto pk = window_peak(true, k, sgn);
+    if (pk.second > peak_val || (k == kpeak && pk.second >= peak_val)) {
       peak_val = pk.second;
+      peak_t = pk.first;
     }
   }
   if (F > 0.0) {
@@ -369,29 +462,59 @@ StepMetrics step_response(const ClosedLoop& L, const PoleAnalysis& poles, const 
   };
   if (F > 0.0 && k10 >= 0 && k90 >= 0) m.rise_time_s = crossing_time(k90, 0.9) - crossing_time(k10, 0.1);
 
-  // Settling time: last exit from the band.
+  // Settling time: the last exit from the band. First the latest excursion between samples (a
+  // refined local maximum of |y - y_f| above the band after the last sample outside it), then
+  // the exit after the last sample outside the band.
   if (F > 0.0) {
-    if (klast < 0) {
+    bool found = false;
+    for (size_t i = settle_cand.size(); i-- > 0 && !found;) {
+      const size_t k = settle_cand[i];
+      const double s = y[k] >= yf ? 1.0 : -1.0;
+      const auto pk = window_peak(true, k, s);
+      if (!(pk.second - s * yf > band)) continue;
+      found = true;
+      const double level = yf + s * band, t_end = dt * static_cast<double>(k + 1);
+      const double t_pk = pk.first;
+      if (opt.exact_refinement) {
+        const double t0 = dt * (static_cast<double>(k) - 1.0);
+        const Vec zp = augmented_map(L, t_pk - t0) * state_at(static_cast<long>(k) - 1);
+        m.settling_time_s = t_pk + exact_crossing(L, zp, cy, t_end - t_pk, level);
+      } else if (modal) {
+        m.settling_time_s = modal_root([&](double t) { return modal_value(true, t, 0) - level; }, t_pk, t_end);
+      } else {
+        // The parabola through the three samples, from its vertex to the band.
+        const double ym = s * y[k - 1] - s * yf, y0 = s * y[k] - s * yf, yp = s * y[k + 1] - s * yf;
+        const double a = 0.5 * (ym - 2.0 * y0 + yp), b = 0.5 * (yp - ym);
+        double x = 1.0;
+        if (a < 0.0) {
+          const double disc = b * b - 4.0 * a * (y0 - band);
+          if (disc >= 0.0) x = std::clamp((-b - std::sqrt(disc)) / (2.0 * a), -1.0, 1.0);
+        }
+        m.settling_time_s = std::max(t_pk, dt * (static_cast<double>(k) + x));
+      }
+    }
+    if (found) {
+    } else if (klast < 0) {
       m.settling_time_s = 0.0;
-    } else if (klast + 1 < static_cast<long>(y.size())) {
+    } else if (klast + 1 < static_cast<long>(Ns)) {
       const size_t k = static_cast<size_t>(klast);
       const double level = yf + (y[k] > yf ? band : -band);
-      const double tau = opt.exact_refinement ? exact_crossing(L, state_at(klast), cy, dt, level)
-                                              : dt * linear_crossing(y[k], y[k + 1], level);
-      m.settling_time_s = dt * static_cast<double>(k) + tau;
+      const double t0 = dt * static_cast<double>(k);
+      if (opt.exact_refinement) {
+        m.settling_time_s = t0 + exact_crossing(L, state_at(klast), cy, dt, level);
+      } else if (modal) {
+        // Near a peak the curve bends within one interval: the modal expansion gives the exit.
+        m.settling_time_s = modal_root([&](double t) { return modal_value(true, t, 0) - level; }, t0, t0 + dt);
+      } else {
+        m.settling_time_s = t0 + dt * linear_crossing(y[k], y[k + 1], level);
+      }
     }
   }
 
-  // Peak effort.
-  double umax = std::abs(u[kumax]);
-  if (interior_u) {
-    const double s = u[kumax] >= 0.0 ? 1.0 : -1.0;
-    if (opt.exact_refinement) {
-      umax = std::max(umax, exact_peak(L, state_at(static_cast<long>(kumax) - 1), cu, 2.0 * dt, s).second);
-    } else {
-      umax = std::max(umax, parabola_peak(s * u[kumax - 1], s * u[kumax], s * u[kumax + 1]).second);
-    }
-  }
+  // Peak effort: the largest refined local maximum of |u|.
+  double umax = umax_s;
+  for (size_t k : u_cand_pos) umax = std::max(umax, window_peak(false, k, 1.0).second);
+  for (size_t k : u_cand_neg) umax = std::max(umax, window_peak(false, k, -1.0).second);
   m.peak_effort = umax;
 
   if (opt.keep_trace) {

@@ -10,6 +10,17 @@ namespace pw {
 
 namespace {
 
+// Powers of two between the smallest subnormal and the largest double.
+constexpr int kMaxScalingSteps = 2100;
+
+template <class M>
+bool all_finite(const M& A) {
+  for (int i = 0; i < A.rows(); ++i)
+    for (int j = 0; j < A.cols(); ++j)
+      if (!std::isfinite(A(i, j))) return false;
+  return true;
+}
+
 template <class M, class V>
 void balance_impl(M& A, V& scale) {
   const int n = static_cast<int>(A.rows());
@@ -25,12 +36,15 @@ void balance_impl(M& A, V& scale) {
         c += std::abs(A(j, i));
         r += std::abs(A(i, j));
       }
-      if (c == 0.0 || r == 0.0) continue;
+      // A non-finite row or column cannot be balanced (and would loop forever below: inf / 4 is
+      // inf); each scaling loop is capped at the exponent range of a double as well.
+      if (c == 0.0 || r == 0.0 || !std::isfinite(c) || !std::isfinite(r)) continue;
       double g = r / radix, f = 1.0;
       const double s = c + r;
-      while (c < g) { f *= radix; c *= radix * radix; }
+      for (int k = 0; k < kMaxScalingSteps && c < g; ++k) { f *= radix; c *= radix * radix; }
       g = r * radix;
-      while (c >= g) { f /= radix; c /= radix * radix; }
+      for (int k = 0; k < kMaxScalingSteps && c >= g; ++k) { f /= radix; c /= radix * radix; }
+      if (!std::isfinite(f) || f == 0.0) continue;
       if ((c + r) / f < 0.95 * s) {
         converged = false;
         scale(i) *= f;
@@ -44,10 +58,14 @@ void balance_impl(M& A, V& scale) {
 template <class M, class V>
 CVec eigenvalues_impl(const M& A_in) {
   if (A_in.rows() == 0) return CVec(0);
+  if (!all_finite(A_in)) throw NumericalError("eigenvalues: the matrix has entries beyond the range of a double");
   M A = A_in;
   V d;
   balance_impl(A, d);
   Eigen::EigenSolver<Eigen::MatrixXd> es(Eigen::MatrixXd(A), false);
+  // The QR iteration is capped (Eigen: 40 sweeps per eigenvalue); when it stops unconverged the
+  // values are not eigenvalues: return NaN, which no stability test accepts.
+  if (es.info() != Eigen::Success) return CVec::Constant(A.rows(), Complex(std::nan(""), std::nan("")));
   return es.eigenvalues();
 }
 
@@ -60,6 +78,7 @@ EigenDecomposition decompose_impl(const M& A_in) {
     out.ok = true;
     return out;
   }
+  if (!all_finite(A_in)) throw NumericalError("eigenvalues: the matrix has entries beyond the range of a double");
   M A = A_in;
   V d;
   balance_impl(A, d);

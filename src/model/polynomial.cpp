@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <string>
 
 #include "polewright/model/eigen.hpp"
 #include "polewright/model/root_accuracy.hpp"
@@ -127,17 +128,31 @@ Roots poly_roots(const Poly& p_in) {
   }
   const int n = static_cast<int>(p.size()) - 1;
   if (n <= 0) return out;
+  for (double c : p)
+    if (!std::isfinite(c)) throw NumericalError("polynomial roots: a coefficient is not finite");
   if (n == 1) {
+    if (!std::isfinite(p[1] / p[0]))
+      throw NumericalError("polynomial roots: the coefficients span more than the range of a double (coefficient 1 over "
+                           "the leading one overflows); rescale the polynomial");
     out.push_back(Complex(-p[1] / p[0], 0.0));
     return make_conjugate_symmetric(out);
   }
   // Companion matrix of the monic polynomial.
   Mat comp = Mat::Zero(n, n);
-  for (int j = 0; j < n; ++j) comp(0, j) = -p[static_cast<size_t>(j + 1)] / p[0];
+  for (int j = 0; j < n; ++j) {
+    comp(0, j) = -p[static_cast<size_t>(j + 1)] / p[0];
+    if (!std::isfinite(comp(0, j)))
+      throw NumericalError("polynomial roots: the coefficients span more than the range of a double (coefficient " +
+                           std::to_string(j + 1) + " over the leading one overflows); rescale the polynomial");
+  }
   for (int i = 1; i < n; ++i) comp(i, i - 1) = 1.0;
   const CVec ev = eigenvalues_balanced(comp);
   Roots found;
-  for (int i = 0; i < n; ++i) found.push_back(ev(i));
+  for (int i = 0; i < n; ++i) {
+    if (!std::isfinite(ev(i).real()) || !std::isfinite(ev(i).imag()))
+      throw NumericalError("polynomial roots: the eigenvalue iteration did not converge");
+    found.push_back(ev(i));
+  }
   // Polish only isolated roots: the eigenvalues of a cluster (a repeated root perturbed by
   // rounding) are right as a set, and polishing them one by one moves the cluster.
   const std::vector<bool> isolated = isolated_roots(p, found);

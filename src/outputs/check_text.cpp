@@ -38,9 +38,13 @@ std::string check_report_text(const CheckReport& r) {
     const MetricInfo& info = metric_info(o.requirement.metric);
     const std::string limit = std::string(o.requirement.sense == Sense::AtMost ? "<= " : ">= ") +
                               with_unit(fmt_number(o.requirement.limit), info.unit);
-    std::string value = o.worst.infinite ? "unbounded" : with_unit(fmt_number(o.worst.value), info.unit);
+    std::string value = o.worst.infinite ? "unbounded"
+                        : with_unit(o.worst.value ? fmt_against_limit(*o.worst.value, o.requirement.limit,
+                                                                      !requirement_met(o.requirement, o.worst))
+                                                  : std::string("-"),
+                                    info.unit);
     std::string margin = "-";
-    if (o.worst.value) margin = with_unit(fmt_number(requirement_margin(o.requirement, *o.worst.value)), info.unit);
+    if (o.worst.value) margin = with_unit(fmt_margin(o.requirement, *o.worst.value), info.unit);
     if (!o.met) ++missed;
     t.add({info.key, limit, value, margin, o.met ? "yes" : "NO", r.plants[static_cast<size_t>(o.worst_plant)].name});
   }
@@ -52,7 +56,12 @@ std::string check_report_text(const CheckReport& r) {
 
   for (size_t i = 0; i < ev.plants.size(); ++i) {
     const LoopEvaluation& e = ev.plants[i];
-    out += "\nclosed-loop poles, " + e.plant_name + (e.stable ? "" : "  ** UNSTABLE **") + "\n";
+    out += "\nclosed-loop poles, " + e.plant_name +
+           (e.stable ? "" : (e.poles.marginal ? "  ** MARGINAL: NOT STABLE **" : "  ** UNSTABLE **")) + "\n";
+    if (e.poles.marginal)
+      out += "  the pole " + pole_text(e.poles.marginal_pole) +
+             " lies on the imaginary axis to within numerical noise (|Re p| <= 1e-11 |p|): the loop is at a "
+             "critical gain and its step does not decay\n";
     if (!e.well_posed) {
       out += "  the loop is not well posed: 1 + Dc Dg = 0\n";
       continue;
@@ -93,7 +102,12 @@ std::string check_report_text(const CheckReport& r) {
 
   out += "\nverdict: ";
   if (ev.all_met) out += "MET: every requirement holds for every plant\n";
-  else if (!ev.all_stable) out += "NOT MET: the closed loop is unstable for at least one plant\n";
+  else if (!ev.all_stable) {
+    bool marginal_only = true;
+    for (const LoopEvaluation& e : ev.plants) marginal_only = marginal_only && (e.stable || e.poles.marginal);
+    out += marginal_only ? "NOT MET: the closed loop is marginally stable (a pole on the imaginary axis) for at least one plant\n"
+                         : "NOT MET: the closed loop is unstable for at least one plant\n";
+  }
   else out += "NOT MET: " + std::to_string(missed) + " of " + std::to_string(ev.outcomes.size()) + " requirement bounds missed\n";
   out += "\ncaution: " + std::string(kCautions) + "\n";
   return out;

@@ -32,7 +32,8 @@ std::string worst_violation(const Candidate& c) {
     }
   if (!w) return "-";
   const MetricInfo& info = metric_info(w->requirement.metric);
-  std::string s = std::string(info.key) + " " + (w->worst.value ? fmt_number(*w->worst.value) : std::string("n/a")) +
+  std::string s = std::string(info.key) + " " +
+                  (w->worst.value ? fmt_against_limit(*w->worst.value, w->requirement.limit, true) : std::string("n/a")) +
                   (w->requirement.sense == Sense::AtMost ? " > " : " < ") + fmt_number(w->requirement.limit);
   if (missed > 1) s += " (+" + std::to_string(missed - 1) + " more)";
   return s;
@@ -60,7 +61,7 @@ std::string design_report_text(const DesignReport& r) {
                                     fmt_number(zpk_low_frequency_gain(c.compensator)), roots_text(c.compensator.zeros), roots_text(c.compensator.poles)};
     for (MetricId id : shown) {
       const MetricValue& v = c.worst[static_cast<size_t>(id)];
-      row.push_back(v.infinite ? "unbounded" : fmt_number(v.value));
+      row.push_back(fmt_metric_against(v, id, c.verification.outcomes));
     }
     row.push_back(candidate_verdict(c));
     t.add(row);

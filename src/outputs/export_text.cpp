@@ -18,6 +18,13 @@ std::string value_text(const MetricValue& v, const char* unit) {
   return *unit ? s + " " + unit : s;
 }
 
+std::string value_text(const MetricValue& v, const Requirement& r, const char* unit) {
+  if (v.infinite) return "unbounded";
+  if (!v.value) return "-";
+  const std::string s = fmt_against_limit(*v.value, r.limit, !requirement_met(r, v));
+  return *unit ? s + " " + unit : s;
+}
+
 std::string z_text(Complex z) {
   if (z.imag() == 0.0) return fmt_number(z.real(), 6);
   return fmt_number(z.real(), 6) + (z.imag() > 0 ? " + j" : " - j") + fmt_number(std::abs(z.imag()), 6);
@@ -55,7 +62,8 @@ std::string export_text(const ExportReport& r) {
       t.add({info.label,
              std::string(o.requirement.sense == Sense::AtMost ? "<= " : ">= ") + fmt_number(o.requirement.limit) +
                  (*info.unit ? std::string(" ") + info.unit : ""),
-             value_text(o.continuous, info.unit), value_text(o.discrete, info.unit), o.met ? "yes" : "NO",
+             value_text(o.continuous, o.requirement, info.unit), value_text(o.discrete, o.requirement, info.unit),
+             o.met ? "yes" : "NO",
              r.plants[static_cast<size_t>(o.worst_plant)].name});
     }
     out += t.render() + "\n";

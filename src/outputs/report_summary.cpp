@@ -37,10 +37,10 @@ std::string requirement_rows(const ReportData& d, const Evaluation& ev) {
     const std::string unit = info.unit;
     std::string margin = "n/a";
     if (o.worst.infinite) margin = "unbounded";
-    else if (o.worst.value) margin = format_number(requirement_margin(o.requirement, *o.worst.value), 3) + (unit.empty() ? "" : " " + unit);
+    else if (o.worst.value) margin = fmt_margin(o.requirement, *o.worst.value, 3) + (unit.empty() ? "" : " " + unit);
     h += "<tr><td>" + xml_escape(info.label) + "</td><td class=\"num\">" +
          (o.requirement.sense == Sense::AtMost ? "&#8804; " : "&#8805; ") + xml_escape(format_number(o.requirement.limit, 4)) +
-         (unit.empty() ? "" : " " + xml_escape(unit)) + "</td><td class=\"num\">" + xml_escape(report::metric_text(o.worst, info.unit)) +
+         (unit.empty() ? "" : " " + xml_escape(unit)) + "</td><td class=\"num\">" + xml_escape(report::outcome_value_text(o, info.unit)) +
          "</td><td class=\"num\">" + xml_escape(margin) + "</td><td>" +
          (o.met ? "<span class=\"pw-ok\">met</span>" : "<span class=\"pw-bad\">not met</span>") + "</td><td class=\"nowrap\">" +
          xml_escape(report::plant_name(d, static_cast<size_t>(o.worst_plant))) + "</td></tr>\n";

@@ -6,6 +6,7 @@
 
 #include "polewright/outputs/report.hpp"
 #include "svg_text.hpp"
+#include "text_table.hpp"
 
 namespace pw::report {
 
@@ -19,6 +20,16 @@ inline std::string metric_text(const MetricValue& v, const char* unit) {
   if (v.infinite) return "unbounded";
   if (!v.value) return "n/a";
   std::string s = format_number(*v.value, 3);
+  if (unit && *unit) s += std::string(" ") + unit;
+  return s;
+}
+
+// A requirement's worst value set against its limit: a value that misses never shows as equal to
+// the limit (fmt_against_limit, three digits or as many more as that takes).
+inline std::string outcome_value_text(const RequirementOutcome& o, const char* unit) {
+  if (o.worst.infinite) return "unbounded";
+  if (!o.worst.value) return "n/a";
+  std::string s = fmt_against_limit(*o.worst.value, o.requirement.limit, !requirement_met(o.requirement, o.worst), 3);
   if (unit && *unit) s += std::string(" ") + unit;
   return s;
 }

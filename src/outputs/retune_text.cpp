@@ -63,7 +63,7 @@ std::string retune_report_text(const RetuneReport& r) {
     std::vector<std::string> cells = {name};
     for (MetricId id : shown) {
       const MetricValue& v = c.worst[static_cast<size_t>(id)];
-      cells.push_back(v.infinite ? "unbounded" : fmt_number(v.value));
+      cells.push_back(fmt_metric_against(v, id, c.verification.outcomes));
     }
     cells.push_back(candidate_verdict(c));
     t.add(cells);

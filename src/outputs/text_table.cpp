@@ -40,4 +40,33 @@ std::string fmt_number(double v, int digits) {
 
 std::string fmt_number(const std::optional<double>& v, int digits) { return v ? fmt_number(*v, digits) : "-"; }
 
+std::string fmt_against_limit(double value, double limit, bool misses, int digits) {
+  std::string s = fmt_number(value, digits);
+  if (!misses || !std::isfinite(value) || !std::isfinite(limit) || value == limit) return s;
+  for (int d = digits; d <= 17; ++d) {
+    s = fmt_number(value, d);
+    if (s != fmt_number(limit, d)) break;
+  }
+  return s;
+}
+
+std::string fmt_metric_against(const MetricValue& value, MetricId metric, const std::vector<RequirementOutcome>& outcomes,
+                               int digits) {
+  if (value.infinite) return "unbounded";
+  if (!value.value) return "-";
+  std::string best = fmt_number(*value.value, digits);
+  for (const RequirementOutcome& o : outcomes) {
+    if (o.requirement.metric != metric || requirement_met(o.requirement, value)) continue;
+    const std::string s = fmt_against_limit(*value.value, o.requirement.limit, true, digits);
+    if (s.size() > best.size()) best = s;
+  }
+  return best;
+}
+
+std::string fmt_margin(const Requirement& r, double value, int digits) {
+  const double m = requirement_margin(r, value);
+  if (std::abs(m) <= requirement_tolerance(r, value)) return "0";
+  return fmt_number(m, digits);
+}
+
 }  // namespace pw

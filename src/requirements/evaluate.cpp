@@ -154,7 +154,7 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
   if (tolerance) {
     const auto t = req.limit(MetricId::GainTolerance, Sense::AtLeast);
     e.gain = (!all && t) ? gain_tolerance_screen(parts, region, opt.residue_share, *t / 100.0)
-                         : gain_tolerance(parts, region, opt.residue_share);
+                         : gain_tolerance(parts, region, opt.residue_share, 1.01);
     set_gain_tolerance_metric(v, e.gain.tolerance_pct);
   }
   return e;

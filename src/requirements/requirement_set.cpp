@@ -1,6 +1,8 @@
 #include "polewright/requirements/requirement_set.hpp"
 
+#include <algorithm>
 #include <cmath>
+#include <limits>
 
 namespace pw {
 
@@ -20,9 +22,13 @@ double requirement_margin(const Requirement& r, double value) {
   return r.sense == Sense::AtMost ? r.limit - value : value - r.limit;
 }
 
+double requirement_tolerance(const Requirement& r, double value) {
+  return 4.0 * std::numeric_limits<double>::epsilon() * std::max(std::abs(r.limit), std::abs(value));
+}
+
 bool requirement_met(const Requirement& r, const MetricValue& v) {
   if (v.infinite) return r.sense == Sense::AtLeast;
-  return v.value && requirement_margin(r, *v.value) >= 0.0;
+  return v.value && std::isfinite(*v.value) && requirement_margin(r, *v.value) >= -requirement_tolerance(r, *v.value);
 }
 
 double requirement_violation(const Requirement& r, const MetricValue& v) {
@@ -30,7 +36,7 @@ double requirement_violation(const Requirement& r, const MetricValue& v) {
   if (v.infinite) return r.sense == Sense::AtLeast ? 0.0 : kCap;
   if (!v.value || !std::isfinite(*v.value)) return kCap;
   const double m = requirement_margin(r, *v.value);
-  if (m >= 0.0) return 0.0;
+  if (m >= -requirement_tolerance(r, *v.value)) return 0.0;
   const double scale = std::abs(r.limit) > 0.0 ? std::abs(r.limit) : 1.0;
   return std::min(-m / scale, kCap);
 }

@@ -2,6 +2,7 @@
 #include <cmath>
 
 #include "json_reader.hpp"
+#include "polewright/model/eigen.hpp"
 #include "polewright/requirements/spec_parse.hpp"
 
 namespace pw {
@@ -105,6 +106,14 @@ Zpk read_transfer_function(const json& j, const std::string& path, int max_order
     if (poly_degree(d) > max_order)
       throw SpecError(key_path(path, "denominator"), std::string(what) + " order " + std::to_string(poly_degree(d)) +
                                                          " is above the limit of " + std::to_string(max_order));
+    // Roots once per polynomial first, so a numerical failure names its field.
+    for (const auto& [poly_in, key] : {std::pair<const Poly*, const char*>{&n, "numerator"}, {&d, "denominator"}}) {
+      try {
+        (void)poly_roots(*poly_in);
+      } catch (const NumericalError& e) {
+        throw SpecError(key_path(path, key), e.what());
+      }
+    }
     z = zpk_from_polynomials(n, d);
     for (const Roots* set : {&z.zeros, &z.poles})
       for (const Complex& r : *set)

@@ -152,3 +152,20 @@ TEST_CASE("polish_closed_loop_poles refines isolated poles and leaves exact ones
   CHECK(q(0) == d(0));
   CHECK(q(1) == d(1));
 }
+
+TEST_CASE("a pole within numerical noise of the imaginary axis is marginal, not stable", "[analysis][closed_loop]") {
+  // 1/(s + 1)^3 with K: the characteristic equation (s + 1)^3 + K = 0 has roots -1 + K^(1/3)
+  // e^(+-j pi/3), on the axis (+-j sqrt 3) at K = 8 (Routh-Hurwitz); computed Re is ~1e-16.
+  for (double K : {7.9, 8.0, 8.1}) {
+    INFO("K = " << K);
+    Plant g;
+    g.tf = make(1, {}, {Complex(-1, 0), Complex(-1, 0), Complex(-1, 0)});
+    const LoopParts parts = make_loop_parts(make(K, {}, {}), g, 6);
+    const ClosedLoop cl = close_loop(parts.compensator, parts.plant);
+    for (const PoleAnalysis& pa : {analyze_poles(cl, 0.02), analyze_poles(cl, parts, 1.0, 0.02)}) {
+      CHECK(pa.stable == (K < 8.0));
+      CHECK(pa.marginal == (K == 8.0));
+      if (K == 8.0) CHECK(std::abs(pa.marginal_pole.imag()) == Approx(std::sqrt(3.0)).epsilon(1e-9));
+    }
+  }
+}

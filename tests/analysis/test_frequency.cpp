@@ -104,3 +104,37 @@ TEST_CASE("frequency_metrics_of: any response function on a given grid", "[analy
   CHECK(*u.gain_margin_db == Approx(20 * std::log10(1.5)).epsilon(1e-12));
   CHECK_THROWS(frequency_metrics_of([&](double w) { return Lw(w); }, {1.0}, lim, FrequencyOptions{}));
 }
+
+TEST_CASE("the frequency grid covers a crossover far above every root (asymptote bound)", "[analysis][frequency]") {
+  // Issue 18: L = 1e6 / (s (s + 1e-6)). |L(jw)| = 1e6 / (w sqrt(w^2 + 1e-12)) = 1 at w = 1000 rad/s
+  // (closed form); the phase there is -90 - atan(1e9) deg, so PM = atan(1e-9) = 5.7e-8 deg and
+  // |S| = 1 / |1 + L| = 1 / (2 sin(PM / 2)) ~ 1e9. The old grid stopped at 100 rad/s.
+  const Zpk L = make(1e6, {}, {Complex(0, 0), Complex(-1e-6, 0)});
+  const std::vector<double> w = frequency_grid(L, 0.0, FrequencyOptions{});
+  CHECK(w.back() > 1000.0);
+  const FrequencyMetrics m = frequency_metrics(L, 0.0, FrequencyOptions{});
+  REQUIRE(m.crossover_rad_s);
+  CHECK(*m.crossover_rad_s == Approx(1000.0).epsilon(1e-9));
+  REQUIRE(m.phase_margin_deg);
+  CHECK(*m.phase_margin_deg < 1e-3);
+  REQUIRE(m.peak_sensitivity);
+  CHECK(*m.peak_sensitivity > 1e4);
+  // The low end: L = 1e-8 / s^2 (s + 1) crosses at w = 1e-4 (closed form, |L| ~ 1e-8 / w^2 there).
+  const Zpk slow = make(1e-8, {}, {Complex(0, 0), Complex(0, 0), Complex(-1, 0)});
+  const FrequencyMetrics ms = frequency_metrics(slow, 0.0, FrequencyOptions{});
+  REQUIRE(ms.crossover_rad_s);
+  CHECK(*ms.crossover_rad_s == Approx(1e-4).epsilon(1e-6));
+  CHECK(*ms.peak_sensitivity >= 1.0);
+}
+
+TEST_CASE("a strictly proper loop never reports a peak sensitivity below 1", "[analysis][frequency]") {
+  // S(j inf) = 1 for a strictly proper loop, so sup |S| >= 1 (Bode); a spread of loop gains over
+  // twelve decades, each with its grid chosen automatically.
+  for (double k : {1e-6, 1e-3, 1.0, 1e3, 1e6, 1e9}) {
+    INFO("gain " << k);
+    const Zpk L = make(k, {Complex(-3, 0)}, {Complex(0, 0), Complex(-1e-3, 0), Complex(-50, 0)});
+    const FrequencyMetrics m = frequency_metrics(L, 0.0, FrequencyOptions{});
+    REQUIRE(m.peak_sensitivity);
+    CHECK(*m.peak_sensitivity >= 1.0 - 1e-9);
+  }
+}

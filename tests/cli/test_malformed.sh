@@ -38,6 +38,11 @@ spec_case nan-string '$.plant.gain: must be a number, not the string' '{ "plant"
 spec_case inf-string '$.plant.poles[0]' '{ "plant": { "poles": ["Infinity"] }, "requirements": {} }'
 spec_case huge-number '$.plant.numerator[0]: magnitude' '{ "plant": { "numerator": [1e308], "denominator": [1, 1] }, "requirements": {} }'
 spec_case overflow-number '$: invalid JSON: number overflow' '{ "plant": { "numerator": [1e777], "denominator": [1, 1] }, "requirements": {} }'
+# Coefficient ratios beyond double range used to hang root finding (balancing looped on inf):
+# now one line naming the polynomial, within the test's time (issue 18).
+spec_case ratio-overflow-den '$.plant.denominator: polynomial roots: the coefficients span more' '{ "plant": { "numerator": [1], "denominator": [1e-200, 0, 1e200] }, "requirements": {}, "current": { "gain": 1 } }'
+spec_case subnormal-lead-den '$.plant.denominator: polynomial roots: the coefficients span more' '{ "plant": { "numerator": [1], "denominator": [1e-320, 0, -1089] }, "requirements": {}, "current": { "gain": 1 } }'
+spec_case ratio-overflow-num '$.current.numerator: polynomial roots' '{ "plant": { "gain": 1, "poles": [-1, -2] }, "requirements": {}, "current": { "numerator": [1e-150, 1e180], "denominator": [1, 1] } }'
 spec_case missing-plant '$.plant: is missing' '{ "requirements": {} }'
 spec_case improper-plant '$.plant.numerator: improper plant' '{ "plant": { "numerator": [1, 0, 0], "denominator": [1, 1] }, "requirements": {} }'
 spec_case all-zero-den '$.plant.denominator: is all zero' '{ "plant": { "numerator": [1], "denominator": [0, 0, 0] }, "requirements": {} }'

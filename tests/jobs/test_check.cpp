@@ -82,3 +82,40 @@ TEST_CASE("conditioning_warnings names a repeated root given as coefficients", "
   doc["plant"] = {{"numerator", {6}}, {"denominator", {1, 6, 11, 6}}};
   CHECK(conditioning_warnings(doc).empty());
 }
+
+TEST_CASE("check: a crossover far above the plant's roots is found and the loop does not pass", "[jobs][check]") {
+  // Issue 18: plant poles [0, -1e-6], C = 1e6: true crossover 1000 rad/s, PM ~ 5.7e-8 deg,
+  // |S| ~ 1e9 (closed form, see test_frequency.cpp); the tool used to say PM unbounded, Ms 0.0101, met.
+  const nlohmann::json doc = {{"plant", {{"gain", 1}, {"poles", {0, -1e-6}}}},
+                              {"requirements", {{"phase_margin_deg", {{"min", 30}}}, {"peak_sensitivity", {{"max", 2}}}}},
+                              {"current", {{"gain", 1e6}}}};
+  const Spec spec = parse_spec(doc);
+  const CheckReport r = run_check(spec, *spec.current, CheckOptions{});
+  const LoopEvaluation& e = r.evaluation.plants[0];
+  REQUIRE(e.frequency.crossover_rad_s);
+  CHECK(*e.frequency.crossover_rad_s == Approx(1000.0).epsilon(1e-6));
+  REQUIRE(e.values[static_cast<size_t>(MetricId::PhaseMargin)].value);
+  CHECK(*e.values[static_cast<size_t>(MetricId::PhaseMargin)].value < 1e-3);
+  REQUIRE(e.values[static_cast<size_t>(MetricId::PeakSensitivity)].value);
+  CHECK(*e.values[static_cast<size_t>(MetricId::PeakSensitivity)].value > 1e4);
+  CHECK_FALSE(r.evaluation.all_met);
+  for (const RequirementOutcome& o : r.evaluation.outcomes) CHECK_FALSE(o.met);
+}
+
+TEST_CASE("check: 1/(s+1)^3 at its critical gain K = 8 is marginal, not stable", "[jobs][check]") {
+  // Issue 18: it reported stable (Re -1.7e-16), overshoot 86.6 % for an oscillation that does not
+  // decay; its own locus says stable for k in (0, 1) (Routh-Hurwitz: K < 8).
+  const nlohmann::json doc = {{"plant", {{"gain", 1}, {"poles", {-1, -1, -1}}}},
+                              {"requirements", {{"overshoot_pct", {{"max", 90}}}}},
+                              {"current", {{"gain", 8}}}};
+  const Spec spec = parse_spec(doc);
+  const CheckReport r = run_check(spec, *spec.current, CheckOptions{});
+  const LoopEvaluation& e = r.evaluation.plants[0];
+  CHECK_FALSE(e.stable);
+  CHECK(e.poles.marginal);
+  CHECK_FALSE(e.step);
+  CHECK_FALSE(r.evaluation.all_met);
+  REQUIRE(r.locus.stable_intervals.size() == 1);
+  REQUIRE(r.locus.stable_intervals[0].hi);
+  CHECK(*r.locus.stable_intervals[0].hi == Approx(1.0).epsilon(1e-6));
+}

@@ -80,3 +80,18 @@ TEST_CASE("the zero-order-hold exponential of a first-order system (closed form)
   CHECK(F(0, 0) == Approx(std::exp(-2e-3)).epsilon(1e-14));
   CHECK(F(0, 1) == Approx(-5e9 / 1e-3 * std::expm1(-2e-3)).epsilon(1e-12));
 }
+
+TEST_CASE("balancing skips non-finite rows and the eigenvalue routine refuses them", "[analysis][eigen]") {
+  // Issue 18: an infinite entry made the power-of-two loops of balancing run for ever (inf / 4 = inf).
+  Mat A = Mat::Zero(2, 2);
+  A(0, 1) = -INFINITY;
+  A(1, 0) = 1.0;
+  Vec d;
+  balance(A, d);  // returns: the row with an infinite sum is left alone
+  CHECK(d(0) == 1.0);
+  Mat B = Mat::Zero(2, 2);
+  B(0, 1) = -INFINITY;
+  B(1, 0) = 1.0;
+  CHECK_THROWS_AS(eigenvalues_balanced(B), NumericalError);
+  CHECK_THROWS_AS(eigen_decompose(B), NumericalError);
+}

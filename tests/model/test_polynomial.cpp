@@ -2,6 +2,7 @@
 
 #include <cmath>
 
+#include "polewright/model/eigen.hpp"
 #include "polewright/model/polynomial.hpp"
 
 using namespace pw;
@@ -55,4 +56,17 @@ TEST_CASE("make_conjugate_symmetric pairs near conjugates and snaps tiny imagina
   CHECK(r[0] == Complex(-1, 0));
   CHECK(r[1] == std::conj(r[2]));
   CHECK(r[1].imag() > 0);
+}
+
+TEST_CASE("poly_roots refuses coefficients whose ratio overflows a double instead of looping", "[model][polynomial]") {
+  // Issue 18: balancing looped for ever on the companion entry -1e200/1e-200 = -inf.
+  CHECK_THROWS_AS(poly_roots({1e-200, 0, 1e200}), NumericalError);
+  CHECK_THROWS_AS(poly_roots({1e-320, 0, -1089}), NumericalError);
+  CHECK_THROWS_WITH(poly_roots({1e-300, 1e300}), Catch::Contains("range of a double"));
+  CHECK_THROWS_AS(poly_roots({1, std::nan(""), 1}), NumericalError);
+  // Wide but representable: s^2 + 1e300 / 1e-150 ... roots +-j 1e150 (closed form).
+  const Roots r = poly_roots({1e-150, 0, 1e150});
+  REQUIRE(r.size() == 2);
+  CHECK(std::abs(r[0]) == Approx(1e150).epsilon(1e-12));
+  CHECK(r[0].real() == Approx(0.0).margin(1e138));
 }

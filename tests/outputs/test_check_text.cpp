@@ -21,3 +21,28 @@ TEST_CASE("check text names every requirement and carries the cautions", "[outpu
   CHECK_FALSE(std::regex_search(t, std::regex("\\b(nan|inf)\\b")));
 }
 
+
+TEST_CASE("check text says why a loop at its critical gain is not stable", "[outputs][check_output]") {
+  // 1/(s+1)^3 with K = 8: poles +-j sqrt 3 (Routh-Hurwitz), marginal.
+  const nlohmann::json doc = {{"plant", {{"gain", 1}, {"poles", {-1, -1, -1}}}},
+                              {"requirements", {{"overshoot_pct", {{"max", 90}}}}},
+                              {"current", {{"gain", 8}}}};
+  const Spec spec = parse_spec(doc);
+  const std::string t = check_report_text(run_check(spec, *spec.current));
+  CHECK_THAT(t, Catch::Contains("MARGINAL") && Catch::Contains("numerical noise") &&
+                    Catch::Contains("NOT MET: the closed loop is marginally stable"));
+}
+
+TEST_CASE("check text prints a missed value with the digits that show the miss", "[outputs][check_output]") {
+  // The two-mass drive of issue 11 settles at 1.5207 s (scipy.signal.step, 2,000,001 points)
+  // against 1.5 s: the row says NO and the value differs from the limit as printed.
+  const nlohmann::json doc = {
+      {"plant", {{"numerator", {400.0, 1000.0, 250000.0}}, {"denominator", {1.0, 2.4, 1600.0, 0.0, 0.0}}}},
+      {"requirements", {{"settling_time_s", {{"max", 1.5}, {"band_pct", 2}}}}},
+      {"current",
+       {{"numerator", {1.0246578220588987, 7.305799380036161, 12.756228732213696}},
+        {"denominator", {1.0, 25.041567350128528, 155.91944844706194}}}}};
+  const Spec spec = parse_spec(doc);
+  const std::string t = check_report_text(run_check(spec, *spec.current));
+  CHECK(std::regex_search(t, std::regex("settling_time_s +<= 1\\.5 s +1\\.52[0-9]* s +-0\\.02[0-9]* s +NO")));
+}

@@ -55,9 +55,19 @@ struct ModalStep {
   double u_final = 0.0;
 };
 
+// Relative distance from the imaginary axis within which a pole counts as on it (numerical noise
+// of the eigenvalues of a balanced matrix polished on the factored characteristic equation).
+constexpr double kMarginalRel = 1e-11;
+
 struct PoleAnalysis {
   std::vector<PoleInfo> poles;  // sorted by real part, descending (slowest first)
+  // Strictly stable: every pole left of the axis by more than the noise band (kMarginalRel |p|,
+  // at least kMarginalRel 1e-6 max |p|).
   bool stable = false;
+  // No pole to the right, but one within the noise band of the axis: not stable, and this says
+  // why (marginal_pole is the rightmost such pole).
+  bool marginal = false;
+  Complex marginal_pole{0.0, 0.0};
   // False for (nearly) defective eigenvector bases: the modal expansion then fails its two
   // consistency checks (y(0+) = Dy and y'(0+) = Cy B) and every pole counts as one that matters.
   bool residues_reliable = true;

@@ -1,15 +1,26 @@
 // Eigenvalues of real matrices, balanced first (Eigen's EigenSolver does not balance).
 #pragma once
 
+#include <stdexcept>
+#include <string>
+
 #include "polewright/model/types.hpp"
 
 namespace pw {
 
+// A numerical routine that cannot give a meaningful answer (non-finite input, an iteration
+// that did not converge within its cap). The message says which and why.
+struct NumericalError : std::runtime_error {
+  explicit NumericalError(const std::string& what) : std::runtime_error(what) {}
+};
+
 // Diagonal similarity scaling by powers of two (the scaling step of LAPACK's gebal):
-// on return A_bal = D^-1 A D, with D = diag(scale).
+// on return A_bal = D^-1 A D, with D = diag(scale). At most 100 sweeps; rows or columns with
+// non-finite sums are left alone.
 void balance(Mat& A, Vec& scale);
 
-// Eigenvalues of A (balanced internally).
+// Eigenvalues of A (balanced internally). Throws NumericalError when A has a non-finite entry;
+// NaN values when the QR iteration did not converge within Eigen's cap.
 CVec eigenvalues_balanced(const Mat& A);
 
 // Eigenvalues and right eigenvectors of A (balanced internally; vectors are for the original A).

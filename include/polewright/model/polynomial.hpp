@@ -26,7 +26,9 @@ Complex poly_evaluate(const Poly& p, Complex s);
 // Roots of a polynomial with a non-zero leading coefficient. Exact zeros at the origin (trailing
 // zero coefficients) are split off exactly; the rest come from the eigenvalues of the balanced
 // companion matrix, each polished by Newton steps when that lowers the residual. The result is
-// made exactly conjugate-symmetric.
+// made exactly conjugate-symmetric. Throws NumericalError (model/eigen.hpp) when a coefficient
+// is not finite, when the coefficients over the leading one overflow a double (the companion
+// matrix cannot be formed), or when the eigenvalue iteration does not converge.
 Roots poly_roots(const Poly& p);
 
 // Pairs near-conjugate roots and makes them exact conjugates; snaps tiny imaginary parts to zero.

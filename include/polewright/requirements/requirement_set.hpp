@@ -37,6 +37,12 @@ struct MetricValue {
 // Signed margin to the limit in the metric's unit: positive when met.
 double requirement_margin(const Requirement& r, double value);
 
+// Comparison tolerance: 4 ulps of the larger of |limit| and |value|. A value whose margin is at
+// least -tolerance meets the limit (Kv = 5 computed as 4.999999999999999 meets a ramp error of
+// 0.2), so rounding in the last bits never decides a verdict.
+double requirement_tolerance(const Requirement& r, double value);
+
+// Met: margin >= -requirement_tolerance (an infinity only on the AtLeast side).
 bool requirement_met(const Requirement& r, const MetricValue& v);
 
 // Normalised violation: 0 when met, else shortfall / |limit|, capped at 1000; 1000 for a missing
