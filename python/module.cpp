@@ -166,7 +166,7 @@ py::object export_(const py::object& result, const py::object& rank_arg, const p
   nlohmann::ordered_json j;
   {
     py::gil_scoped_release release;
-    pw::result_compensator(in, rank, "rank");  // names the argument when out of range
+    pw::result_compensator(in, rank);  // names the argument (rank) when out of range
     j = pw::export_json(pw::run_export(in, rank, o));
   }
   return to_python(j);

@@ -9,7 +9,7 @@ namespace pwpy {
 Traces compute_traces(const pw::ResultInput& result, int rank) {
   if (!result.spec) throw pw::SpecError("$.spec", "is missing: traces need the plants (give spec=...)");
   const pw::Spec& spec = *result.spec;
-  const pw::Zpk& c = pw::result_compensator(result, rank, "rank");
+  const pw::Zpk& c = pw::result_compensator(result, rank);
   pw::AnalysisOptions analysis = spec.analysis;
   analysis.step.keep_trace = true;
   const pw::Region region = pw::region_from_requirements(spec.requirements);

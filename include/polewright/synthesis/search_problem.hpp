@@ -4,6 +4,7 @@
 #pragma once
 
 #include <vector>
+#include "polewright/requirements/evaluate.hpp"
 
 namespace pw {
 
@@ -15,8 +16,8 @@ struct DesignScore {
 };
 
 // Penalty and tie-break constants of the scores (one place for every copy).
-// A loop that is not stable scores at least this violation, so any stable loop is better.
-constexpr double kUnstableViolation = 1e3;
+// A loop that is not stable scores at least kUnstableViolation (requirements/evaluate.hpp), so any
+// stable loop is better.
 // Added per plant whose loop is ill-posed (an improper or cancelling loop: no closed loop to rate).
 constexpr double kIllPosedPenalty = 200.0;
 // Added per unstable plant, plus up to the same again graded by how far its rightmost pole sits in
