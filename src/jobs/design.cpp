@@ -340,6 +340,10 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
   };
   lj.out_of_time = [&] { return elapsed() >= o.time_limit_s || cancelled(o); };
   const LevelRun run = run_levels(lj, threads);
+  if (cancelled(o)) {  // stopped from outside: no candidate is verified or listed
+    rep.summary.seconds = elapsed();
+    return rep;
+  }
   auto level_of = [&](size_t i) { return structures[i].stage_count(); };
   // The levels used: complete ones up to the stop level.
   std::vector<StructureSetup> setups;
@@ -563,6 +567,11 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
   }
   rep.summary.met = rep.met();
   rep.summary.seconds = elapsed();
+  if (cancelled(o)) {  // stopped during the escalation or the relaxed searches
+    rep.candidates.clear();
+    rep.binding.clear();
+    rep.summary.time_stop = false;
+  }
   return rep;
 }
 

@@ -345,6 +345,7 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
     for (long long e : evals) rep.summary.evaluations += e;
     rep.summary.local_runs += static_cast<int>(tasks.size());
     rep.summary.structures_searched += static_cast<int>(spaces.size());
+    if (o.cancel && o.cancel->load()) break;  // stopped: nothing is verified or listed
     // Screening-feasible points by distance, distinct ones only, then full-accuracy verification.
     std::vector<size_t> order(tasks.size());
     for (size_t i = 0; i < order.size(); ++i) order[i] = i;
@@ -386,6 +387,7 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
     }
     if (any_meets) break;
   }
+  if (o.cancel && o.cancel->load()) found.clear();  // a stopped retune lists no candidates
   // Meeting candidates first, then the fewest added stages, then the smallest change.
   std::stable_sort(found.begin(), found.end(), [](const RetuneCandidate& a, const RetuneCandidate& b) {
     if (a.candidate.meets != b.candidate.meets) return a.candidate.meets;
