@@ -123,7 +123,7 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
   // about 1e-8 the sampled loop's figures are dominated by rounding (a 70 deg phase margin read
   // as -53 deg at T = 1e-11 on the wafer stage). Refused at the crossover, warned at a root.
   if (r.crossover_rad_s && *r.crossover_rad_s * T < kMinCrossoverTimesT)
-    bad("--sample-time", fmt("is too short for double precision: the crossover %.4g rad/s moves only %.3g rad per sample "
+    bad("sample_time_s", fmt("is too short for double precision: the crossover %.4g rad/s moves only %.3g rad per sample "
                              "(below %.0e), so the sampled loop cannot be evaluated reliably",
                              *r.crossover_rad_s, *r.crossover_rad_s * T, kMinCrossoverTimesT));
   for (const Roots* set : {&r.continuous.zeros, &r.continuous.poles})
