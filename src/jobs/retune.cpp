@@ -43,6 +43,8 @@ RetuneOptions RetuneOptions::FromSpec(const Spec& spec) {
 
 namespace {
 
+bool cancelled(const RetuneOptions& o) { return o.cancel && o.cancel->load(std::memory_order_relaxed); }
+
 using Clock = std::chrono::steady_clock;
 
 // The result of one local run, with the change distance it rests on.
@@ -345,7 +347,7 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
     for (long long e : evals) rep.summary.evaluations += e;
     rep.summary.local_runs += static_cast<int>(tasks.size());
     rep.summary.structures_searched += static_cast<int>(spaces.size());
-    if (o.cancel && o.cancel->load()) break;  // stopped: nothing is verified or listed
+    if (cancelled(o)) break;  // stopped: nothing is verified or listed
     // Screening-feasible points by distance, distinct ones only, then full-accuracy verification.
     std::vector<size_t> order(tasks.size());
     for (size_t i = 0; i < order.size(); ++i) order[i] = i;
@@ -380,14 +382,14 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
     bool any_meets = std::any_of(found.begin(), found.end(), [](const RetuneCandidate& c) { return c.candidate.meets; });
     // Escalation in the current structure (before any stage is added): design's verified
     // candidates of the same structure, each pulled back towards the current design.
-    if (!any_meets && &level == &levels.front() && o.budget_s > 0.0 && !(o.cancel && o.cancel->load())) {
+    if (!any_meets && &level == &levels.front() && o.budget_s > 0.0 && !cancelled(o)) {
       const std::vector<RetuneCandidate> more = from_design(spec, o, verifier, screen, rep);
       found.insert(found.end(), more.begin(), more.end());
       any_meets = std::any_of(found.begin(), found.end(), [](const RetuneCandidate& c) { return c.candidate.meets; });
     }
     if (any_meets) break;
   }
-  if (o.cancel && o.cancel->load()) found.clear();  // a stopped retune lists no candidates
+  if (cancelled(o)) found.clear();  // a stopped retune lists no candidates
   // Meeting candidates first, then the fewest added stages, then the smallest change.
   std::stable_sort(found.begin(), found.end(), [](const RetuneCandidate& a, const RetuneCandidate& b) {
     if (a.candidate.meets != b.candidate.meets) return a.candidate.meets;
