@@ -72,8 +72,8 @@ def derive(design):
     p["search"]["properties"].pop("budget_stop", None)
     if "budget_stop" in p["search"].get("required", []):
         p["search"]["required"].remove("budget_stop")
-    p["timing"]["properties"] = {k: v for k, v in p["timing"]["properties"].items() if k in ("seconds", "threads")}
-    p["timing"]["required"] = [k for k in p["timing"].get("required", []) if k in ("seconds", "threads")]
+    p["timing"]["properties"] = {k: v for k, v in p["timing"]["properties"].items() if k in ("seconds", "threads", "phase_seconds")}
+    p["timing"]["required"] = [k for k in p["timing"].get("required", []) if k in ("seconds", "threads", "phase_seconds")]
     s["allOf"] = [{
         "description": "status agrees with the candidates: met when nothing changed or the first candidate meets everything",
         "if": {"properties": {"unchanged": {"const": True}}, "required": ["unchanged"]},

@@ -524,7 +524,10 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
         const double v = *mine->worst.value;
         const bool improves = !b.best_value.value ||
                               (out.requirement.sense == Sense::AtMost ? v < *b.best_value.value : v > *b.best_value.value);
-        if (improves) b.best_value = mine->worst;
+        if (improves) {
+          b.best_value = mine->worst;
+          b.best_design = c.compensator;
+        }
         b.relaxing_meets_the_rest = true;
         if (c.meets) solutions.push_back(c);
       };

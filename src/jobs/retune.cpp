@@ -211,6 +211,10 @@ std::vector<RetuneCandidate> from_design(const Spec& spec, const RetuneOptions& 
   const DesignReport dr = run_design(spec, d);
   rep.summary.evaluations += dr.summary.evaluations;
   rep.summary.local_runs += dr.summary.local_runs;
+  rep.summary.escalation_budget += dr.summary.escalation_budget;
+  rep.summary.escalation_spent += dr.summary.escalation_spent;
+  rep.summary.phases.push_back({"escalation: design of the spec", dr.summary.evaluations, dr.summary.local_runs, dr.summary.seconds});
+  const auto t_pull = Clock::now();
   struct Start {
     RetuneSpace space;
     std::vector<double> x;
@@ -230,8 +234,12 @@ std::vector<RetuneCandidate> from_design(const Spec& spec, const RetuneOptions& 
   parallel_for(starts.size(), rep.summary.threads, [&](size_t i) {
     results[i] = local_retune(starts[i].space, screen, starts[i].x, wide, evals[i]);
   });
-  for (long long e : evals) rep.summary.evaluations += e;
+  long long pulled = 0;
+  for (long long e : evals) pulled += e;
+  rep.summary.evaluations += pulled;
   rep.summary.local_runs += static_cast<int>(starts.size());
+  rep.summary.phases.push_back({"escalation: design candidates pulled back", pulled, static_cast<int>(starts.size()),
+                                std::chrono::duration<double>(Clock::now() - t_pull).count()});
   // Both the pulled-back point and the design point itself, verified.
   std::vector<std::pair<size_t, std::vector<double>>> points;
   for (size_t i = 0; i < starts.size(); ++i) {
@@ -307,7 +315,11 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
     levels.push_back({{AddedStage::Notch}});
   }
   std::vector<RetuneCandidate> found;
+  const char* level_names[] = {"current structure", "one added stage", "an added notch"};
   for (const auto& level : levels) {
+    const long long evaluations_before = rep.summary.evaluations;
+    const int runs_before = rep.summary.local_runs;
+    const auto t_level = Clock::now();
     std::vector<RetuneSpace> spaces;
     for (const auto& added : level)
       spaces.push_back(make_retune_space(*spec.current, rep.frequency_range, added, o.corner_decades, o.gain_decades));
@@ -347,6 +359,9 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
     for (long long e : evals) rep.summary.evaluations += e;
     rep.summary.local_runs += static_cast<int>(tasks.size());
     rep.summary.structures_searched += static_cast<int>(spaces.size());
+    rep.summary.phases.push_back({level_names[&level - &levels.front()], rep.summary.evaluations - evaluations_before,
+                                  rep.summary.local_runs - runs_before,
+                                  std::chrono::duration<double>(Clock::now() - t_level).count()});
     if (cancelled(o)) break;  // stopped: nothing is verified or listed
     // Screening-feasible points by distance, distinct ones only, then full-accuracy verification.
     std::vector<size_t> order(tasks.size());

@@ -48,6 +48,21 @@ void add_search_context(nlohmann::json& j, const Region& region, std::pair<doubl
                    {"residue_share", json_number(analysis.residue_share)}};
 }
 
+void add_search_phases(nlohmann::json& search, const DesignSummary& s) {
+  nlohmann::json phases = nlohmann::json::array();
+  for (const SearchPhase& p : s.phases)
+    phases.push_back({{"name", p.name}, {"evaluations", p.evaluations}, {"local_runs", p.local_runs}});
+  search["phases"] = phases;
+  search["escalation_budget_evaluations"] = s.escalation_budget;
+  search["escalation_spent_evaluations"] = s.escalation_spent;
+}
+
+nlohmann::json phase_seconds_json(const DesignSummary& s) {
+  nlohmann::json list = nlohmann::json::array();
+  for (const SearchPhase& p : s.phases) list.push_back(json_number(p.seconds));
+  return list;
+}
+
 nlohmann::json candidate_json(const Candidate& c, const RequirementSet& req) {
   nlohmann::json j;
   j["rank"] = c.rank;
@@ -90,7 +105,8 @@ nlohmann::json design_report_json(const DesignReport& r, bool include_timing) {
                        {"bound", b.requirement.sense == Sense::AtMost ? "max" : "min"},
                        {"limit", json_number(b.requirement.limit)},
                        {"best_value_when_relaxed", json_number(b.best_value)},
-                       {"relaxing_it_meets_the_rest", b.relaxing_meets_the_rest}});
+                       {"relaxing_it_meets_the_rest", b.relaxing_meets_the_rest},
+                       {"design_when_relaxed", b.best_design ? json_compensator(*b.best_design) : nlohmann::json(nullptr)}});
   j["binding"] = binding;
   nlohmann::json limits = nlohmann::json::array();
   for (const PlantLimit& l : r.limits)
@@ -105,10 +121,13 @@ nlohmann::json design_report_json(const DesignReport& r, bool include_timing) {
   j["search"] = {{"evaluations", r.summary.evaluations}, {"seed", r.summary.seed},
                  {"structures_searched", r.summary.structures_searched}, {"local_runs", r.summary.local_runs},
                  {"budget_stop", r.summary.budget_stop}};
+  add_search_phases(j["search"], r.summary);
   // Timings depend on the machine and the thread count: kept apart, and left out for byte-identical output.
-  if (include_timing)
+  if (include_timing) {
     j["timing"] = {{"seconds", json_number(r.summary.seconds)}, {"first_verified_s", json_number(r.summary.first_verified_s)},
                    {"threads", r.summary.threads}, {"time_stop", r.summary.time_stop}};
+    j["timing"]["phase_seconds"] = phase_seconds_json(r.summary);
+  }
   j["spec"] = r.spec_document;
   j["cautions"] = kCautions;
   return j;

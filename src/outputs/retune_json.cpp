@@ -63,7 +63,11 @@ nlohmann::json retune_report_json(const RetuneReport& r, bool include_timing) {
   j["candidates"] = cands;
   j["search"] = {{"evaluations", r.summary.evaluations}, {"seed", r.summary.seed},
                  {"structures_searched", r.summary.structures_searched}, {"local_runs", r.summary.local_runs}};
-  if (include_timing) j["timing"] = {{"seconds", json_number(r.summary.seconds)}, {"threads", r.summary.threads}};
+  add_search_phases(j["search"], r.summary);
+  if (include_timing) {
+    j["timing"] = {{"seconds", json_number(r.summary.seconds)}, {"threads", r.summary.threads}};
+    j["timing"]["phase_seconds"] = phase_seconds_json(r.summary);
+  }
   j["spec"] = r.spec_document;
   j["cautions"] = kCautions;
   return j;

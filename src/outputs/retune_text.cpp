@@ -76,6 +76,11 @@ std::string retune_report_text(const RetuneReport& r) {
   out += "  " + std::string(kGainConvention) + "\n";
   out += "\nsearch: " + std::to_string(r.summary.evaluations) + " evaluations, " + std::to_string(r.summary.local_runs) +
          " local run(s), seed " + std::to_string(r.summary.seed) + "\n";
+  // Per phase once more than the first level ran (an added stage, or the escalation through design).
+  if (r.summary.phases.size() > 1)
+    for (const SearchPhase& p : r.summary.phases)
+      out += "  " + p.name + ": " + std::to_string(p.evaluations) + " evaluations, " + std::to_string(p.local_runs) +
+             " local run(s)\n";
   out += "\ncaution: " + std::string(kCautions) + "\n";
   return out;
 }

@@ -144,4 +144,13 @@ TEST_CASE("retune escalation: the flexible arm joint meets the new settling boun
   // Never worse than design: the change is no larger than design's own candidate taken as is.
   for (const RetuneCandidate& c : r.candidates)
     if (c.candidate.origin.find("as designed") != std::string::npos) CHECK(best.change_decades <= c.change_decades);
+  // The summary says what each phase spent: the current structure, then the escalation's design
+  // and its pull-back; the phases add up to the total.
+  REQUIRE(r.summary.phases.size() == 3);
+  CHECK(r.summary.phases[0].name == "current structure");
+  CHECK(r.summary.phases[1].name == "escalation: design of the spec");
+  CHECK(r.summary.phases[2].name == "escalation: design candidates pulled back");
+  long long sum = 0;
+  for (const SearchPhase& p : r.summary.phases) sum += p.evaluations;
+  CHECK(sum == r.summary.evaluations);
 }

@@ -48,6 +48,9 @@ struct BindingRequirement {
   Requirement requirement;
   MetricValue best_value;              // best value of its metric reachable when it alone is relaxed
   bool relaxing_meets_the_rest = false;
+  // The design behind best_value: it meets every other requirement (set exactly when
+  // relaxing_meets_the_rest), so an engineer can see what relaxing this one requirement buys.
+  std::optional<Zpk> best_design;
 };
 
 // What one phase of the search spent.

@@ -21,6 +21,11 @@ void add_metrics(nlohmann::json& j, const std::vector<MetricValue>& worst);
 // "region", "frequency_range_rad_s", "plants", "requirements" and "analysis" of a search result.
 void add_search_context(nlohmann::json& j, const Region& region, std::pair<double, double> range,
                         const std::vector<Plant>& plants, const RequirementSet& req, const AnalysisOptions& analysis);
+// The search's spend per phase ("phases": name, evaluations, local runs; the escalation budget and
+// what it spent, in evaluations) added to a "search" object: deterministic, thread-count free.
+void add_search_phases(nlohmann::json& search, const DesignSummary& s);
+// Wall-clock seconds per phase, in the order of "phases" (for the optional "timing" block only).
+nlohmann::json phase_seconds_json(const DesignSummary& s);
 nlohmann::json design_report_json(const DesignReport& r, bool include_timing = true);
 std::string design_report_text(const DesignReport& r);
 
