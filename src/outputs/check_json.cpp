@@ -127,6 +127,7 @@ nlohmann::json check_report_json(const CheckReport& r) {
   j["status"] = ev.all_met ? "met" : "not_met";
   j["stable"] = ev.all_stable;
   j["compensator"] = json_compensator(r.compensator);
+  j["pid_form"] = json_pid_form(r.compensator);
   j["region"] = region_json(r.region);
   nlohmann::json rows = nlohmann::json::array();
   nlohmann::json wm = nlohmann::json::object(), wmet = nlohmann::json::object(), wmargin = nlohmann::json::object(),

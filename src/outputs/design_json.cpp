@@ -69,6 +69,7 @@ nlohmann::json candidate_json(const Candidate& c, const RequirementSet& req) {
   j["structure"] = c.structure.names();
   j["meets"] = c.meets;
   j["compensator"] = json_compensator(c.compensator);
+  j["pid_form"] = json_pid_form(c.compensator);
   add_metrics(j, c.worst);
   j["worst_variant"] = c.verification.worst_plant;
   const LoopEvaluation& nominal = c.verification.plants.front();

@@ -67,6 +67,13 @@ std::string design_report_text(const DesignReport& r) {
     t.add(row);
   }
   out += r.candidates.empty() ? "  no candidate\n" : t.render();
+  // Candidates that are a PI, PD or PID (an integrator and/or a lead): their tuning parameters.
+  std::string pid_lines;
+  for (const Candidate& c : r.candidates) {
+    const std::string p = c.structure.stage_count() > 0 ? pid_form_text(c.compensator) : "";
+    if (!p.empty()) pid_lines += "  rank " + std::to_string(c.rank) + " " + p + "\n";
+  }
+  if (!pid_lines.empty()) out += "\n" + pid_lines;
   out += "\n  metrics are the worst case over the plants; every candidate was re-verified at full accuracy\n";
   out += "  " + std::string(kGainConvention) + "\n";
   if (!r.met()) {

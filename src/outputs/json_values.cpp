@@ -1,5 +1,7 @@
 #include "polewright/outputs/json_values.hpp"
 
+#include "polewright/model/pid_form.hpp"
+
 #include <cmath>
 
 #include "text_table.hpp"
@@ -47,6 +49,38 @@ nlohmann::json json_compensator(const Zpk& c) {
   j["low_frequency_gain"] = json_number(zpk_low_frequency_gain(c));
   j["integrators"] = zpk_integrators(c);
   return j;
+}
+
+nlohmann::json json_pid_form(const Zpk& c) {
+  const std::optional<PidForm> f = pid_form(c);
+  if (!f) return nullptr;
+  nlohmann::json j;
+  j["shape"] = pid_shape_name(f->shape);
+  j["parallel"] = {{"kp", json_number(f->parallel.kp)}, {"ki", json_number(f->parallel.ki)},
+                   {"kd", json_number(f->parallel.kd)}, {"tf_s", json_number(f->parallel.tf)}};
+  if (f->standard) {
+    const bool integral = f->parallel.ki != 0.0;
+    j["standard"] = {{"k", json_number(f->standard->k)}, {"ti_s", integral ? json_number(f->standard->ti) : nlohmann::json(nullptr)},
+                     {"td_s", json_number(f->standard->td)}, {"n", json_number(f->standard->n)}};
+  } else {
+    j["standard"] = nullptr;
+  }
+  return j;
+}
+
+std::string pid_form_text(const Zpk& c) {
+  const std::optional<PidForm> f = pid_form(c);
+  if (!f) return "";
+  const PidParallel& p = f->parallel;
+  std::string out = std::string(pid_shape_name(f->shape)) + " form: Kp " + fmt_number(p.kp);
+  if (p.ki != 0.0) out += ", Ki " + fmt_number(p.ki) + " /s";
+  if (p.kd != 0.0) out += ", Kd " + fmt_number(p.kd) + " s, Tf " + fmt_number(p.tf) + " s";
+  if (f->standard && (p.ki != 0.0 || p.kd != 0.0)) {
+    out += "; K " + fmt_number(f->standard->k);
+    if (p.ki != 0.0) out += ", Ti " + fmt_number(f->standard->ti) + " s";
+    if (p.kd != 0.0) out += ", Td " + fmt_number(f->standard->td) + " s, N " + fmt_number(f->standard->n);
+  }
+  return out;
 }
 
 const char* const kGainConvention =

@@ -22,6 +22,12 @@ nlohmann::json json_zpk(const Zpk& z);
 // A compensator C(s) for the results: json_zpk plus the other gain convention,
 // "low_frequency_gain" (lim s^n C(s) as s -> 0, n = "integrators"); "gain" is the zero-pole gain.
 nlohmann::json json_compensator(const Zpk& c);
+// The PID reading of a compensator (model/pid_form.hpp): {"shape", "parallel": {kp, ki, kd, tf_s},
+// "standard": {k, ti_s, td_s, n} or null}, or null when the compensator is not a P, PI, PD or PID.
+nlohmann::json json_pid_form(const Zpk& c);
+// One line: "PID: Kp 0.72, Ki 0.6 /s, Kd 0.114 s, Tf 0.05 s; K 0.72, Ti 1.2 s, Td 0.158 s, N 3.17"
+// (empty when not a PID).
+std::string pid_form_text(const Zpk& c);
 
 // The two gain conventions, named, for the text and HTML tables:
 //   zero-pole gain      k of C(s) = k prod(s - z_i) / prod(s - p_i) (the leading coefficient),
