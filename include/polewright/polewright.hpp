@@ -11,6 +11,7 @@
 #include "polewright/model/measured.hpp"
 #include "polewright/model/measured_fit.hpp"
 #include "polewright/model/pade.hpp"
+#include "polewright/model/pid_form.hpp"
 #include "polewright/model/plant.hpp"
 #include "polewright/model/polynomial.hpp"
 #include "polewright/model/root_accuracy.hpp"

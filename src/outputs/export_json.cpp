@@ -48,6 +48,7 @@ nlohmann::ordered_json export_json(const ExportReport& r) {
   j["warp_rad_s"] = r.warp_rad_s ? json_number(*r.warp_rad_s) : json(nullptr);
   j["compute_delay_samples"] = r.options.compute_delay;
   j["continuous"] = json_zpk(r.continuous);
+  j["continuous_pid_form"] = json_pid_form(r.continuous);
   const json dz = json_zpk(r.discrete);
   j["discrete"] = {{"gain", dz["gain"]}, {"zeros", dz["zeros"]}, {"poles", dz["poles"]}};
   json rad = json::array();

@@ -57,3 +57,27 @@ TEST_CASE("a compensator carries both gains, named", "[outputs][json_values]") {
   CHECK(std::string(kGainConvention).find("zero-pole gain = k of") != std::string::npos);
   CHECK(std::string(kGainConvention).find("low-frequency gain = lim s^n C(s)") != std::string::npos);
 }
+
+TEST_CASE("the PID reading of a compensator, as JSON and as one line", "[outputs][json_values][pid]") {
+  // 3 (s + 1)(s + 4) / (s (s + 20)): Kp 0.72, Ki 0.6, Kd 0.114, Tf 0.05 by hand (see
+  // tests/model/test_pid_form.cpp), so K 0.72, Ti 1.2 s, Td 0.1583 s, N 3.167.
+  const Zpk c{{-1.0, -4.0}, {0.0, -20.0}, 3.0};
+  const nlohmann::json j = json_pid_form(c);
+  CHECK(j.at("shape") == "PID");
+  CHECK(j.at("parallel").at("kp").get<double>() == Approx(0.72));
+  CHECK(j.at("parallel").at("tf_s").get<double>() == Approx(0.05));
+  CHECK(j.at("standard").at("ti_s").get<double>() == Approx(1.2));
+  CHECK(j.at("standard").at("n").get<double>() == Approx(0.114 / 0.72 / 0.05));
+  CHECK(pid_form_text(c) == "PID form: Kp 0.72, Ki 0.6 /s, Kd 0.114 s, Tf 0.05 s; K 0.72, Ti 1.2 s, Td 0.1583 s, N 3.167");
+  // A PI has no derivative terms and a null-free standard form; a lag is no PID at all.
+  const nlohmann::json pi = json_pid_form(Zpk{{-0.5}, {0.0}, 4.0});
+  CHECK(pi.at("shape") == "PI");
+  CHECK(pi.at("standard").at("ti_s").get<double>() == Approx(2.0));
+  CHECK(pid_form_text(Zpk{{-0.5}, {0.0}, 4.0}) == "PI form: Kp 4, Ki 2 /s; K 4, Ti 2 s");
+  CHECK(json_pid_form(Zpk{{-1.0}, {-0.1}, 0.1}).is_null());
+  CHECK(pid_form_text(Zpk{{-1.0}, {-0.1}, 0.1}).empty());
+  // A pure integral controller has no standard form.
+  const nlohmann::json i = json_pid_form(Zpk{{}, {0.0}, 2.0});
+  CHECK(i.at("shape") == "PI");
+  CHECK(i.at("standard").is_null());
+}
