@@ -294,24 +294,22 @@ void order_candidates(std::vector<Candidate>& cands, Objective objective) {
   }
 }
 
-// Two candidates of one structure with the same compensator (relative 1e-9 on the gain and roots).
-bool same_design(const Candidate& a, const Candidate& b) {
-  const Zpk& x = a.compensator;
-  const Zpk& y = b.compensator;
-  if (!(a.structure == b.structure) || x.zeros.size() != y.zeros.size() || x.poles.size() != y.poles.size()) return false;
-  auto close = [](Complex u, Complex v) { return std::abs(u - v) <= 1e-9 * std::max(std::abs(u), std::abs(v)); };
-  if (!close(Complex(x.gain, 0.0), Complex(y.gain, 0.0))) return false;
-  for (size_t i = 0; i < x.zeros.size(); ++i)
-    if (!close(x.zeros[i], y.zeros[i])) return false;
-  for (size_t i = 0; i < x.poles.size(); ++i)
-    if (!close(x.poles[i], y.poles[i])) return false;
+// Two candidates of one structure that are the same loop over the frequency range: their
+// compensators' responses agree within the negligible-stage threshold at every sample (fragility.hpp).
+bool same_design(const Candidate& a, const Candidate& b, std::pair<double, double> range) {
+  if (!(a.structure == b.structure)) return false;
+  for (int i = 0; i < kNegligibleStageSamples; ++i) {
+    const double w = range.first * std::pow(range.second / range.first, i / (kNegligibleStageSamples - 1.0));
+    const Complex x = a.compensator.evaluate(Complex(0.0, w)), y = b.compensator.evaluate(Complex(0.0, w));
+    if (!(std::abs(y) > 0.0) || !(std::abs(x / y - 1.0) < kNegligibleStageShare)) return false;
+  }
   return true;
 }
 
 // Degenerate candidates: a stage that does nothing over the frequency range is folded into the
 // gain (fragility.hpp) and the simpler loop verified again; it replaces the candidate when its
 // verdict is no worse (a stage whose removal changes the verdict acts outside the range and
-// stays). A candidate identical to one listed before it is dropped.
+// stays). A candidate that is the same loop over the range as one listed before it is dropped.
 std::vector<Candidate> without_degenerate(std::vector<Candidate> cands, const Verifier& verifier, Objective objective,
                                           int threads) {
   std::vector<Candidate> folded(cands.size());
@@ -333,7 +331,7 @@ std::vector<Candidate> without_degenerate(std::vector<Candidate> cands, const Ve
   for (size_t i = 0; i < cands.size(); ++i) {
     Candidate c = use[i] ? std::move(folded[i]) : std::move(cands[i]);
     bool dup = false;
-    for (const Candidate& k : out) dup = dup || same_design(k, c);
+    for (const Candidate& k : out) dup = dup || same_design(k, c, verifier.context().frequency_range);
     if (!dup) out.push_back(std::move(c));
   }
   return out;
