@@ -320,7 +320,7 @@ std::vector<Candidate> without_degenerate(std::vector<Candidate> cands, const Ve
         prune_negligible_stages(c.compensator, c.structure, c.parameters, verifier.context().frequency_range);
     if (p.dropped == 0) return;
     Candidate v = verifier.verify(p.compensator, objective);
-    if (c.meets && !v.meets) return;
+    if ((c.meets && !v.meets) || (!c.meets && !v.meets && v.violation > c.violation)) return;
     v.structure = p.structure;
     v.parameters = p.parameters;
     v.origin = c.origin + " (" + std::to_string(p.dropped) + " negligible stage(s) folded into the gain)";
