@@ -39,6 +39,7 @@
 #include "polewright/requirements/sweep_parse.hpp"
 
 #include "polewright/synthesis/candidate.hpp"
+#include "polewright/synthesis/fragility.hpp"
 #include "polewright/synthesis/global_search.hpp"
 #include "polewright/synthesis/level_scheduler.hpp"
 #include "polewright/synthesis/limits.hpp"

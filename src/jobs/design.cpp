@@ -7,6 +7,7 @@
 #include <map>
 #include <random>
 
+#include "polewright/synthesis/fragility.hpp"
 #include "polewright/synthesis/global_search.hpp"
 #include "polewright/synthesis/level_scheduler.hpp"
 #include "polewright/synthesis/parallel.hpp"
@@ -26,6 +27,7 @@ bool DesignOptions::IsValid(std::string* error) const {
   if (!(time_limit_s > 0.0)) return fail("time_limit_s must be > 0");
   if (!(budget_s >= 0.0) || budget_s > 1e7) return fail("budget_s must be within 0..1e7");
   if (global_points_base < 0 || global_points_per_dim < 0 || global_starts < 0) return fail("global search sizes must be >= 0");
+  if (!(margin >= 0.0 && margin <= 0.5)) return fail("margin must be within 0..0.5");
   if (!(diversity >= 0.0 && diversity < 1.0)) return fail("diversity must be within [0, 1)");
   return local.IsValid(error);
 }
@@ -39,6 +41,7 @@ DesignOptions DesignOptions::FromSpec(const Spec& spec) {
   o.max_evaluations = spec.search.max_evaluations;
   o.time_limit_s = spec.search.time_limit_s;
   o.budget_s = spec.search.budget_s;
+  o.margin = spec.search.margin_pct / 100.0;
   return o;
 }
 
@@ -117,7 +120,7 @@ StructureSetup prepare(const Structure& s, size_t index, const Spec& spec, const
   ParamSpace ps = make_param_space(s, range, glo - 3.0, ghi + 3.0, sign);
   StructureSetup st;
   st.structure = s;
-  st.problem = std::make_shared<DesignProblem>(spec.plants, spec.requirements, region, screening, o.objective, ps);
+  st.problem = std::make_shared<DesignProblem>(spec.plants, with_design_margin(spec.requirements, o.margin), region, screening, o.objective, ps);
   if (o.metric_objective) st.problem->set_metric_objective(*o.metric_objective);
   for (Seed& sd : seeds) st.starts.push_back(sd);
   // Low-discrepancy screening points, shifted by a rotation drawn from the seed and structure.
@@ -166,32 +169,24 @@ long long escalation_evaluations(double budget_s, bool limited) {
 // pushed inside. The cycle starts small and returns to none.
 constexpr double kRoundMargins[] = {0.02, 0.05, 0.0, 0.1};
 
-RequirementSet tightened(const RequirementSet& req, double margin) {
-  RequirementSet t = req;
-  for (Requirement& r : t.items) {
-    const double m = margin * std::abs(r.limit);
-    r.limit += r.sense == Sense::AtMost ? -m : m;
-  }
-  return t;
-}
-
 // One escalation round: near misses first (the best pool points, screening-feasible ones that
 // failed the full check and those a small violation away), then fresh low-discrepancy starts per
 // structure, then a global search (NLopt MLSL) per structure; local budgets double every round
-// (up to 16 times the first pass's). Every result is scored again on the true requirements.
+// (up to 16 times the first pass's). Every result is scored again on the requirements with the design margin.
 // Returns the evaluations spent; the new points go to `found`.
 long long escalate_round(int round, const std::vector<StructureSetup>& setups, const std::vector<PoolEntry>& pool,
                          const std::map<std::pair<size_t, std::vector<double>>, Candidate>& verified, const Spec& spec,
                          const Region& region, const AnalysisOptions& screening, const DesignOptions& o, int threads,
                          std::vector<PoolEntry>& found, int& runs) {
-  const double margin = kRoundMargins[round % 4];
+  // The round's margin comes on top of the design margin (the last round returns to it).
+  const double margin = o.margin + kRoundMargins[round % 4];
   const int scale = std::min(16, 2 << std::min(round, 3));
   LocalOptions local = o.local;
   local.feasibility_evaluations *= scale;
   local.objective_evaluations *= scale;
   std::vector<std::shared_ptr<DesignProblem>> problems;
   for (const StructureSetup& st : setups) {
-    problems.push_back(std::make_shared<DesignProblem>(spec.plants, tightened(spec.requirements, margin), region, screening,
+    problems.push_back(std::make_shared<DesignProblem>(spec.plants, with_design_margin(spec.requirements, margin), region, screening,
                                                        o.objective, st.problem->space()));
   }
   struct Task {
@@ -265,6 +260,81 @@ long long escalate_round(int round, const std::vector<StructureSetup>& setups, c
   }
   (void)verified;
   return used;
+}
+
+// Two objectives this close (relative) are equal for the robust-before-fragile tie-break.
+constexpr double kEqualObjective = 1e-9;
+
+// The listed order: meeting candidates first (by objective; the simplest objective puts fewer
+// stages first), then the others by violation. At equal objective a robust candidate goes before
+// a fragile one (a tie-break only: clearly different objectives keep their order).
+void order_candidates(std::vector<Candidate>& cands, Objective objective) {
+  std::stable_sort(cands.begin(), cands.end(), [&](const Candidate& a, const Candidate& b) {
+    if (a.meets != b.meets) return a.meets;
+    if (a.meets) {
+      if (objective == Objective::Simplest && a.structure.stage_count() != b.structure.stage_count())
+        return a.structure.stage_count() < b.structure.stage_count();
+      return a.objective < b.objective;
+    }
+    return a.violation < b.violation;
+  });
+  for (bool swapped = true; swapped;) {
+    swapped = false;
+    for (size_t i = 0; i + 1 < cands.size(); ++i) {
+      Candidate& a = cands[i];
+      Candidate& b = cands[i + 1];
+      const bool tie = a.meets && b.meets &&
+                       (objective != Objective::Simplest || a.structure.stage_count() == b.structure.stage_count()) &&
+                       std::abs(a.objective - b.objective) <= kEqualObjective * std::max(std::abs(a.objective), std::abs(b.objective));
+      if (tie && a.fragile && !b.fragile) {
+        std::swap(a, b);
+        swapped = true;
+      }
+    }
+  }
+}
+
+// Two candidates of one structure that are the same loop over the frequency range: their
+// compensators' responses agree within the negligible-stage threshold at every sample (fragility.hpp).
+bool same_design(const Candidate& a, const Candidate& b, std::pair<double, double> range) {
+  if (!(a.structure == b.structure)) return false;
+  for (int i = 0; i < kNegligibleStageSamples; ++i) {
+    const double w = range.first * std::pow(range.second / range.first, i / (kNegligibleStageSamples - 1.0));
+    const Complex x = a.compensator.evaluate(Complex(0.0, w)), y = b.compensator.evaluate(Complex(0.0, w));
+    if (!(std::abs(y) > 0.0) || !(std::abs(x / y - 1.0) < kNegligibleStageShare)) return false;
+  }
+  return true;
+}
+
+// Degenerate candidates: a stage that does nothing over the frequency range is folded into the
+// gain (fragility.hpp) and the simpler loop verified again; it replaces the candidate when its
+// verdict is no worse (a stage whose removal changes the verdict acts outside the range and
+// stays). A candidate that is the same loop over the range as one listed before it is dropped.
+std::vector<Candidate> without_degenerate(std::vector<Candidate> cands, const Verifier& verifier, Objective objective,
+                                          int threads) {
+  std::vector<Candidate> folded(cands.size());
+  std::vector<char> use(cands.size(), 0);
+  parallel_for(cands.size(), threads, [&](size_t i) {
+    const Candidate& c = cands[i];
+    const PrunedCompensator p =
+        prune_negligible_stages(c.compensator, c.structure, c.parameters, verifier.context().frequency_range);
+    if (p.dropped == 0) return;
+    Candidate v = verifier.verify(p.compensator, objective);
+    if ((c.meets && !v.meets) || (!c.meets && !v.meets && v.violation > c.violation)) return;
+    v.structure = p.structure;
+    v.parameters = p.parameters;
+    v.origin = c.origin + " (" + std::to_string(p.dropped) + " negligible stage(s) folded into the gain)";
+    folded[i] = std::move(v);
+    use[i] = 1;
+  });
+  std::vector<Candidate> out;
+  for (size_t i = 0; i < cands.size(); ++i) {
+    Candidate c = use[i] ? std::move(folded[i]) : std::move(cands[i]);
+    bool dup = false;
+    for (const Candidate& k : out) dup = dup || same_design(k, c, verifier.context().frequency_range);
+    if (!dup) out.push_back(std::move(c));
+  }
+  return out;
 }
 
 double metric_score(const Candidate& c, const Requirement& r) {
@@ -444,17 +514,16 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
         cands[i].origin = shortlist[i].origin;
       }
     }
+    cands = without_degenerate(std::move(cands), verifier, o.objective, threads);
     if (o.metric_objective)
       for (Candidate& c : cands) c.objective = metric_score(c, *o.metric_objective);
-    std::stable_sort(cands.begin(), cands.end(), [&](const Candidate& a, const Candidate& b) {
-      if (a.meets != b.meets) return a.meets;
-      if (a.meets) {
-        if (o.objective == Objective::Simplest && a.structure.stage_count() != b.structure.stage_count())
-          return a.structure.stage_count() < b.structure.stage_count();
-        return a.objective < b.objective;
-      }
-      return a.violation < b.violation;
-    });
+    order_candidates(cands, o.objective);
+    // The design margin is the aim: while some candidate meets the limits tightened by it, those
+    // that meet only the stated limits (on the edge of a bound) are not listed.
+    if (std::any_of(cands.begin(), cands.end(), [&](const Candidate& c) { return meets_with_margin(c.verification, o.margin); }))
+      cands.erase(std::remove_if(cands.begin(), cands.end(),
+                                 [&](const Candidate& c) { return c.meets && !meets_with_margin(c.verification, o.margin); }),
+                  cands.end());
     // An unstable loop is no candidate while stable ones are there to show.
     const long stable_count = std::count_if(cands.begin(), cands.end(), [](const Candidate& c) { return c.verification.all_stable; });
     if (stable_count > 0)
@@ -550,10 +619,7 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
     if (!solutions.empty()) {
       std::vector<Candidate> all = solutions;
       for (const Candidate& c : rep.candidates) all.push_back(c);
-      std::stable_sort(all.begin(), all.end(), [](const Candidate& a, const Candidate& b) {
-        if (a.meets != b.meets) return a.meets;
-        return a.meets ? a.objective < b.objective : a.violation < b.violation;
-      });
+      order_candidates(all, o.objective == Objective::Simplest ? Objective::LeastEffort : o.objective);
       std::vector<Candidate> kept;
       for (const Candidate& c : all) {
         bool dup = false;

@@ -303,7 +303,9 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
   }
 
   const AnalysisOptions screening = AnalysisOptions::Screening(spec.analysis);
-  const CompensatorScorer screen(spec.plants, spec.requirements, rep.region, screening, Objective::LeastEffort,
+  // The search aims inside the limits tightened by the design margin; verdicts use the stated ones.
+  const CompensatorScorer screen(spec.plants, with_design_margin(spec.requirements, spec.search.margin_pct / 100.0),
+                                 rep.region, screening, Objective::LeastEffort,
                                  std::sqrt(rep.frequency_range.first * rep.frequency_range.second));
 
   // Structure levels by added order: the current structure, then one order-1 stage, then a notch.

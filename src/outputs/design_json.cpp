@@ -77,6 +77,10 @@ nlohmann::json candidate_json(const Candidate& c, const RequirementSet& req) {
   j["gain_interval"] = gain_interval_json(nominal.gain);
   j["gain_interval_at_scan_limit"] = {nominal.gain.lo_at_limit, nominal.gain.hi_at_limit};
   j["stable"] = c.verification.all_stable;
+  // Settling-time cliff (synthesis/fragility.hpp): null when some plant's loop does not settle.
+  j["fragile"] = c.fragility_assessed ? nlohmann::json(c.fragile) : nlohmann::json(nullptr);
+  j["settling_jump_pct"] = c.fragility_assessed ? json_number(100.0 * c.settling_jump_share) : nlohmann::json(nullptr);
+  j["margins_at_noise"] = c.margins_at_noise;
   nlohmann::json viol = nlohmann::json::object();
   for (const RequirementOutcome& o : c.verification.outcomes) {
     const std::string key = std::string(metric_info(o.requirement.metric).key) + (o.requirement.sense == Sense::AtMost ? ".max" : ".min");

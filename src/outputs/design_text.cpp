@@ -1,8 +1,10 @@
 #include <cmath>
+#include <cstdio>
 
 #include "polewright/jobs/check.hpp"
 #include "polewright/outputs/design_output.hpp"
 #include "polewright/outputs/json_values.hpp"
+#include "polewright/synthesis/fragility.hpp"
 #include "text_table.hpp"
 
 namespace pw {
@@ -21,7 +23,22 @@ std::string candidate_verdict(const Candidate& c) {
   return c.meets ? "meets all" : "misses: " + worst_violation(c);
 }
 
+std::string settling_robustness_text(const Candidate& c) {
+  if (!c.fragility_assessed) return "-";
+  return c.fragile ? "fragile" : "robust";
+}
+
+std::string fragile_explanation() {
+  char buf[256];
+  std::snprintf(buf, sizeof buf,
+                "settling: fragile when the settling time moves by more than %.0f %% with the band %.0f %% narrower or "
+                "wider or the loop gain %.0f %% lower or higher",
+                100.0 * kFragileJumpShare, 100.0 * kFragileBandShare, 100.0 * kFragileGainShare);
+  return buf;
+}
+
 std::string worst_violation(const Candidate& c) {
+  if (c.margins_at_noise) return "marginally stable (a margin within noise of 0)";
   if (!c.verification.all_stable) return "unstable";
   const RequirementOutcome* w = nullptr;
   int missed = 0;
@@ -51,6 +68,7 @@ std::string design_report_text(const DesignReport& r) {
     if (std::find(shown.begin(), shown.end(), q.metric) == shown.end()) shown.push_back(q.metric);
   if (std::find(shown.begin(), shown.end(), MetricId::PeakEffort) == shown.end()) shown.push_back(MetricId::PeakEffort);
   for (MetricId id : shown) header.push_back(metric_info(id).key);
+  header.push_back("settling");
   header.push_back("verdict");
   TextTable t(header);
   for (const Candidate& c : r.candidates) {
@@ -63,6 +81,7 @@ std::string design_report_text(const DesignReport& r) {
       const MetricValue& v = c.worst[static_cast<size_t>(id)];
       row.push_back(fmt_metric_against(v, id, c.verification.outcomes));
     }
+    row.push_back(settling_robustness_text(c));
     row.push_back(candidate_verdict(c));
     t.add(row);
   }
@@ -75,6 +94,7 @@ std::string design_report_text(const DesignReport& r) {
   }
   if (!pid_lines.empty()) out += "\n" + pid_lines;
   out += "\n  metrics are the worst case over the plants; every candidate was re-verified at full accuracy\n";
+  out += "  " + fragile_explanation() + "\n";
   out += "  " + std::string(kGainConvention) + "\n";
   if (!r.met()) {
     out += "\nnothing meets every requirement.\n";

@@ -1,6 +1,7 @@
 #include <algorithm>
 #include <cmath>
 
+#include "polewright/outputs/design_output.hpp"
 #include "polewright/outputs/report.hpp"
 #include "svg_palette.hpp"
 #include "svg_plot.hpp"
@@ -17,7 +18,7 @@ std::string report_candidates_section(const ReportData& d) {
     h += "<th>" + xml_escape(info.label) + "<br/><span class=\"pw-note\">" + (r.sense == Sense::AtMost ? "&#8804; " : "&#8805; ") +
          xml_escape(format_number(r.limit, 4)) + (info.unit[0] ? " " + xml_escape(info.unit) : "") + "</span></th>";
   }
-  h += "<th>zero-pole gain</th><th>low-frequency gain</th><th>zeros</th><th>poles</th></tr></thead><tbody>\n";
+  h += "<th>settling</th><th>zero-pole gain</th><th>low-frequency gain</th><th>zeros</th><th>poles</th></tr></thead><tbody>\n";
   for (const ReportDesign& rd : d.designs) {
     h += "<tr><td><span class=\"pw-swatch\" style=\"background:" + std::string(candidate_colour(rd.colour)) + "\"></span>" +
          xml_escape(rd.label) + "</td><td>" +
@@ -33,6 +34,7 @@ std::string report_candidates_section(const ReportData& d) {
       const std::string cls = o->met ? "num" : "num pw-bad";
       h += "<td class=\"" + cls + "\">" + xml_escape(report::metric_text(o->worst, "")) + "</td>";
     }
+    h += std::string("<td>") + (!rd.fragile ? "-" : *rd.fragile ? "<span class=\"pw-bad\">fragile</span>" : "robust") + "</td>";
     h += "<td class=\"num\">" + xml_escape(format_number(rd.compensator.gain, 3)) + "</td><td class=\"num\">" +
          xml_escape(format_number(zpk_low_frequency_gain(rd.compensator), 3)) + "</td><td class=\"pw-roots\">" +
          report::roots_html(rd.compensator.zeros, 3) + "</td><td class=\"pw-roots\">" + report::roots_html(rd.compensator.poles, 3) +
@@ -40,7 +42,7 @@ std::string report_candidates_section(const ReportData& d) {
   }
   h += "</tbody></table>\n<p class=\"pw-note\">Worst value over the nominal plant and every variant; red: the bound is not met. "
        "Roots to three digits (a conjugate pair once, as re &#177; im j); the exact values are in the result file. " +
-       report::gain_convention_html() + "</p>\n";
+       report::gain_convention_html() + " " + xml_escape(fragile_explanation()) + ".</p>\n";
 
   // Overlaid nominal step responses.
   const double t_end = report::step_plot_end(d);

@@ -4,6 +4,7 @@
 #include "polewright/outputs/report.hpp"
 #include "polewright/outputs/report_sweep.hpp"
 #include "polewright/requirements/spec_parse.hpp"
+#include "polewright/synthesis/fragility.hpp"
 
 namespace pw {
 
@@ -83,6 +84,8 @@ ReportData prepare_report(const ResultInput& result) {
     } else {
       rd.evaluation = evaluate_all(rd.compensator, d.spec.plants, d.spec.requirements, d.region, analysis);
     }
+    const Fragility fr = settling_fragility(rd.compensator, d.spec.plants, d.spec.requirements, d.region, d.spec.analysis);
+    if (fr.assessed) rd.fragile = fr.fragile;
     if (d.job == "check") {
       rd.label = "checked compensator";
     } else if (d.job == "retune") {

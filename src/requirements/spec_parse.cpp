@@ -38,7 +38,7 @@ const std::vector<std::string>& known_keys(const std::string& kind) {
         "crossover_rad_s", "bandwidth_rad_s", "peak_effort", "peak_sensitivity", "gain_tolerance_pct", "damping_ratio",
         "natural_frequency_rad_s", "delay_margin_s"}},
       {"stages", {"lead", "lag", "notch", "integrator", "frequency_range_rad_s"}},
-      {"search", {"seed", "keep", "objective", "threads", "max_evaluations", "time_limit_s", "budget_s"}},
+      {"search", {"seed", "keep", "objective", "threads", "max_evaluations", "time_limit_s", "budget_s", "margin_pct"}},
       {"analysis", {"pade_order", "samples", "horizon_s", "residue_share_pct"}},
       {"settling_time_s", {"max", "band_pct"}},
       {"steady_state_error", {"max", "input"}},
@@ -217,6 +217,11 @@ SearchSettings parse_search(const json& j, const std::string& path) {
   if (const json* v = member(j, "budget_s")) {
     s.budget_s = read_number(*v, key_path(path, "budget_s"), 1e7);
     if (!(s.budget_s >= 0.0)) throw SpecError(key_path(path, "budget_s"), "must be >= 0");
+  }
+  if (const json* v = member(j, "margin_pct")) {
+    s.margin_pct = read_number(*v, key_path(path, "margin_pct"), 1e7);
+    if (!(s.margin_pct >= 0.0 && s.margin_pct <= 50.0))
+      throw SpecError(key_path(path, "margin_pct"), "must be within 0..50 (got " + describe(*v) + ")");
   }
   if (const json* v = member(j, "objective")) {
     const std::string op = key_path(path, "objective");

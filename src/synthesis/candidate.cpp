@@ -1,5 +1,6 @@
 #include "polewright/synthesis/candidate.hpp"
 
+#include "polewright/synthesis/fragility.hpp"
 #include "polewright/synthesis/parameters.hpp"
 #include "polewright/synthesis/problem.hpp"
 
@@ -24,6 +25,22 @@ Candidate Verifier::verify(const Zpk& compensator, Objective objective) const {
   c.meets = c.verification.all_met;
   c.violation = c.verification.total_violation;
   c.objective = objective_value(objective, c.worst, compensator.gain);
+  // A loop on the stability boundary (a margin within numerical noise of zero) is no stable design.
+  for (const LoopEvaluation& e : c.verification.plants) c.margins_at_noise = c.margins_at_noise || (e.stable && margins_at_noise(e));
+  if (c.margins_at_noise) {
+    c.verification.all_stable = false;
+    c.verification.all_met = false;
+    c.meets = false;
+    c.violation += kNoiseMarginViolation;
+    c.verification.total_violation = c.violation;
+  }
+  if (c.verification.all_stable) {
+    const Fragility f = settling_fragility(compensator, context_.plants, context_.requirements, context_.region,
+                                           context_.analysis);
+    c.fragility_assessed = f.assessed;
+    c.fragile = f.assessed && f.fragile;
+    c.settling_jump_share = f.assessed ? f.jump_share : 0.0;
+  }
   return c;
 }
 

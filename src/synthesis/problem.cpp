@@ -21,6 +21,25 @@ double objective_value(Objective o, const std::vector<MetricValue>& w, double hf
   }
 }
 
+RequirementSet with_design_margin(const RequirementSet& req, double margin) {
+  RequirementSet t = req;
+  for (Requirement& r : t.items) {
+    const double m = margin * std::abs(r.limit);
+    r.limit += r.sense == Sense::AtMost ? -m : m;
+  }
+  return t;
+}
+
+bool meets_with_margin(const Evaluation& e, double margin) {
+  if (!e.all_met) return false;
+  for (const RequirementOutcome& o : e.outcomes) {
+    Requirement r = o.requirement;
+    r.limit += (r.sense == Sense::AtMost ? -1.0 : 1.0) * margin * std::abs(r.limit);
+    if (requirement_violation(r, o.worst) > 0.0) return false;
+  }
+  return true;
+}
+
 std::vector<MetricValue> worst_metrics(const std::vector<LoopEvaluation>& plants, const RequirementSet& req) {
   std::vector<MetricValue> out(kMetricCount);
   for (const MetricInfo& info : metric_table()) {

@@ -3,6 +3,8 @@
 #include "polewright/jobs/design.hpp"
 #include "polewright/outputs/design_output.hpp"
 #include "polewright/requirements/spec_parse.hpp"
+#include "polewright/synthesis/fragility.hpp"
+#include "polewright/synthesis/problem.hpp"
 
 using namespace pw;
 using nlohmann::json;
@@ -221,4 +223,78 @@ TEST_CASE("with the fastest objective, rank 1 is the fastest verified candidate"
     ++meeting;
   }
   CHECK(meeting >= 2);  // an order of one would prove nothing
+}
+
+TEST_CASE("a design margin puts the listed candidates inside the tightened limits; margin 0 aims at the limits", "[jobs][design]") {
+  // Our own scenario: the film-winder tension roll 50/(s(s+5)) with the least-effort objective,
+  // which lowers the gain until a limit binds. Every listed candidate is re-checked independently
+  // by evaluate_all, against the stated limits and against the limits tightened by 5 %
+  // (with_design_margin, whose rule is tested in tests/synthesis/test_problem.cpp).
+  auto run = [](const char* margin) {
+    const std::string text = std::string(R"({"plant": {"gain": 50, "poles": [0, -5]},
+      "requirements": {"overshoot_pct": {"max": 10}, "settling_time_s": {"max": 2, "band_pct": 2},
+                       "phase_margin_deg": {"min": 45}},
+      "stages": {"lead": 1, "lag": 1, "frequency_range_rad_s": [0.1, 200]},
+      "search": {"keep": 5, "seed": 3, "margin_pct": )") + margin + "}}";
+    const Spec spec = spec_of(text.c_str());
+    DesignOptions o = DesignOptions::FromSpec(spec);
+    o.threads = 1;
+    return std::make_pair(spec, run_design(spec, o));
+  };
+  const auto [spec5, r5] = run("5");
+  REQUIRE(r5.met());
+  const LoopContext ctx = LoopContext::FromSpec(spec5);
+  const RequirementSet tight = with_design_margin(ctx.requirements, 0.05);
+  int meeting = 0;
+  for (const Candidate& c : r5.candidates) {
+    if (!c.meets) continue;
+    ++meeting;
+    CHECK(evaluate_all(c.compensator, ctx.plants, ctx.requirements, ctx.region, ctx.analysis).all_met);
+    const Evaluation e = evaluate_all(c.compensator, ctx.plants, tight, ctx.region, ctx.analysis);
+    CHECK(e.all_met);
+  }
+  CHECK(meeting >= 2);
+  // Margin 0: the search aims at the stated limits (the behaviour before the margin existed), so
+  // the least-effort candidates lean on a limit: some listed one is outside the 5 % tightened limits.
+  const auto [spec0, r0] = run("0");
+  REQUIRE(r0.met());
+  CHECK(DesignOptions::FromSpec(spec0).margin == 0.0);
+  bool some_on_edge = false;
+  for (const Candidate& c : r0.candidates)
+    if (c.meets) some_on_edge = some_on_edge || !evaluate_all(c.compensator, ctx.plants, tight, ctx.region, ctx.analysis).all_met;
+  CHECK(some_on_edge);
+}
+
+TEST_CASE("listed candidates are not degenerate and carry the settling-cliff flag", "[jobs][design]") {
+  // Our own scenario, the tension roll again, with a frequency range far wider than the loop
+  // needs (1e-4..1e4 rad/s): no listed candidate may keep a stage that stays within the
+  // negligible-stage threshold over the range (prune_negligible_stages finds nothing to fold in
+  // the result), no two listed ones are the same loop, and the flag agrees with an independent
+  // settling_fragility call on each compensator.
+  const Spec spec = spec_of(R"({"plant": {"gain": 50, "poles": [0, -5]},
+    "requirements": {"overshoot_pct": {"max": 10}, "settling_time_s": {"max": 2, "band_pct": 2}},
+    "stages": {"lead": 1, "lag": 1, "frequency_range_rad_s": [1e-4, 1e4]},
+    "search": {"keep": 5, "seed": 2}})");
+  DesignOptions o = DesignOptions::FromSpec(spec);
+  o.threads = 1;
+  const DesignReport r = run_design(spec, o);
+  REQUIRE(r.met());
+  const LoopContext ctx = LoopContext::FromSpec(spec);
+  for (size_t i = 0; i < r.candidates.size(); ++i) {
+    const Candidate& c = r.candidates[i];
+    CHECK(prune_negligible_stages(c.compensator, c.structure, c.parameters, ctx.frequency_range).dropped == 0);
+    CHECK(static_cast<int>(c.compensator.poles.size()) == c.structure.order());
+    const Fragility f = settling_fragility(c.compensator, ctx.plants, ctx.requirements, ctx.region, ctx.analysis);
+    CHECK(c.fragility_assessed == f.assessed);
+    CHECK(c.fragile == (f.assessed && f.fragile));
+    for (size_t k = 0; k < i; ++k)
+      CHECK_FALSE((r.candidates[k].structure == c.structure && r.candidates[k].compensator.gain == c.compensator.gain &&
+                   r.candidates[k].compensator.zeros == c.compensator.zeros));
+  }
+  // The JSON carries the flag for every candidate.
+  const nlohmann::json j = design_report_json(r, false);
+  for (const auto& c : j["candidates"]) {
+    CHECK(c.contains("fragile"));
+    CHECK(c["margins_at_noise"].is_boolean());
+  }
 }

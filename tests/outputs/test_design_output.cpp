@@ -76,3 +76,37 @@ TEST_CASE("metrics and unbounded lists; the search context block", "[outputs][de
   CHECK(c["region"]["min_damping_ratio"].get<double>() == Approx(0.5912).epsilon(1e-3));  // zeta for 10 % (second order)
   CHECK(c["analysis"]["pade_order"] == 6);
 }
+
+TEST_CASE("the settling-cliff flag is in the table, the JSON and its one-line explanation", "[outputs][design_output]") {
+  // A hand-built candidate for each state; the wording follows the constants of fragility.hpp.
+  Candidate c;
+  CHECK(settling_robustness_text(c) == "-");
+  c.fragility_assessed = true;
+  CHECK(settling_robustness_text(c) == "robust");
+  c.fragile = true;
+  CHECK(settling_robustness_text(c) == "fragile");
+  CHECK(fragile_explanation().find("more than 25 %") != std::string::npos);
+  CHECK(fragile_explanation().find("10 % narrower or wider") != std::string::npos);
+  c.margins_at_noise = true;
+  CHECK(worst_violation(c).find("marginally stable") == 0);
+
+  const Spec spec = parse_spec(read_json_file(std::string(POLEWRIGHT_SOURCE_DIR) + "/specs/greenhouse-heater.json"));
+  DesignOptions o = DesignOptions::FromSpec(spec);
+  o.threads = 1;
+  const DesignReport r = run_design(spec, o);
+  REQUIRE_FALSE(r.candidates.empty());
+  const nlohmann::json j = design_report_json(r, false);
+  for (size_t i = 0; i < r.candidates.size(); ++i) {
+    const nlohmann::json& jc = j.at("candidates").at(i);
+    const Candidate& rc = r.candidates[i];
+    if (rc.fragility_assessed) {
+      CHECK(jc.at("fragile").get<bool>() == rc.fragile);
+      CHECK(jc.at("settling_jump_pct").get<double>() == Approx(100.0 * rc.settling_jump_share));
+    } else {
+      CHECK(jc.at("fragile").is_null());
+    }
+  }
+  const std::string t = design_report_text(r);
+  CHECK(t.find(fragile_explanation()) != std::string::npos);
+  CHECK(t.find("settling") != std::string::npos);
+}

@@ -85,6 +85,9 @@ TEST_CASE("design report adds the ranked candidates with their overlaid steps", 
   check_page(html, 9);
   CHECK(html.find("id=\"candidates\"") != std::string::npos);
   CHECK(html.find("rank 2: lead + notch") != std::string::npos);
+  // The settling-cliff column and its one-line explanation (synthesis/fragility.hpp).
+  CHECK(html.find("<th>settling</th>") != std::string::npos);
+  CHECK(html.find("settling: fragile when") != std::string::npos);
 }
 
 TEST_CASE("prepare_report recomputes the check's figures from the embedded spec", "[outputs][report]") {

@@ -140,3 +140,15 @@ TEST_CASE("parser keys agree with the JSON Schema's properties", "[requirements]
     CHECK(keys_of(req.at(m.key)) == as_set(known_keys(kind)));
   }
 }
+
+TEST_CASE("the design margin is read in percent and range-checked", "[requirements][spec_parse]") {
+  CHECK(parse_spec(json::parse(kBase)).search.margin_pct == 3.0);  // the documented default (docs/manual.md)
+  json j = json::parse(kBase);
+  j["search"]["margin_pct"] = 0;
+  CHECK(parse_spec(j).search.margin_pct == 0.0);
+  j["search"]["margin_pct"] = 7.5;
+  CHECK(parse_spec(j).search.margin_pct == 7.5);
+  CHECK(error_after([](json& k) { k["search"]["margin_pct"] = -1; }).find("$.search.margin_pct: must be within 0..50") == 0);
+  CHECK(error_after([](json& k) { k["search"]["margin_pct"] = 51; }).find("$.search.margin_pct") == 0);
+  CHECK(error_after([](json& k) { k["search"]["margin_pct"] = "3"; }).find("$.search.margin_pct") == 0);
+}

@@ -55,3 +55,33 @@ TEST_CASE("worst metrics take the side that hurts", "[synthesis][problem]") {
   m[static_cast<size_t>(MetricId::SettlingTime)].value = 0.7;
   CHECK(objective_value(Objective::Fastest, m, 1.0) == 0.7);
 }
+
+TEST_CASE("the design margin moves every limit inwards by its share of the limit's size", "[synthesis][problem]") {
+  // The rule of docs/manual.md (Design margin): L - m|L| for an upper limit, L + m|L| for a lower one.
+  RequirementSet r;
+  r.items = {{MetricId::Overshoot, Sense::AtMost, 20.0},
+             {MetricId::PhaseMargin, Sense::AtLeast, 45.0},
+             {MetricId::GainMargin, Sense::AtMost, -5.0},  // a negative upper limit moves down
+             {MetricId::Overshoot, Sense::AtLeast, 0.0}};  // a zero limit has no size: unchanged
+  const RequirementSet t = with_design_margin(r, 0.03);
+  CHECK(t.items[0].limit == Approx(19.4).epsilon(1e-15));
+  CHECK(t.items[1].limit == Approx(46.35).epsilon(1e-15));
+  CHECK(t.items[2].limit == Approx(-5.15).epsilon(1e-15));
+  CHECK(t.items[3].limit == 0.0);
+  const RequirementSet none = with_design_margin(r, 0.0);
+  for (size_t i = 0; i < r.items.size(); ++i) CHECK(none.items[i].limit == r.items[i].limit);
+
+  // meets_with_margin: 19.5 % overshoot meets 20 % but not 20 (1 - 0.03) = 19.4 %.
+  Evaluation e;
+  e.all_met = true;
+  RequirementOutcome o;
+  o.requirement = {MetricId::Overshoot, Sense::AtMost, 20.0};
+  o.worst.value = 19.5;
+  o.met = true;
+  e.outcomes = {o};
+  CHECK(meets_with_margin(e, 0.0));
+  CHECK(meets_with_margin(e, 0.02));   // 19.6
+  CHECK_FALSE(meets_with_margin(e, 0.03));
+  e.all_met = false;
+  CHECK_FALSE(meets_with_margin(e, 0.0));
+}

@@ -28,6 +28,9 @@ struct DesignOptions {
   // in screening evaluations (budget_s times a nominal rate, see design.cpp), so the same spec,
   // seed and threads give the same result on any machine; 0 turns the escalation off.
   double budget_s = 10.0;
+  // Design margin (fraction of each limit, search.margin_pct / 100): the search aims inside the
+  // limits tightened by it (with_design_margin); verdicts stay against the stated limits.
+  double margin = 0.03;
   LocalOptions local;
   int global_points_base = 12;            // screening points per structure: base + per_dim * dim
   int global_points_per_dim = 4;

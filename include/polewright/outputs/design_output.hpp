@@ -33,6 +33,8 @@ std::string design_report_text(const DesignReport& r);
 std::string roots_text(const Roots& rs);                 // "-40, -3+-j4" (a pair once)
 std::string worst_violation(const Candidate& c);         // "overshoot_pct 14 > 8 (+1 more)"
 std::string candidate_verdict(const Candidate& c);       // "meets all" or "misses: ..."
+std::string settling_robustness_text(const Candidate& c); // "fragile", "robust" or "-" (not assessed)
+std::string fragile_explanation();                        // one line: what "fragile" means
 
 
 }  // namespace pw

@@ -26,6 +26,9 @@ struct ReportDesign {
   Zpk compensator;
   Evaluation evaluation;  // nominal first, then the variants
   int colour = 0;         // palette index (candidate_colour)
+  // Settling-time cliff (synthesis/fragility.hpp), recomputed from the compensator; nullopt when
+  // some plant's loop does not settle.
+  std::optional<bool> fragile;
 };
 
 struct SweepReport;  // outputs/report_sweep.hpp

@@ -50,6 +50,9 @@ struct SearchSettings {
   long long max_evaluations = 200000;
   double time_limit_s = 30.0;
   double budget_s = 10.0;  // escalation budget when the first pass finds nothing (jobs/design.hpp)
+  // Design margin in percent of each limit: the search aims inside every limit tightened by it
+  // (synthesis/problem.hpp, with_design_margin); verdicts stay against the stated limits.
+  double margin_pct = 3.0;
 };
 
 struct Spec {

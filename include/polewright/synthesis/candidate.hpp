@@ -24,6 +24,13 @@ struct Candidate {
   bool meets = false;
   double objective = 0.0;
   double violation = 0.0;
+  // The settling time jumps by more than kFragileJumpShare in a small neighbourhood of the loop
+  // (synthesis/fragility.hpp); `fragility_assessed` is false when some plant's loop does not settle.
+  bool fragile = false;
+  bool fragility_assessed = false;
+  double settling_jump_share = 0.0;
+  // A margin within numerical noise of zero on some plant: treated as violating (not stable).
+  bool margins_at_noise = false;
 };
 
 // What every search of one spec shares: the loop and how it is judged.

@@ -20,6 +20,16 @@ namespace pw {
 //   simplest      as least_effort (the ranking puts fewer stages first)
 double objective_value(Objective o, const std::vector<MetricValue>& worst, double hf_gain);
 
+// The requirements the search aims at: every limit moved inwards by `margin` (a fraction) of its
+// size, |L| margin: an upper limit L becomes L - m|L| (L(1 - m) for positive L), a lower limit
+// L + m|L| (L(1 + m) for positive L). A negative limit moves inwards too (an upper limit of -5
+// becomes -5.15 at 3 %), and a limit of 0 has no size to scale and stays as stated. Verdicts are
+// always taken against the stated limits; this is only the aim of the search.
+RequirementSet with_design_margin(const RequirementSet& req, double margin);
+
+// Whether the worst-case values of a verified loop meet the requirements with the design margin.
+bool meets_with_margin(const Evaluation& e, double margin);
+
 // Worst value of each metric over the plants, in the direction that hurts (higher for metrics
 // bounded above, lower for those bounded below; min-or-max metrics take the requirement's side).
 std::vector<MetricValue> worst_metrics(const std::vector<LoopEvaluation>& plants, const RequirementSet& req);
