@@ -2,11 +2,14 @@
 #pragma once
 
 #include <functional>
+#include <initializer_list>
 #include <string>
+#include <utility>
 
 #include <CLI/CLI.hpp>
 
 #include "polewright/outputs/check_output.hpp"
+#include "polewright/requirements/spec.hpp"
 
 namespace pw::cli {
 
@@ -38,6 +41,23 @@ bool parse_whole(const std::string& text, long long lo, long long hi, long long*
 // A CLI11 check for an integer option: the text is a whole number within [lo, hi] (applied to the
 // text before CLI11 converts it, so "2^63" or "4294967297" is refused, not wrapped).
 CLI::Validator whole_range(long long lo, long long hi);
+
+// The library blames a bad setting on the field or argument that holds it (ExportOptions'
+// sample_time_s, SweepStore's dir, ...) and names other ones in its messages as `name`; the
+// command line names the option that sets each. `options` maps name -> option; paths and names
+// not in it (JSON paths, files) pass unchanged.
+using OptionNames = std::initializer_list<std::pair<const char*, const char*>>;
+SpecError with_option_names(const SpecError& e, OptionNames options);
+
+// Runs `body` with its SpecError renamed by with_option_names.
+template <class Body>
+auto naming_options(OptionNames options, Body&& body) -> decltype(body()) {
+  try {
+    return body();
+  } catch (const SpecError& e) {
+    throw with_option_names(e, options);
+  }
+}
 
 // Writes to `path` atomically, or to stdout when path is "-".
 void emit(const std::string& path, const std::string& content);

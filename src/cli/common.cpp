@@ -53,6 +53,17 @@ CLI::Validator whole_range(long long lo, long long hi) {
       "INT in " + range);
 }
 
+SpecError with_option_names(const SpecError& e, OptionNames options) {
+  std::string path = e.path(), message = e.message();
+  for (const auto& [name, option] : options) {
+    if (path == name) path = option;
+    const std::string quoted = std::string("`") + name + "`";
+    for (size_t at = message.find(quoted); at != std::string::npos; at = message.find(quoted, at + 1))
+      message.replace(at, quoted.size(), option);
+  }
+  return SpecError(path, message);
+}
+
 void emit(const std::string& path, const std::string& content) {
   if (path == "-") {
     std::cout << content;

@@ -61,10 +61,10 @@ std::string names_of(const SweepFile& f) {
   return s;
 }
 
-int parameter_index(const SweepFile& f, const std::string& name, const std::string& option) {
+int parameter_index(const SweepFile& f, const std::string& name, const std::string& field) {
   for (size_t i = 0; i < f.parameters.size(); ++i)
     if (f.parameters[i].name == name) return static_cast<int>(i);
-  throw SpecError(option, "\"" + name + "\" is not a parameter of the sweep (" + names_of(f) + ")");
+  throw SpecError(field, "\"" + name + "\" is not a parameter of the sweep (" + names_of(f) + ")");
 }
 
 bool varies(const SweepFile& f, const SweepParameter& p) {
@@ -134,7 +134,7 @@ long long SweepReport::count(const std::string& status) const {
 }
 
 SweepReport read_sweep_report(const std::vector<std::string>& dirs, const SweepReportOptions& o) {
-  if (dirs.empty()) throw SpecError("DIR", "the report needs a sweep directory");
+  if (dirs.empty()) throw SpecError("dirs", "the report needs a sweep directory");
   SweepReport r;
   r.dirs = dirs;
   nlohmann::json doc;
@@ -148,19 +148,19 @@ SweepReport read_sweep_report(const std::vector<std::string>& dirs, const SweepR
   const SweepFile& f = r.file;
 
   // Axes and metric.
-  if (f.parameters.size() < 2) throw SpecError("--x", "the sweep has one parameter; the map needs two");
+  if (f.parameters.size() < 2) throw SpecError("x", "the sweep has one parameter; the map needs two");
   std::vector<int> varying;
   for (size_t i = 0; i < f.parameters.size(); ++i)
     if (varies(f, f.parameters[i])) varying.push_back(static_cast<int>(i));
   for (size_t i = 0; i < f.parameters.size() && varying.size() < 2; ++i)
     if (std::find(varying.begin(), varying.end(), static_cast<int>(i)) == varying.end()) varying.push_back(static_cast<int>(i));
   // An axis left to its default takes the first varying parameter the other axis does not use.
-  const int given_x = o.x.empty() ? -1 : parameter_index(f, o.x, "--x");
-  const int given_y = o.y.empty() ? -1 : parameter_index(f, o.y, "--y");
+  const int given_x = o.x.empty() ? -1 : parameter_index(f, o.x, "x");
+  const int given_y = o.y.empty() ? -1 : parameter_index(f, o.y, "y");
   auto first_other = [&](int used) { return varying[0] == used ? varying[1] : varying[0]; };
   r.x = given_x >= 0 ? given_x : first_other(given_y);
   r.y = given_y >= 0 ? given_y : first_other(r.x);
-  if (r.x == r.y) throw SpecError(o.y.empty() ? "--x" : "--y", "\"" + f.parameters[static_cast<size_t>(r.x)].name + "\" is on both axes: choose two different parameters");
+  if (r.x == r.y) throw SpecError(o.y.empty() ? "x" : "y", "\"" + f.parameters[static_cast<size_t>(r.x)].name + "\" is on both axes: choose two different parameters");
   const nlohmann::json req = f.base.contains("requirements") && f.base["requirements"].is_object() ? f.base["requirements"] : nlohmann::json::object();
   if (!o.metric.empty()) {
     bool found = false;
@@ -172,7 +172,7 @@ SweepReport read_sweep_report(const std::vector<std::string>& dirs, const SweepR
         found = true;
       }
     }
-    if (!found) throw SpecError("--metric", "\"" + o.metric + "\" is not a metric (one of " + keys + ")");
+    if (!found) throw SpecError("metric", "\"" + o.metric + "\" is not a metric (one of " + keys + ")");
   }
 
   // Points, merged by index.

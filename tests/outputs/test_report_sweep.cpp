@@ -190,7 +190,7 @@ TEST_CASE("sweep report: shard directories are merged by index; missing points c
   std::filesystem::remove_all(two);
 }
 
-TEST_CASE("sweep report: bad options and directories name the option or the directory", "[outputs][report][sweep]") {
+TEST_CASE("sweep report: bad options and directories name the options field or the directory", "[outputs][report][sweep]") {
   const std::string dir = run_sweep_into(kSweep, "bad");
   auto path_of = [&](const SweepReportOptions& o, const std::vector<std::string>& dirs) {
     try {
@@ -200,12 +200,13 @@ TEST_CASE("sweep report: bad options and directories name the option or the dire
     }
     return std::string("no error");
   };
-  CHECK(path_of({"Q", "", ""}, {dir}) == "--x");
-  CHECK(path_of({"", "Q", ""}, {dir}) == "--y");
-  CHECK(path_of({"a", "a", ""}, {dir}) == "--y");
-  CHECK(path_of({"", "", "speed"}, {dir}) == "--metric");
+  CHECK(path_of({"Q", "", ""}, {dir}) == "x");
+  CHECK(path_of({"", "Q", ""}, {dir}) == "y");
+  CHECK(path_of({"a", "a", ""}, {dir}) == "y");
+  CHECK(path_of({"", "", "speed"}, {dir}) == "metric");
   CHECK(path_of({}, {dir + "/none"}) == dir + "/none");
-  // Only --y given: the x axis defaults to the first varying parameter not on y.
+  CHECK(path_of({}, {}) == "dirs");
+  // Only y given: the x axis defaults to the first varying parameter not on y.
   const SweepReport r = read_sweep_report({dir}, {"", "a", ""});
   CHECK(r.file.parameters[static_cast<size_t>(r.x)].name == "g");
   CHECK(r.file.parameters[static_cast<size_t>(r.y)].name == "a");

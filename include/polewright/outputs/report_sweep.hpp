@@ -58,8 +58,8 @@ struct SweepReportOptions {
 // Reads the directories (one sweep; points merged by index, a point found twice must agree).
 // Defaults: the first two parameters with more than one value, and the metric of the base spec's
 // requirement that fails at the most points that missed (ties and all-met sweeps: the first
-// requirement in metric table order). Throws SpecError naming the directory or the option (--x,
-// --y, --metric) on bad input.
+// requirement in metric table order). Throws SpecError naming the directory, `dirs` (none given)
+// or the SweepReportOptions field (x, y, metric) on bad input.
 SweepReport read_sweep_report(const std::vector<std::string>& dirs, const SweepReportOptions& options = {});
 
 // The points gathered onto (x, y), in ascending (x, y).
