@@ -36,7 +36,7 @@ SweepReportPoint point_of(const SweepFile& f, const nlohmann::json& p) {
     const nlohmann::json v = params.is_object() ? params.value(s.name, none) : none;
     q.values.push_back(v.is_number() ? v.get<double>() : NAN);
   }
-  q.status = p["status"].is_string() ? p["status"].get<std::string>() : "error";
+  if (p["status"].is_string()) q.status = point_status_from_name(p["status"].get<std::string>()).value_or(PointStatus::Error);
   if (p.contains("structure") && p["structure"].is_string()) q.structure = p["structure"].get<std::string>();
   if (p.contains("message") && p["message"].is_string()) q.message = p["message"].get<std::string>();
   const bool has_metrics = p.contains("metrics") && p["metrics"].is_object();
@@ -91,7 +91,7 @@ MetricId default_map_metric(const SweepReport& r, const nlohmann::json& req) {
   std::vector<long long> fails(ids.size(), 0);
   long long asked = 0;
   for (const SweepReportPoint& p : r.points) {
-    if (p.status != "not_met") continue;
+    if (p.status != PointStatus::NotMet) continue;
     if (++asked > kMaxVotes) break;
     std::optional<nlohmann::json> spec;  // the point's own spec, made only when a limit needs it
     for (size_t i = 0; i < ids.size(); ++i) {
@@ -127,7 +127,7 @@ MetricId default_map_metric(const SweepReport& r, const nlohmann::json& req) {
 
 }  // namespace
 
-long long SweepReport::count(const std::string& status) const {
+long long SweepReport::count(PointStatus status) const {
   long long n = 0;
   for (const SweepReportPoint& p : points) n += p.status == status;
   return n;
@@ -217,8 +217,8 @@ std::vector<SweepCell> sweep_cells(const SweepReport& r) {
     c.x = x;
     c.y = y;
     ++c.points;
-    if (p.status == "met") ++c.met;
-    else if (p.status == "not_met") ++c.not_met;
+    if (p.status == PointStatus::Met) ++c.met;
+    else if (p.status == PointStatus::NotMet) ++c.not_met;
     else ++c.failed;
     if (p.metrics[m]) {
       const double v = *p.metrics[m];

@@ -15,6 +15,7 @@
 #include <string>
 #include <vector>
 
+#include "polewright/jobs/sweep.hpp"
 #include "polewright/outputs/report.hpp"
 #include "polewright/requirements/metric.hpp"
 #include "polewright/requirements/sweep_parse.hpp"
@@ -24,7 +25,7 @@ namespace pw {
 struct SweepReportPoint {
   long long index = 0;
   std::vector<double> values;  // parameter order; NaN when missing
-  std::string status;          // met, not_met, bad_point, error
+  PointStatus status = PointStatus::Error;  // a status the file does not know reads as error
   std::string structure, message;
   std::array<std::optional<double>, kMetricCount> metrics{};  // worst over the plants; unbounded: +inf
   std::optional<double> change_decades;                        // retune sweeps
@@ -47,8 +48,8 @@ struct SweepReport {
   MetricId metric = MetricId::Overshoot;
   bool worst_is_max = true;              // how the metric is aggregated
   std::vector<std::string> torn;         // directories whose points file ended in a torn line (skipped)
-  long long count(const std::string& status) const;
-  bool all_met() const { return expected > 0 && count("met") == expected; }
+  long long count(PointStatus status) const;
+  bool all_met() const { return expected > 0 && count(PointStatus::Met) == expected; }
 };
 
 struct SweepReportOptions {
