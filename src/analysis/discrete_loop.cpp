@@ -86,14 +86,18 @@ struct DLoop {
   int states() const { return static_cast<int>(A.rows()); }
 };
 
-DSys to_dynamic(const StateSpace& s) {
-  DSys d;
-  d.A = s.A;
-  d.B = s.B;
-  d.C = s.C;
-  d.D = s.D;
-  return d;
+// The four matrices of a state-space form, copied into another (fixed <-> dynamic size).
+template <class To, class From>
+To with_matrices_of(const From& s) {
+  To t;
+  t.A = s.A;
+  t.B = s.B;
+  t.C = s.C;
+  t.D = s.D;
+  return t;
 }
+
+DSys to_dynamic(const StateSpace& s) { return with_matrices_of<DSys>(s); }
 
 DSys plant_system(const SampledPlant& p) {
   const int nx = p.core.states();
@@ -141,12 +145,7 @@ StateSpace sampled_plant_state_space(const SampledPlant& p) {
   if (d.states() > kMaxStates)
     throw std::invalid_argument("the sampled plant has " + std::to_string(d.states()) +
                                 " states, more than a StateSpace holds (" + std::to_string(kMaxStates) + ")");
-  StateSpace s;
-  s.A = d.A;
-  s.B = d.B;
-  s.C = d.C;
-  s.D = d.D;
-  return s;
+  return with_matrices_of<StateSpace>(d);
 }
 
 Complex sampled_plant_response(const SampledPlant& p, Complex z) {

@@ -44,17 +44,12 @@ std::string strip_c_extension(const std::string& out) {
 
 // The library blames a bad export on an ExportOptions field (or "rank"); the command line names
 // the option that sets it. Fields no option sets keep their names; JSON paths pass unchanged.
-SpecError with_option_name(const SpecError& e) {
-  static const std::pair<const char*, const char*> kOptions[] = {
-      {"sample_time_s", "--sample-time"},     {"prewarp_rad_s", "--prewarp-rad-s"},
-      {"compute_delay", "--compute-delay"},   {"clamp", "--clamp"},
-      {"precision", "--precision"},           {"rank", "--rank"},
-      {"max_phase_margin_drop_deg", "--max-pm-drop-deg"}, {"max_gain_margin_drop_db", "--max-gm-drop-db"},
-      {"min_rate_ratio", "--min-rate-ratio"}};
-  for (const auto& [field, option] : kOptions)
-    if (e.path() == field) return SpecError(option, e.message());
-  return e;
-}
+constexpr OptionNames kExportOptions = {
+    {"sample_time_s", "--sample-time"},     {"prewarp_rad_s", "--prewarp-rad-s"},
+    {"compute_delay", "--compute-delay"},   {"clamp", "--clamp"},
+    {"precision", "--precision"},           {"rank", "--rank"},
+    {"max_phase_margin_drop_deg", "--max-pm-drop-deg"}, {"max_gain_margin_drop_db", "--max-gm-drop-db"},
+    {"min_rate_ratio", "--min-rate-ratio"}};
 
 }  // namespace
 
@@ -127,12 +122,7 @@ void register_export(CLI::App& app) {
           in.spec = parse_spec(read_json_file(a->spec));
           file = a->result;
         }
-        ExportReport r;
-        try {
-          r = run_export(in, rank, o);
-        } catch (const SpecError& e) {
-          throw with_option_name(e);
-        }
+        const ExportReport r = naming_options(kExportOptions, [&] { return run_export(in, rank, o); });
         const bool to_stdout = a->out == "-";
         if (a->format == "c") {
           const std::string base = strip_c_extension(a->out);

@@ -29,7 +29,9 @@ void register_report(CLI::App& app) {
         if (sweep) {
           for (const std::string& d : a->inputs)
             if (!std::filesystem::is_directory(d)) throw SpecError(d, "is not a sweep directory (give only directories)");
-          emit(a->out, report_html(prepare_sweep_report(a->inputs, {a->x, a->y, a->metric})));
+          const ReportData data = naming_options({{"dirs", "DIR"}, {"x", "--x"}, {"y", "--y"}, {"metric", "--metric"}},
+                                                 [&] { return prepare_sweep_report(a->inputs, {a->x, a->y, a->metric}); });
+          emit(a->out, report_html(data));
           return kExitMet;
         }
         if (a->inputs.size() > 1) throw SpecError("RESULT", "give one result file (several inputs are for sweep shard directories)");

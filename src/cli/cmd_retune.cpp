@@ -1,8 +1,6 @@
-#include <iostream>
 #include <memory>
 
 #include "commands.hpp"
-#include "polewright/outputs/report.hpp"
 #include "polewright/outputs/retune_output.hpp"
 #include "polewright/requirements/spec_parse.hpp"
 
@@ -12,26 +10,16 @@ void register_retune(CLI::App& app) {
   auto* cmd = app.add_subcommand("retune", "Move the compensator in service (the spec's current) as little as "
                                            "possible until it meets the spec's requirements");
   struct Args {
-    std::string spec, out, report;
-    bool json = false, timing = false, allow_new = false;
-    int keep = -1, threads = -1;
-    long long seed = -1;
-    double budget_s = -1.0;
+    std::string spec;
+    bool allow_new = false;
+    SearchArgs search;
   };
   auto a = std::make_shared<Args>();
   cmd->add_option("SPEC", a->spec, "spec file (JSON) with a current compensator")->required();
-  cmd->add_option("-o,--output", a->out, "write the result as JSON to this file (atomically)");
-  cmd->add_flag("--json", a->json, "print the JSON result to stdout instead of the table");
-  cmd->add_option("--report", a->report, "also write the HTML report to this file (atomically)");
-  cmd->add_flag("--timing", a->timing, "add the timings to the JSON");
+  add_result_options(cmd, a->search, "add the timings to the JSON");
   cmd->add_flag("--allow-new-stages", a->allow_new,
                 "when moving the existing corners is not enough, add a stage (lead/lag or integrator, then a notch)");
-  cmd->add_option("--keep", a->keep, "number of candidates (overrides search.keep)")->check(whole_range(1, 100));
-  cmd->add_option("--seed", a->seed, "seed of the perturbed starts (overrides search.seed)")->check(whole_range(0, 9007199254740991LL));  // the spec's search.seed range
-  cmd->add_option("--budget-s", a->budget_s, "escalation budget when the first pass meets nothing, seconds at a nominal "
-                                             "evaluation rate (counted in evaluations: deterministic; 0 = none; overrides search.budget_s)")
-      ->check(CLI::Range(0.0, 1e7));
-  cmd->add_option("--threads", a->threads, "worker threads, 0 = all cores (overrides search.threads)")->check(whole_range(0, 1024));
+  add_search_options(cmd, a->search, "seed of the perturbed starts (overrides search.seed)");
   cmd->callback([a] {
     select([a] {
       return guarded(a->spec, [&] {
@@ -39,18 +27,10 @@ void register_retune(CLI::App& app) {
         if (!spec.current) throw SpecError("$.current", "is missing: retune needs the compensator in service");
         RetuneOptions o = RetuneOptions::FromSpec(spec);
         o.allow_new_stages = a->allow_new;
-        if (a->keep > 0) o.keep = a->keep;
-        if (a->threads >= 0) o.threads = a->threads;
-        if (a->seed >= 0) o.seed = static_cast<unsigned long long>(a->seed);
-        if (a->budget_s >= 0.0) o.budget_s = a->budget_s;
-        std::string err;
-        if (!o.IsValid(&err)) throw SpecError("$.search", err);
+        apply_search_args(a->search, o);
+        require_valid(o);
         const RetuneReport rep = run_retune(spec, o);
-        const nlohmann::json j = retune_report_json(rep, a->timing);
-        if (!a->out.empty()) emit(a->out, j.dump(1) + "\n");
-        if (!a->report.empty()) emit(a->report, report_html(parse_result(j)));
-        if (a->json) emit("-", j.dump(1) + "\n");
-        else std::cout << retune_report_text(rep);
+        write_result(a->search, retune_report_json(rep, a->search.timing), [&] { return retune_report_text(rep); });
         return rep.met() ? kExitMet : kExitNotMet;
       });
     });

@@ -91,7 +91,8 @@ void register_sweep(CLI::App& app) {
       return guarded(a->file, [&] {
         const SweepFile f = parse_sweep(read_json_file(a->file));
         const Shard shard = resolve_shard(a->shard);
-        SweepStore store(a->out, f, shard, a->resume);
+        SweepStore store = naming_options({{"dir", "--out"}, {"resume", "--resume"}},
+                                          [&] { return SweepStore(a->out, f, shard, a->resume); });
         for (const std::string& w : f.warnings) std::fprintf(stderr, "polewright: warning: %s: %s\n", a->file.c_str(), w.c_str());
         for (const std::string& r : store.repairs()) std::fprintf(stderr, "polewright: %s\n", r.c_str());
         SweepRunOptions o;
@@ -152,7 +153,7 @@ void register_sweep(CLI::App& app) {
   merge->callback([m] {
     select([m] {
       return guarded(m->dirs.front(), [&] {
-        const MergeResult r = merge_sweep_dirs(m->dirs);
+        const MergeResult r = naming_options({{"dirs", "DIR"}}, [&] { return merge_sweep_dirs(m->dirs); });
         for (const std::string& d : r.dropped) std::fprintf(stderr, "polewright: merge: %s\n", d.c_str());
         emit(m->out, r.csv);
         if (!r.missing.empty()) {

@@ -5,7 +5,9 @@
 
 #include "commands.hpp"
 #include "outputs/atomic_file.hpp"
+#include "polewright/outputs/report.hpp"
 #include "polewright/requirements/spec.hpp"
+#include "polewright/requirements/spec_parse.hpp"
 
 namespace pw::cli {
 
@@ -51,6 +53,40 @@ CLI::Validator whole_range(long long lo, long long hi) {
         return "\"" + text + "\" is not a whole number within " + range;
       },
       "INT in " + range);
+}
+
+void add_result_options(CLI::App* cmd, SearchArgs& a, const std::string& timing_help) {
+  cmd->add_option("-o,--output", a.out, "write the result as JSON to this file (atomically)");
+  cmd->add_flag("--json", a.json, "print the JSON result to stdout instead of the table");
+  cmd->add_option("--report", a.report, "also write the HTML report to this file (atomically)");
+  cmd->add_flag("--timing", a.timing, timing_help);
+}
+
+void add_search_options(CLI::App* cmd, SearchArgs& a, const std::string& seed_help) {
+  cmd->add_option("--keep", a.keep, "number of candidates (overrides search.keep)")->check(whole_range(1, 100));
+  cmd->add_option("--seed", a.seed, seed_help)->check(whole_range(0, 9007199254740991LL));  // the spec's search.seed range
+  cmd->add_option("--budget-s", a.budget_s, "escalation budget when the first pass meets nothing, seconds at a nominal "
+                                            "evaluation rate (counted in evaluations: deterministic; 0 = none; overrides search.budget_s)")
+      ->check(CLI::Range(0.0, 1e7));
+  cmd->add_option("--threads", a.threads, "worker threads, 0 = all cores (overrides search.threads)")->check(whole_range(0, 1024));
+}
+
+void write_result(const SearchArgs& a, const nlohmann::json& result, const std::function<std::string()>& text) {
+  if (!a.out.empty()) emit(a.out, result.dump(1) + "\n");
+  if (!a.report.empty()) emit(a.report, report_html(parse_result(result)));
+  if (a.json) emit("-", result.dump(1) + "\n");
+  else std::cout << text();
+}
+
+SpecError with_option_names(const SpecError& e, OptionNames options) {
+  std::string path = e.path(), message = e.message();
+  for (const auto& [name, option] : options) {
+    if (path == name) path = option;
+    const std::string quoted = std::string("`") + name + "`";
+    for (size_t at = message.find(quoted); at != std::string::npos; at = message.find(quoted, at + 1))
+      message.replace(at, quoted.size(), option);
+  }
+  return SpecError(path, message);
 }
 
 void emit(const std::string& path, const std::string& content) {

@@ -41,6 +41,15 @@ RetuneOptions RetuneOptions::FromSpec(const Spec& spec) {
   return o;
 }
 
+const char* change_item_name(ChangeItem item) {
+  switch (item) {
+    case ChangeItem::Gain: return "gain";
+    case ChangeItem::Zero: return "zero";
+    case ChangeItem::Pole: return "pole";
+  }
+  return "gain";
+}
+
 namespace {
 
 bool cancelled(const RetuneOptions& o) { return o.cancel && o.cancel->load(std::memory_order_relaxed); }
@@ -128,7 +137,7 @@ std::vector<ParameterChange> change_list(const RetuneSpace& rs, const std::vecto
   const Zpk now = retune_to_zpk(rs, x);
   {
     ParameterChange g;
-    g.item = "gain";
+    g.item = ChangeItem::Gain;
     const double K0 = rs.factors[0].sign * std::pow(10.0, rs.current[0]), K1 = bode_gain(now);
     g.old_value = Complex(K0, 0.0);
     g.new_value = Complex(K1, 0.0);
@@ -141,7 +150,7 @@ std::vector<ParameterChange> change_list(const RetuneSpace& rs, const std::vecto
     const Factor& fa = rs.factors[f];
     const bool zero = fa.kind == FactorKind::RealZero || fa.kind == FactorKind::ZeroPair || fa.kind == FactorKind::OriginZero;
     ParameterChange c;
-    c.item = zero ? "zero" : "pole";
+    c.item = zero ? ChangeItem::Zero : ChangeItem::Pole;
     c.index = zero ? ++zi : ++pi;
     if (fa.kind == FactorKind::OriginZero || fa.kind == FactorKind::OriginPole) {
       c.old_value = c.new_value = Complex(0.0, 0.0);
@@ -180,9 +189,9 @@ std::vector<ParameterChange> change_list(const RetuneSpace& rs, const std::vecto
     sx.insert(sx.end(), x.begin() + p, x.begin() + p + dim);
     const Zpk st = retune_to_zpk(single, sx);
     for (const Complex& r : st.zeros)
-      if (r.imag() >= 0.0) out.push_back({"zero", ++zi, std::nullopt, r, std::nullopt, std::nullopt, 0.0, why});
+      if (r.imag() >= 0.0) out.push_back({ChangeItem::Zero, ++zi, std::nullopt, r, std::nullopt, std::nullopt, 0.0, why});
     for (const Complex& r : st.poles)
-      if (r.imag() >= 0.0) out.push_back({"pole", ++pi, std::nullopt, r, std::nullopt, std::nullopt, 0.0, why});
+      if (r.imag() >= 0.0) out.push_back({ChangeItem::Pole, ++pi, std::nullopt, r, std::nullopt, std::nullopt, 0.0, why});
     p += dim;
   }
   return out;

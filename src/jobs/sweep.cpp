@@ -95,6 +95,12 @@ const char* point_status_name(PointStatus s) {
   return "error";
 }
 
+std::optional<PointStatus> point_status_from_name(const std::string& name) {
+  for (PointStatus s : {PointStatus::Met, PointStatus::NotMet, PointStatus::BadPoint, PointStatus::Error})
+    if (name == point_status_name(s)) return s;
+  return std::nullopt;
+}
+
 bool SweepRunOptions::IsValid(std::string* error) const {
   if (threads < 0) {
     if (error) *error = "threads must be >= 0";

@@ -101,7 +101,7 @@ std::string report_html(const ReportData& d) {
   h += "<header class=\"pw-head\"><h1>" + xml_escape(d.name.empty() ? std::string("unnamed spec") : d.name) + "</h1>\n";
   if (d.sweep) {
     h += "<div class=\"pw-sub\">polewright sweep report &#183; <span class=\"pw-badge " + status + "\">" +
-         std::to_string(d.sweep->count("met")) + " of " + std::to_string(d.sweep->expected) + " points met</span> &#183; " +
+         std::to_string(d.sweep->count(PointStatus::Met)) + " of " + std::to_string(d.sweep->expected) + " points met</span> &#183; " +
          std::to_string(d.sweep->file.parameters.size()) + " parameter(s) &#183; " + xml_escape(sweep_job_name(d.sweep->file.job)) +
          " at every point</div></header>\n<main>\n";
   } else {

@@ -31,10 +31,10 @@ std::string parameter_text(const SweepParameter& p, SweepSample sample) {
   return s;
 }
 
-std::string status_html(const std::string& status) {
-  if (status == "met") return "<span class=\"pw-ok\">met</span>";
-  if (status == "not_met") return "<span class=\"pw-bad\">not met</span>";
-  return "<span class=\"pw-grey\">" + xml_escape(status == "bad_point" ? "bad point" : status) + "</span>";
+std::string status_html(PointStatus status) {
+  if (status == PointStatus::Met) return "<span class=\"pw-ok\">met</span>";
+  if (status == PointStatus::NotMet) return "<span class=\"pw-bad\">not met</span>";
+  return "<span class=\"pw-grey\">" + std::string(status == PointStatus::BadPoint ? "bad point" : point_status_name(status)) + "</span>";
 }
 
 // The metrics the table shows: those the base spec requires, and the mapped one.
@@ -83,7 +83,8 @@ std::string report_sweep_summary_section(const ReportData& d) {
   const SweepReport& r = *d.sweep;
   const SweepFile& f = r.file;
   const long long found = static_cast<long long>(r.points.size());
-  const long long met = r.count("met"), not_met = r.count("not_met"), bad = r.count("bad_point"), err = r.count("error");
+  const long long met = r.count(PointStatus::Met), not_met = r.count(PointStatus::NotMet), bad = r.count(PointStatus::BadPoint),
+                  err = r.count(PointStatus::Error);
   const std::vector<SweepCell> cells = sweep_cells(r);
   long long cells_met = 0;
   for (const SweepCell& c : cells) cells_met += c.category == 0;

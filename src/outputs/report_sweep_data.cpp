@@ -36,7 +36,7 @@ SweepReportPoint point_of(const SweepFile& f, const nlohmann::json& p) {
     const nlohmann::json v = params.is_object() ? params.value(s.name, none) : none;
     q.values.push_back(v.is_number() ? v.get<double>() : NAN);
   }
-  q.status = p["status"].is_string() ? p["status"].get<std::string>() : "error";
+  if (p["status"].is_string()) q.status = point_status_from_name(p["status"].get<std::string>()).value_or(PointStatus::Error);
   if (p.contains("structure") && p["structure"].is_string()) q.structure = p["structure"].get<std::string>();
   if (p.contains("message") && p["message"].is_string()) q.message = p["message"].get<std::string>();
   const bool has_metrics = p.contains("metrics") && p["metrics"].is_object();
@@ -61,10 +61,10 @@ std::string names_of(const SweepFile& f) {
   return s;
 }
 
-int parameter_index(const SweepFile& f, const std::string& name, const std::string& option) {
+int parameter_index(const SweepFile& f, const std::string& name, const std::string& field) {
   for (size_t i = 0; i < f.parameters.size(); ++i)
     if (f.parameters[i].name == name) return static_cast<int>(i);
-  throw SpecError(option, "\"" + name + "\" is not a parameter of the sweep (" + names_of(f) + ")");
+  throw SpecError(field, "\"" + name + "\" is not a parameter of the sweep (" + names_of(f) + ")");
 }
 
 bool varies(const SweepFile& f, const SweepParameter& p) {
@@ -91,7 +91,7 @@ MetricId default_map_metric(const SweepReport& r, const nlohmann::json& req) {
   std::vector<long long> fails(ids.size(), 0);
   long long asked = 0;
   for (const SweepReportPoint& p : r.points) {
-    if (p.status != "not_met") continue;
+    if (p.status != PointStatus::NotMet) continue;
     if (++asked > kMaxVotes) break;
     std::optional<nlohmann::json> spec;  // the point's own spec, made only when a limit needs it
     for (size_t i = 0; i < ids.size(); ++i) {
@@ -127,14 +127,14 @@ MetricId default_map_metric(const SweepReport& r, const nlohmann::json& req) {
 
 }  // namespace
 
-long long SweepReport::count(const std::string& status) const {
+long long SweepReport::count(PointStatus status) const {
   long long n = 0;
   for (const SweepReportPoint& p : points) n += p.status == status;
   return n;
 }
 
 SweepReport read_sweep_report(const std::vector<std::string>& dirs, const SweepReportOptions& o) {
-  if (dirs.empty()) throw SpecError("DIR", "the report needs a sweep directory");
+  if (dirs.empty()) throw SpecError("dirs", "the report needs a sweep directory");
   SweepReport r;
   r.dirs = dirs;
   nlohmann::json doc;
@@ -148,19 +148,19 @@ SweepReport read_sweep_report(const std::vector<std::string>& dirs, const SweepR
   const SweepFile& f = r.file;
 
   // Axes and metric.
-  if (f.parameters.size() < 2) throw SpecError("--x", "the sweep has one parameter; the map needs two");
+  if (f.parameters.size() < 2) throw SpecError("x", "the sweep has one parameter; the map needs two");
   std::vector<int> varying;
   for (size_t i = 0; i < f.parameters.size(); ++i)
     if (varies(f, f.parameters[i])) varying.push_back(static_cast<int>(i));
   for (size_t i = 0; i < f.parameters.size() && varying.size() < 2; ++i)
     if (std::find(varying.begin(), varying.end(), static_cast<int>(i)) == varying.end()) varying.push_back(static_cast<int>(i));
   // An axis left to its default takes the first varying parameter the other axis does not use.
-  const int given_x = o.x.empty() ? -1 : parameter_index(f, o.x, "--x");
-  const int given_y = o.y.empty() ? -1 : parameter_index(f, o.y, "--y");
+  const int given_x = o.x.empty() ? -1 : parameter_index(f, o.x, "x");
+  const int given_y = o.y.empty() ? -1 : parameter_index(f, o.y, "y");
   auto first_other = [&](int used) { return varying[0] == used ? varying[1] : varying[0]; };
   r.x = given_x >= 0 ? given_x : first_other(given_y);
   r.y = given_y >= 0 ? given_y : first_other(r.x);
-  if (r.x == r.y) throw SpecError(o.y.empty() ? "--x" : "--y", "\"" + f.parameters[static_cast<size_t>(r.x)].name + "\" is on both axes: choose two different parameters");
+  if (r.x == r.y) throw SpecError(o.y.empty() ? "x" : "y", "\"" + f.parameters[static_cast<size_t>(r.x)].name + "\" is on both axes: choose two different parameters");
   const nlohmann::json req = f.base.contains("requirements") && f.base["requirements"].is_object() ? f.base["requirements"] : nlohmann::json::object();
   if (!o.metric.empty()) {
     bool found = false;
@@ -172,7 +172,7 @@ SweepReport read_sweep_report(const std::vector<std::string>& dirs, const SweepR
         found = true;
       }
     }
-    if (!found) throw SpecError("--metric", "\"" + o.metric + "\" is not a metric (one of " + keys + ")");
+    if (!found) throw SpecError("metric", "\"" + o.metric + "\" is not a metric (one of " + keys + ")");
   }
 
   // Points, merged by index.
@@ -217,8 +217,8 @@ std::vector<SweepCell> sweep_cells(const SweepReport& r) {
     c.x = x;
     c.y = y;
     ++c.points;
-    if (p.status == "met") ++c.met;
-    else if (p.status == "not_met") ++c.not_met;
+    if (p.status == PointStatus::Met) ++c.met;
+    else if (p.status == PointStatus::NotMet) ++c.not_met;
     else ++c.failed;
     if (p.metrics[m]) {
       const double v = *p.metrics[m];

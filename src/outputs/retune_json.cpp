@@ -17,8 +17,8 @@ nlohmann::json root_value(const std::optional<Complex>& v, bool gain) {
 }  // namespace
 
 nlohmann::json change_json(const ParameterChange& c) {
-  const bool gain = c.item == "gain";
-  nlohmann::json j = {{"item", c.item},
+  const bool gain = c.item == ChangeItem::Gain;
+  nlohmann::json j = {{"item", change_item_name(c.item)},
                       {"index", c.index},
                       {"old", root_value(c.old_value, gain)},
                       {"new", root_value(c.new_value, gain)},

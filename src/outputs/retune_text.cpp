@@ -19,7 +19,7 @@ std::string value_text(const std::optional<Complex>& v) {
 std::string change_table(const RetuneCandidate& rc) {
   TextTable t({"item", "old", "new", "change", "driven by"});
   for (const ParameterChange& c : rc.changes) {
-    std::string item = c.item == "gain" ? "low-frequency gain" : c.item + " " + std::to_string(c.index);
+    std::string item = c.item == ChangeItem::Gain ? "low-frequency gain" : change_item_name(c.item) + (" " + std::to_string(c.index));
     std::string pct = c.old_value ? fmt_number(c.percent_change) + " %" : "added";
     if (c.old_damping && c.new_damping)
       pct += ", damping " + fmt_number(*c.old_damping) + " -> " + fmt_number(*c.new_damping);

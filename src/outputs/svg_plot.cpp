@@ -110,96 +110,70 @@ void Plot::add_legend(const std::string& label, const std::string& kind, const S
   legend_.push_back({label, kind, style, m});
 }
 
-void Plot::line(const std::vector<double>& xs, const std::vector<double>& ys, const Style& style, const std::string& legend) {
+Plot::Element& Plot::add_element(int layer, const char* kind, std::vector<double> xs, std::vector<double> ys,
+                                 const Style& style) {
   Element e;
-  e.layer = 2;
-  e.kind = "line";
-  e.xs = xs;
-  e.ys = ys;
+  e.layer = layer;
+  e.kind = kind;
+  e.xs = std::move(xs);
+  e.ys = std::move(ys);
   e.style = style;
   elements_.push_back(std::move(e));
+  return elements_.back();
+}
+
+void Plot::line(const std::vector<double>& xs, const std::vector<double>& ys, const Style& style, const std::string& legend) {
+  add_element(2, "line", xs, ys, style);
   add_legend(legend, "line", style);
 }
 
 void Plot::markers(const std::vector<double>& xs, const std::vector<double>& ys, Marker shape, double size,
                    const Style& style, const std::string& legend) {
-  Element e;
-  e.layer = 3;
-  e.kind = "markers";
-  e.xs = xs;
-  e.ys = ys;
-  e.style = style;
+  Element& e = add_element(3, "markers", xs, ys, style);
   e.marker = shape;
   e.size = size;
-  elements_.push_back(std::move(e));
   add_legend(legend, "markers", style, shape);
 }
 
 void Plot::fill(const std::vector<double>& xs, const std::vector<double>& ys, const Style& style, const std::string& legend) {
-  Element e;
-  e.layer = 0;
-  e.kind = "fill";
-  e.xs = xs;
-  e.ys = ys;
-  e.style = style;
-  elements_.push_back(std::move(e));
+  add_element(0, "fill", xs, ys, style);
   add_legend(legend, "fill", style);
 }
 
 void Plot::rects(const std::vector<std::vector<double>>& boxes, const Style& style, const std::string& legend) {
-  Element e;
-  e.layer = 0;
-  e.kind = "rects";
+  std::vector<double> xs, ys;
   for (const auto& b : boxes) {
     if (b.size() != 4) continue;
-    e.xs.push_back(b[0]);
-    e.xs.push_back(b[1]);
-    e.ys.push_back(b[2]);
-    e.ys.push_back(b[3]);
+    xs.push_back(b[0]);
+    xs.push_back(b[1]);
+    ys.push_back(b[2]);
+    ys.push_back(b[3]);
   }
-  e.style = style;
-  elements_.push_back(std::move(e));
+  add_element(0, "rects", std::move(xs), std::move(ys), style);
   add_legend(legend, "fill", style);
 }
 
 void Plot::hline(double yv, const Style& style, const std::string& note, const std::string& legend, double from, double to) {
-  Element e;
-  e.layer = 1;
-  e.kind = "hline";
-  e.xs = {from, to};
-  e.ys = {yv};
-  e.style = style;
-  e.text = note;
-  elements_.push_back(std::move(e));
+  add_element(1, "hline", {from, to}, {yv}, style).text = note;
   add_legend(legend, "line", style);
 }
 
 void Plot::vline(double xv, const Style& style, const std::string& note, const std::string& legend, bool note_at_bottom) {
-  Element e;
-  e.note_bottom = note_at_bottom;
-  e.layer = 1;
-  e.kind = "vline";
-  e.xs = {xv};
-  e.style = style;
+  Element& e = add_element(1, "vline", {xv}, {}, style);
   e.text = note;
-  elements_.push_back(std::move(e));
+  e.note_bottom = note_at_bottom;
   add_legend(legend, "line", style);
 }
 
 void Plot::note(double xv, double yv, const std::string& text, const std::string& colour, double dx, double dy,
                 const std::string& anchor, bool optional) {
-  Element e;
-  e.layer = 4;
-  e.kind = "note";
-  e.xs = {xv};
-  e.ys = {yv};
+  Element& e = add_element(4, "note", {xv}, {yv}, Style{});
   e.style.stroke = colour;
   e.text = text;
   e.dx = dx;
   e.dy = dy;
   e.anchor = anchor;
   e.optional = optional;
-  elements_.push_back(std::move(e));
 }
 
 std::string Plot::svg() const {

@@ -83,6 +83,8 @@ class Plot {
     Marker marker = Marker::Dot;
   };
   void add_legend(const std::string& label, const std::string& kind, const Style& style, Marker m = Marker::Dot);
+  // Appends an element with the fields every kind has; the caller sets the rest.
+  Element& add_element(int layer, const char* kind, std::vector<double> xs, std::vector<double> ys, const Style& style);
 
   double width_, height_;
   std::string title_;

@@ -258,16 +258,16 @@ SweepStore::SweepStore(const std::string& dir, const SweepFile& f, Shard shard, 
   std::error_code ec;
   fs::create_directories(dir, ec);
   if (!fs::is_directory(dir)) {
-    if (fs::exists(dir)) throw SpecError("--out", dir + " is not a directory");
-    throw SpecError("--out", dir + " cannot be created: " + (ec ? ec.message() : std::string("unknown error")));
+    if (fs::exists(dir)) throw SpecError("dir", dir + " is not a directory");
+    throw SpecError("dir", dir + " cannot be created: " + (ec ? ec.message() : std::string("unknown error")));
   }
   if (::access(dir.c_str(), W_OK) != 0)
-    throw SpecError("--out", dir + " is not writable: " + std::strerror(errno));
+    throw SpecError("dir", dir + " is not writable: " + std::strerror(errno));
   // One writer per directory: an exclusive lock held until the store closes (the kernel drops it
   // when the process dies, so a killed run never leaves a stale lock).
   const std::string lock = dir + "/sweep.lock";
   lock_fd_ = ::open(lock.c_str(), O_RDWR | O_CREAT | O_CLOEXEC, 0644);
-  if (lock_fd_ < 0) throw SpecError("--out", lock + ": cannot open: " + std::strerror(errno));
+  if (lock_fd_ < 0) throw SpecError("dir", lock + ": cannot open: " + std::strerror(errno));
   if (::flock(lock_fd_, LOCK_EX | LOCK_NB) != 0) {
     const int err = errno;
     std::string holder = read_text(lock);
@@ -275,9 +275,9 @@ SweepStore::SweepStore(const std::string& dir, const SweepFile& f, Shard shard, 
     ::close(lock_fd_);
     lock_fd_ = -1;
     if (err == EWOULDBLOCK)
-      throw SpecError("--out", dir + " is in use by another sweep run (" + (holder.empty() ? "holder unknown" : holder) +
+      throw SpecError("dir", dir + " is in use by another sweep run (" + (holder.empty() ? "holder unknown" : holder) +
                                    "); wait for it to end or use another directory");
-    throw SpecError("--out", lock + ": cannot lock: " + std::strerror(err));
+    throw SpecError("dir", lock + ": cannot lock: " + std::strerror(err));
   }
   try {
     open_locked(f, shard, resume);
@@ -311,10 +311,10 @@ void SweepStore::open_locked(const SweepFile& f, Shard shard, bool resume) {
     const nlohmann::json h = nlohmann::json::parse(read_text(header), nullptr, false);
     const bool same = !h.is_discarded() && h.contains("sweep") && h["sweep"] == f.document && h.contains("shard") &&
                       h["shard"].value("k", 0) == shard.k && h["shard"].value("n", 0) == shard.n;
-    if (!same) throw SpecError("--out", dir + " holds a different sweep or shard; use another directory");
-    if (!resume && has_points) throw SpecError("--out", dir + " already holds results of this sweep: add --resume to continue it");
+    if (!same) throw SpecError("dir", dir + " holds a different sweep or shard; use another directory");
+    if (!resume && has_points) throw SpecError("dir", dir + " already holds results of this sweep: use `resume` to continue it");
   } else {
-    if (has_points) throw SpecError("--out", dir + " holds points but no sweep.json: use another directory");
+    if (has_points) throw SpecError("dir", dir + " holds points but no sweep.json: use another directory");
     write_file_atomically(header, header_json(f, shard).dump(1) + "\n");
   }
   const long long total = f.point_count();
@@ -342,7 +342,7 @@ void SweepStore::open_locked(const SweepFile& f, Shard shard, bool resume) {
       unsigned long long& seen = hash_of[static_cast<size_t>(i)];
       if (seen != 0) {
         if (seen != h)
-          throw SpecError("--out", points + ": point " + std::to_string(i) + " appears twice with different results (line " +
+          throw SpecError("dir", points + ": point " + std::to_string(i) + " appears twice with different results (line " +
                                        std::to_string(number) + "); the directory was written by two runs: use another one");
         ++repeats;
         rewrite = true;
@@ -386,7 +386,7 @@ void SweepStore::open_locked(const SweepFile& f, Shard shard, bool resume) {
   }
   points_fd_ = ::open(points.c_str(), O_WRONLY | O_CREAT | O_APPEND | O_CLOEXEC, 0644);
   timings_fd_ = ::open((dir + "/timings.jsonl").c_str(), O_WRONLY | O_CREAT | O_APPEND | O_CLOEXEC, 0644);
-  if (points_fd_ < 0 || timings_fd_ < 0) throw SpecError("--out", dir + ": cannot open the result files: " + std::strerror(errno));
+  if (points_fd_ < 0 || timings_fd_ < 0) throw SpecError("dir", dir + ": cannot open the result files: " + std::strerror(errno));
   last_sync_ = now_s();
 }
 
@@ -447,7 +447,7 @@ void SweepStore::finish() {
 }
 
 MergeResult merge_sweep_dirs(const std::vector<std::string>& dirs) {
-  if (dirs.empty()) throw SpecError("DIR", "merge needs at least one sweep directory");
+  if (dirs.empty()) throw SpecError("dirs", "merge needs at least one sweep directory");
   nlohmann::json sweep_doc;
   for (const std::string& d : dirs) {
     const std::string header = d + "/sweep.json";

@@ -1,5 +1,7 @@
 #include <catch2/catch.hpp>
 
+#include <iterator>
+
 #include "polewright/jobs/check.hpp"
 #include "polewright/jobs/retune.hpp"
 #include "polewright/outputs/retune_output.hpp"
@@ -25,6 +27,15 @@ Spec spec_with(const char* text, const std::function<void(json&)>& edit = {}) {
   return parse_spec(j);
 }
 }  // namespace
+
+TEST_CASE("change items are written with the names the retune result schema allows", "[jobs][retune]") {
+  // The published contract: specs/retune-result.schema.json lists gain, zero, pole for "item".
+  const json schema = read_json_file(std::string(POLEWRIGHT_SOURCE_DIR) + "/specs/retune-result.schema.json");
+  const json allowed = schema.at(json::json_pointer("/$defs/candidate/properties/changes/items/properties/item/enum"));
+  const ChangeItem items[] = {ChangeItem::Gain, ChangeItem::Zero, ChangeItem::Pole};
+  REQUIRE(allowed.size() == std::size(items));
+  for (size_t i = 0; i < allowed.size(); ++i) CHECK(change_item_name(items[i]) == allowed[i].get<std::string>());
+}
 
 TEST_CASE("a loop that meets its requirements is left unchanged", "[jobs][retune]") {
   const Spec spec = spec_with(kOld);
@@ -60,14 +71,14 @@ TEST_CASE("tightening overshoot 15 % -> 8 %: the retune meets it with a smaller 
   // The change list: the gain, the zero and the integrator, each with old and new values; the
   // integrator stays put, and something is driven by the overshoot requirement.
   REQUIRE(best.changes.size() == 3);
-  CHECK(best.changes[0].item == "gain");
+  CHECK(best.changes[0].item == ChangeItem::Gain);
   // The change list's gain is the low-frequency gain: 0.3 (s + 4) / s has lim s C(s) = 1.2 (closed
   // form), and the text names it so, beside both gains of each compensator (issue 17).
   CHECK(best.changes[0].old_value->real() == Approx(1.2).epsilon(1e-12));
   const std::string text = retune_report_text(r);
   CHECK(text.find("low-frequency gain  1.2") != std::string::npos);
   CHECK(text.find("zero-pole gain 0.3, low-frequency gain 1.2") != std::string::npos);
-  CHECK(best.changes[2].item == "pole");
+  CHECK(best.changes[2].item == ChangeItem::Pole);
   CHECK(best.changes[2].new_value->real() == 0.0);
   bool overshoot_drives = false;
   for (const ParameterChange& c : best.changes) overshoot_drives = overshoot_drives || c.driven_by == "overshoot_pct.max";

@@ -147,6 +147,18 @@ TEST_CASE("the per-point wall-clock cap stops a long point and says so", "[jobs]
   CHECK(std::string(point_status_name(PointStatus::NotMet)) == "not_met");
 }
 
+TEST_CASE("point status names: the four of the points file (docs/manual.md), read back to the same status", "[jobs][sweep]") {
+  const std::pair<PointStatus, const char*> documented[] = {
+      {PointStatus::Met, "met"}, {PointStatus::NotMet, "not_met"}, {PointStatus::BadPoint, "bad_point"}, {PointStatus::Error, "error"}};
+  for (const auto& [status, name] : documented) {
+    CHECK(std::string(point_status_name(status)) == name);
+    CHECK(point_status_from_name(name) == status);
+  }
+  CHECK_FALSE(point_status_from_name("met "));
+  CHECK_FALSE(point_status_from_name("bad point"));
+  CHECK_FALSE(point_status_from_name(""));
+}
+
 TEST_CASE("a stop request cancels the points in flight; they are not delivered", "[jobs][sweep]") {
   const SweepFile f = small_sweep("design");
   std::atomic<bool> stop{false};

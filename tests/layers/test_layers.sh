@@ -2,7 +2,7 @@
 # The library's layering, checked on the sources (DEVELOPERS.md, "Layers"): each layer includes only
 # itself and the layers before it (model -> analysis -> requirements -> synthesis -> jobs ->
 # outputs), public headers include no private one, and the library names no command-line option
-# in the layers that had them (jobs, requirements: the CLI maps library errors to its flags), and
+# in the layers that had them (jobs, requirements, outputs: the CLI maps library errors to its flags), and
 # the umbrella header polewright/polewright.hpp includes every public header.
 #   tests/layers/test_layers.sh SOURCE_DIR
 set -uo pipefail
@@ -30,10 +30,11 @@ done
 while IFS= read -r hit; do
   echo "FAIL $hit: a public header includes a private header"; fail=$((fail + 1))
 done < <(grep -rnE '^\s*#\s*include\s+"' include/polewright | grep -vE '#\s*include\s+"polewright/')
-# No command-line option names in the jobs and requirements layers.
+# No command-line option names in the jobs, requirements and outputs layers.
 while IFS= read -r hit; do
   echo "FAIL $hit: a command-line option name in the library"; fail=$((fail + 1))
-done < <(grep -rnE '"--[a-z]' src/jobs src/requirements include/polewright/jobs include/polewright/requirements)
+done < <(grep -rnE '"--[a-z]' src/jobs src/requirements src/outputs include/polewright/jobs include/polewright/requirements \
+           include/polewright/outputs)
 # The umbrella header includes every public header.
 for h in include/polewright/*/*.hpp; do
   rel=${h#include/}

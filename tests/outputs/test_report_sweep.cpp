@@ -42,7 +42,7 @@ std::string run_sweep_into(const std::string& json, const std::string& name, Sha
   return dir;
 }
 
-SweepReportPoint point(long long i, double x, double y, const std::string& status, std::optional<double> overshoot) {
+SweepReportPoint point(long long i, double x, double y, PointStatus status, std::optional<double> overshoot) {
   SweepReportPoint p;
   p.index = i;
   p.values = {x, y, 0.0};
@@ -80,7 +80,7 @@ TEST_CASE("sweep report: both maps drawn, one cell per grid position, table and 
   size_t rows = 0;
   for (size_t p = table.find("<tr class=\"pw-point\">"); p != std::string::npos; p = table.find("<tr class=\"pw-point\">", p + 1)) ++rows;
   CHECK(rows == 24);
-  CHECK(r.count("met") + r.count("not_met") + r.count("bad_point") + r.count("error") == 24);
+  CHECK(r.count(PointStatus::Met) + r.count(PointStatus::NotMet) + r.count(PointStatus::BadPoint) + r.count(PointStatus::Error) == 24);
   CHECK(report_html(prepare_sweep_report({dir})) == html);  // deterministic
   std::filesystem::remove_all(dir);
 }
@@ -138,10 +138,10 @@ TEST_CASE("sweep aggregation: met only when every point met; worst metric over t
   r.y = 1;
   r.metric = MetricId::Overshoot;
   r.worst_is_max = true;
-  r.points = {point(0, 1, 1, "met", 5.0),     point(1, 1, 1, "met", 9.0),        // all met
-              point(2, 2, 1, "met", 3.0),     point(3, 2, 1, "not_met", 30.0),   // one missed
-              point(4, 1, 2, "met", 4.0),     point(5, 1, 2, "bad_point", {}),   // one could not run
-              point(6, 2, 2, "bad_point", {}), point(7, 2, 2, "not_met", 12.0)};
+  r.points = {point(0, 1, 1, PointStatus::Met, 5.0),     point(1, 1, 1, PointStatus::Met, 9.0),        // all met
+              point(2, 2, 1, PointStatus::Met, 3.0),     point(3, 2, 1, PointStatus::NotMet, 30.0),   // one missed
+              point(4, 1, 2, PointStatus::Met, 4.0),     point(5, 1, 2, PointStatus::BadPoint, {}),   // one could not run
+              point(6, 2, 2, PointStatus::BadPoint, {}), point(7, 2, 2, PointStatus::NotMet, 12.0)};
   const std::vector<SweepCell> c = sweep_cells(r);
   REQUIRE(c.size() == 4);  // ascending (x, y): (1,1) (1,2) (2,1) (2,2)
   CHECK(c[0].category == 0);
@@ -190,7 +190,7 @@ TEST_CASE("sweep report: shard directories are merged by index; missing points c
   std::filesystem::remove_all(two);
 }
 
-TEST_CASE("sweep report: bad options and directories name the option or the directory", "[outputs][report][sweep]") {
+TEST_CASE("sweep report: bad options and directories name the options field or the directory", "[outputs][report][sweep]") {
   const std::string dir = run_sweep_into(kSweep, "bad");
   auto path_of = [&](const SweepReportOptions& o, const std::vector<std::string>& dirs) {
     try {
@@ -200,12 +200,13 @@ TEST_CASE("sweep report: bad options and directories name the option or the dire
     }
     return std::string("no error");
   };
-  CHECK(path_of({"Q", "", ""}, {dir}) == "--x");
-  CHECK(path_of({"", "Q", ""}, {dir}) == "--y");
-  CHECK(path_of({"a", "a", ""}, {dir}) == "--y");
-  CHECK(path_of({"", "", "speed"}, {dir}) == "--metric");
+  CHECK(path_of({"Q", "", ""}, {dir}) == "x");
+  CHECK(path_of({"", "Q", ""}, {dir}) == "y");
+  CHECK(path_of({"a", "a", ""}, {dir}) == "y");
+  CHECK(path_of({"", "", "speed"}, {dir}) == "metric");
   CHECK(path_of({}, {dir + "/none"}) == dir + "/none");
-  // Only --y given: the x axis defaults to the first varying parameter not on y.
+  CHECK(path_of({}, {}) == "dirs");
+  // Only y given: the x axis defaults to the first varying parameter not on y.
   const SweepReport r = read_sweep_report({dir}, {"", "a", ""});
   CHECK(r.file.parameters[static_cast<size_t>(r.x)].name == "g");
   CHECK(r.file.parameters[static_cast<size_t>(r.y)].name == "a");
@@ -246,7 +247,7 @@ TEST_CASE("sweep table is cut at kSweepTableRows with a note", "[outputs][report
   auto r = std::make_shared<SweepReport>();
   r->file = parse_sweep(nlohmann::json::parse(kSweep));
   r->expected = 24;
-  for (long long i = 0; i < static_cast<long long>(kSweepTableRows) + 7; ++i) r->points.push_back(point(i, 1.0 + i, 1, "met", 1.0));
+  for (long long i = 0; i < static_cast<long long>(kSweepTableRows) + 7; ++i) r->points.push_back(point(i, 1.0 + i, 1, PointStatus::Met, 1.0));
   ReportData d;
   d.job = "sweep";
   d.sweep = r;

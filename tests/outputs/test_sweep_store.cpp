@@ -55,8 +55,9 @@ TEST_CASE("the store resumes: the torn line is cut, done points are known", "[ou
     st.append(run_sweep_point(f, pts, 1));
   }
   { std::ofstream(dir + "/points.jsonl", std::ios::app) << "{\"index\":2,"; }
-  // Without --resume the directory is refused; with it, two points are done and the tail is cut.
-  CHECK_THROWS_WITH(SweepStore(dir, f, {}, false), Catch::Contains("--resume"));
+  // Without resume the directory is refused (the message names the argument `resume`, which the
+  // CLI turns into its option); with it, two points are done and the tail is cut.
+  CHECK_THROWS_WITH(SweepStore(dir, f, {}, false), Catch::Contains("use `resume` to continue it"));
   SweepStore st(dir, f, {}, true);
   REQUIRE(st.repairs().size() == 1);
   CHECK_THAT(st.repairs()[0], Catch::Contains("cut a torn last line"));
@@ -114,7 +115,7 @@ TEST_CASE("one writer per sweep directory: a second store is refused naming the 
   {
     SweepStore first(dir, f, {}, false);
     const std::string e = error_of_store(dir, f, {}, true);
-    CHECK_THAT(e, Catch::StartsWith("--out: " + dir + " is in use by another sweep run (pid " + std::to_string(getpid()) + " on host "));
+    CHECK_THAT(e, Catch::StartsWith("dir: " + dir + " is in use by another sweep run (pid " + std::to_string(getpid()) + " on host "));
     CHECK_THAT(e, Catch::Contains("use another directory"));
     // A different shard or sweep is refused too (the lock is asked first).
     CHECK_THAT(error_of_store(dir, f, {2, 3}, true), Catch::Contains("in use"));
@@ -195,6 +196,8 @@ TEST_CASE("merge leaves out and reports lines that are not points of the sweep",
   CHECK(m.missing == std::vector<long long>{2});  // index 7 does not hide that point 2 is missing
   REQUIRE(m.dropped.size() == 1);
   CHECK_THAT(m.dropped[0], Catch::Contains("a torn last line; 1 corrupt line(s) (line 2); 1 line(s) with an index outside the sweep (index 7)"));
+  // No directory at all: the argument is blamed by its own name (the CLI names its DIR).
+  CHECK_THROWS_WITH(merge_sweep_dirs({}), Catch::StartsWith("dirs: "));
   std::filesystem::remove_all(std::filesystem::path(dir).parent_path());
 }
 

@@ -36,9 +36,13 @@ struct RetuneOptions {
   static RetuneOptions FromSpec(const Spec& spec);
 };
 
+// What one line of a candidate's change list moves.
+enum class ChangeItem { Gain, Zero, Pole };
+const char* change_item_name(ChangeItem item);  // "gain", "zero", "pole" (the JSON "item" and the text)
+
 // One line of a candidate's change list.
 struct ParameterChange {
-  std::string item;               // "gain", "zero" or "pole"
+  ChangeItem item = ChangeItem::Gain;
   int index = 0;                  // 1-based among the zeros (poles) of the new compensator's list
   std::optional<Complex> old_value, new_value;  // roots (a pair: the upper one); gain as real
   std::optional<double> old_damping, new_damping;  // complex pairs

@@ -18,6 +18,7 @@ namespace pw {
 // which); Error: an unexpected failure.
 enum class PointStatus { Met, NotMet, BadPoint, Error };
 const char* point_status_name(PointStatus s);  // "met", "not_met", "bad_point", "error" (the points file)
+std::optional<PointStatus> point_status_from_name(const std::string& name);  // the inverse; nullopt for others
 
 struct SweepPointResult {
   long long index = 0;

@@ -15,6 +15,7 @@
 #include <string>
 #include <vector>
 
+#include "polewright/jobs/sweep.hpp"
 #include "polewright/outputs/report.hpp"
 #include "polewright/requirements/metric.hpp"
 #include "polewright/requirements/sweep_parse.hpp"
@@ -24,7 +25,7 @@ namespace pw {
 struct SweepReportPoint {
   long long index = 0;
   std::vector<double> values;  // parameter order; NaN when missing
-  std::string status;          // met, not_met, bad_point, error
+  PointStatus status = PointStatus::Error;  // a status the file does not know reads as error
   std::string structure, message;
   std::array<std::optional<double>, kMetricCount> metrics{};  // worst over the plants; unbounded: +inf
   std::optional<double> change_decades;                        // retune sweeps
@@ -47,8 +48,8 @@ struct SweepReport {
   MetricId metric = MetricId::Overshoot;
   bool worst_is_max = true;              // how the metric is aggregated
   std::vector<std::string> torn;         // directories whose points file ended in a torn line (skipped)
-  long long count(const std::string& status) const;
-  bool all_met() const { return expected > 0 && count("met") == expected; }
+  long long count(PointStatus status) const;
+  bool all_met() const { return expected > 0 && count(PointStatus::Met) == expected; }
 };
 
 struct SweepReportOptions {
@@ -58,8 +59,8 @@ struct SweepReportOptions {
 // Reads the directories (one sweep; points merged by index, a point found twice must agree).
 // Defaults: the first two parameters with more than one value, and the metric of the base spec's
 // requirement that fails at the most points that missed (ties and all-met sweeps: the first
-// requirement in metric table order). Throws SpecError naming the directory or the option (--x,
-// --y, --metric) on bad input.
+// requirement in metric table order). Throws SpecError naming the directory, `dirs` (none given)
+// or the SweepReportOptions field (x, y, metric) on bad input.
 SweepReport read_sweep_report(const std::vector<std::string>& dirs, const SweepReportOptions& options = {});
 
 // The points gathered onto (x, y), in ascending (x, y).

@@ -59,6 +59,7 @@ class SweepStore {
   // A new sweep in `dir` (created if needed; an existing points file there is an error unless
   // `resume`). On resume the header must describe the same sweep and shard. The directory is
   // locked for the store's lifetime: a second store on it throws SpecError naming the holder.
+  // Errors blame the argument `dir` (a message names the argument `resume` as `resume`).
   SweepStore(const std::string& dir, const SweepFile& f, Shard shard, bool resume);
   ~SweepStore();
   SweepStore(const SweepStore&) = delete;
