@@ -28,6 +28,7 @@
 #include "polewright/analysis/step.hpp"
 
 #include "polewright/requirements/evaluate.hpp"
+#include "polewright/requirements/implementation.hpp"
 #include "polewright/requirements/metric.hpp"
 #include "polewright/requirements/region.hpp"
 #include "polewright/requirements/requirement_set.hpp"
