@@ -33,6 +33,7 @@
 #include "polewright/requirements/region.hpp"
 #include "polewright/requirements/requirement_set.hpp"
 #include "polewright/requirements/result_parse.hpp"
+#include "polewright/requirements/sampled_evaluate.hpp"
 #include "polewright/requirements/spec.hpp"
 #include "polewright/requirements/spec_parse.hpp"
 #include "polewright/requirements/spelling.hpp"
