@@ -29,10 +29,12 @@
 #include "polewright/analysis/step.hpp"
 
 #include "polewright/requirements/evaluate.hpp"
+#include "polewright/requirements/implementation.hpp"
 #include "polewright/requirements/metric.hpp"
 #include "polewright/requirements/region.hpp"
 #include "polewright/requirements/requirement_set.hpp"
 #include "polewright/requirements/result_parse.hpp"
+#include "polewright/requirements/sampled_evaluate.hpp"
 #include "polewright/requirements/spec.hpp"
 #include "polewright/requirements/spec_parse.hpp"
 #include "polewright/requirements/spelling.hpp"

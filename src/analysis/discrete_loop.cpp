@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <functional>
 #include <stdexcept>
 
 #include <Eigen/Sparse>
@@ -22,6 +23,7 @@ bool DiscreteLoopOptions::IsValid(std::string* error) const {
   if (!(band > 0.0 && band < 1.0)) return fail("band must be within (0, 1)");
   if (!(residue_share > 0.0 && residue_share < 1.0)) return fail("residue_share must be within (0, 1)");
   if (min_samples < 0 || max_samples < 10 || min_samples > max_samples) return fail("need 0 <= min_samples <= max_samples, max_samples >= 10");
+  if (points_per_sample < 4 || points_per_sample > 1000) return fail("points_per_sample must be within 4..1000");
   return frequency.IsValid(error);
 }
 
@@ -320,6 +322,210 @@ StepMetrics sampled_step(const DLoop& cl, double y_final, const std::vector<Disc
   return m;
 }
 
+
+// The continuous plant output between the samples of the step response (see
+// DiscreteLoopOptions::between_samples). The plant's own states sit at [nc, nc + nx) of the loop
+// state and are its continuous states at the instants; inside interval k the plant input is
+// u[k - n - 1] on [0, delta) and u[k - n] on [delta, T) (dead time n T + delta).
+void between_samples(const DLoop& cl, int nc, const StateSpace& g, const SampledPlant& sp, double y_final,
+                     const DiscreteLoopOptions& o, StepMetrics& m) {
+  const int n = m.samples;
+  if (n < 2) return;
+  const double T = o.sample_time_s;
+  const int nx = g.states();
+  const int n0 = sp.delay_samples;
+  const double delta = sp.fraction * T;
+  // Loop simulation again, keeping the plant states and u.
+  std::vector<double> u(static_cast<size_t>(n));
+  DMat X(std::max(nx, 1), n);
+  {
+    Eigen::VectorXd x = Eigen::VectorXd::Zero(cl.states());
+    const Eigen::SparseMatrix<double> A = cl.A.sparseView();
+    for (int k = 0; k < n; ++k) {
+      u[static_cast<size_t>(k)] = cl.Cu.dot(x) + cl.Du;
+      if (nx > 0) X.col(k) = x.segment(nc, nx);
+      x = A * x + cl.B;
+    }
+  }
+  auto u_at = [&](int j) { return j >= 0 ? u[static_cast<size_t>(j)] : 0.0; };
+  const DRow Cc = g.C;
+  const double Dc = g.D;
+  // Segments of one interval: {start offset, length, which input (1: u[k-n-1], 0: u[k-n])}.
+  struct Seg {
+    double start, length;
+    int lag;
+  };
+  std::vector<Seg> segs;
+  if (delta > 0.0) segs.push_back({0.0, delta, 1});
+  segs.push_back({delta, T - delta, 0});
+  // Points per interval: at most points_per_sample, fewer when the horizon is very long.
+  const double budget = 2e8 / (static_cast<double>(n) * (nx + 1.0) * (nx + 1.0));
+  const int M = std::max(4, std::min(o.points_per_sample, static_cast<int>(budget)));
+  struct Map {
+    DMat P;
+    DVec G;
+  };
+  auto map_of = [&](double h) {
+    Map mp;
+    if (nx == 0) return mp;
+    const Mat E = zoh_exponential(g.A, g.B, h);
+    mp.P = E.topLeftCorner(nx, nx);
+    mp.G = E.topRightCorner(nx, 1);
+    return mp;
+  };
+  std::vector<int> steps;
+  std::vector<Map> maps, seg_maps;
+  for (const Seg& sg : segs) {
+    const int ms = std::max(1, static_cast<int>(std::lround(M * sg.length / T)));
+    steps.push_back(ms);
+    maps.push_back(map_of(sg.length / ms));
+    seg_maps.push_back(map_of(sg.length));
+  }
+  // Dense points: time, y, and where (interval, segment, step).
+  struct Pt {
+    double t, y;
+    int k, seg, j;
+  };
+  std::vector<Pt> pts;
+  pts.reserve(static_cast<size_t>(n - 1) * static_cast<size_t>(M + 2) + 1);
+  auto seg_start_state = [&](int k, size_t s) {
+    DVec x = nx > 0 ? DVec(X.col(k)) : DVec();
+    for (size_t q = 0; q < s; ++q)
+      if (nx > 0) x = seg_maps[q].P * x + seg_maps[q].G * u_at(k - n0 - segs[q].lag);
+    return x;
+  };
+  for (int k = 0; k + 1 < n; ++k) {
+    DVec x = nx > 0 ? DVec(X.col(k)) : DVec();
+    for (size_t s = 0; s < segs.size(); ++s) {
+      const double v = u_at(k - n0 - segs[s].lag);
+      const double h = segs[s].length / steps[s];
+      for (int j = 0; j < steps[s]; ++j) {
+        const double y = (nx > 0 ? Cc.dot(x) : 0.0) + Dc * v;
+        pts.push_back({k * T + segs[s].start + j * h, y, k, static_cast<int>(s), j});
+        if (nx > 0) x = maps[s].P * x + maps[s].G * v;
+      }
+    }
+  }
+  {
+    const double y_last = (nx > 0 ? Cc.dot(DVec(X.col(n - 1))) : 0.0) + Dc * u_at(n - 1 - n0 - (delta > 0.0 ? 1 : 0));
+    pts.push_back({(n - 1) * T, y_last, n - 1, 0, 0});
+  }
+  // Exact y at offset r into segment s of interval k.
+  auto exact = [&](int k, int s, double r) {
+    const double v = u_at(k - n0 - segs[static_cast<size_t>(s)].lag);
+    if (nx == 0) return Dc * v;
+    const DVec x0 = seg_start_state(k, static_cast<size_t>(s));
+    const Mat E = zoh_exponential(g.A, g.B, r);
+    const DVec x = DMat(E.topLeftCorner(nx, nx)) * x0 + DVec(E.topRightCorner(nx, 1)) * v;
+    return Cc.dot(x) + Dc * v;
+  };
+  // Golden-section maximum of f on the segment of dense point i, over [its offset - h, + h]
+  // clipped to the segment (the part before it belongs to the previous point's segment).
+  auto refine_max = [&](size_t i, const std::function<double(double)>& f) {
+    std::pair<double, double> best{pts[i].t, f(pts[i].y)};
+    auto search = [&](const Pt& p, double lo, double hi) {
+      const Seg& sg = segs[static_cast<size_t>(p.seg)];
+      const double base = p.k * T + sg.start;
+      lo = std::max(lo, 0.0);
+      hi = std::min(hi, sg.length);
+      if (!(hi > lo)) return;
+      const double gr = 0.5 * (std::sqrt(5.0) - 1.0);
+      double a = lo, b = hi, c = b - gr * (b - a), d = a + gr * (b - a);
+      double fc = f(exact(p.k, p.seg, c)), fd = f(exact(p.k, p.seg, d));
+      for (int it = 0; it < 40 && b - a > 1e-12 * T; ++it) {
+        if (fc >= fd) {
+          b = d; d = c; fd = fc; c = b - gr * (b - a); fc = f(exact(p.k, p.seg, c));
+        } else {
+          a = c; c = d; fc = fd; d = a + gr * (b - a); fd = f(exact(p.k, p.seg, d));
+        }
+      }
+      const double r = fc >= fd ? c : d, val = std::max(fc, fd);
+      if (val > best.second) best = {base + r, val};
+    };
+    const Pt& p = pts[i];
+    const double h = segs[static_cast<size_t>(p.seg)].length / steps[static_cast<size_t>(p.seg)];
+    const double off = p.t - (p.k * T + segs[static_cast<size_t>(p.seg)].start);
+    if (p.k + 1 < n) search(p, off, off + h);
+    if (i > 0) {
+      const Pt& q = pts[i - 1];
+      const double hq = segs[static_cast<size_t>(q.seg)].length / steps[static_cast<size_t>(q.seg)];
+      const double offq = q.t - (q.k * T + segs[static_cast<size_t>(q.seg)].start);
+      search(q, offq, offq + hq);
+    }
+    return best;
+  };
+  const double yf = y_final, ay = std::abs(yf), sgn = yf >= 0.0 ? 1.0 : -1.0;
+  if (!(ay > 0.0)) return;
+  // Overshoot: the three largest local maxima of sgn y on the dense grid, refined.
+  {
+    std::vector<size_t> peaks;
+    for (size_t i = 0; i < pts.size(); ++i) {
+      const double v = sgn * pts[i].y;
+      const bool left = i == 0 || v >= sgn * pts[i - 1].y, right = i + 1 == pts.size() || v >= sgn * pts[i + 1].y;
+      if (left && right) peaks.push_back(i);
+    }
+    std::sort(peaks.begin(), peaks.end(), [&](size_t a, size_t b) { return sgn * pts[a].y > sgn * pts[b].y; });
+    if (peaks.size() > 3) peaks.resize(3);
+    double peak = -INFINITY, tpeak = 0.0;
+    for (size_t i : peaks) {
+      const auto r = refine_max(i, [&](double y) { return sgn * y; });
+      if (r.second > peak) {
+        peak = r.second;
+        tpeak = r.first;
+      }
+    }
+    double under = 0.0;
+    for (const Pt& p : pts) under = std::max(under, -sgn * p.y);
+    m.overshoot_pct = std::max(0.0, 100.0 * (peak - ay) / ay);
+    m.peak_time_s.reset();
+    if (peak > ay) m.peak_time_s = tpeak;
+    m.undershoot_pct = std::max(m.undershoot_pct, 100.0 * under / ay);
+  }
+  // Settling: the last time |y - y_f| exceeds the band, with hidden excursions after the last dense
+  // point outside it (a local maximum of |y - y_f| above half the band, refined) and the crossing
+  // back into the band bisected on the exact map.
+  {
+    const double band = o.band * ay;
+    auto err = [&](double y) { return std::abs(y - yf); };
+    long last = -1;
+    for (long i = static_cast<long>(pts.size()) - 1; i >= 0; --i)
+      if (err(pts[static_cast<size_t>(i)].y) > band) {
+        last = i;
+        break;
+      }
+    double t_out = last >= 0 ? pts[static_cast<size_t>(last)].t : 0.0;
+    size_t from = last >= 0 ? static_cast<size_t>(last) : 0;
+    bool outside = last >= 0;
+    for (size_t i = pts.size() - 1; i > from; --i) {
+      const double e = err(pts[i].y);
+      const bool local = e >= err(pts[i - 1].y) && (i + 1 == pts.size() || e >= err(pts[i + 1].y));
+      if (!local || e <= 0.5 * band) continue;
+      const auto r = refine_max(i, err);
+      if (r.second > band) {
+        t_out = r.first;
+        outside = true;
+        break;
+      }
+    }
+    if (!outside) m.settling_time_s = 0.0;
+    else if (t_out >= pts.back().t) m.settling_time_s.reset();
+    else {
+      // The point at t_out lies in the segment of the last dense point at or before it; the next
+      // dense point is inside the band.
+      size_t i = 0;
+      while (i + 1 < pts.size() && pts[i + 1].t <= t_out) ++i;
+      const Pt& p = pts[i];
+      const double base = p.k * T + segs[static_cast<size_t>(p.seg)].start;
+      double a = t_out - base, b = pts[i + 1].t - base;
+      for (int it = 0; it < 50 && b - a > 1e-12 * T; ++it) {
+        const double mid = 0.5 * (a + b);
+        (err(exact(p.k, p.seg, mid)) > band ? a : b) = mid;
+      }
+      m.settling_time_s = base + b;
+    }
+  }
+}
+
 int roots_at_one(const Roots& r) {
   int n = 0;
   for (const Complex& z : r) n += std::abs(z - 1.0) <= 1e-12;
@@ -407,6 +613,13 @@ DiscreteLoopAnalysis analyze_discrete_loop(const Zpk& cd, const Plant& plant, co
       break;
     }
   if (a.stable) a.step = sampled_step(cl, y_final, a.poles, T, o, a.step_truncated);
+  if (a.step && o.between_samples) {
+    a.step_at_samples = a.step;
+    a.step_at_samples->trace = StepTrace{};
+    const StateSpace g = realize(plant.tf);
+    const int nc = cl.states() - plant_system(sp).states();
+    between_samples(cl, nc, g, sp, y_final, o, *a.step);
+  }
 
   // Frequency response on (0, pi / T): frequency_grid placed by the plant's roots and the
   // s-plane equivalents ln(z) / T of the compensator's roots, limited below Nyquist, plus a dense

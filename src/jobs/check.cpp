@@ -93,6 +93,13 @@ CheckReport run_check(const Spec& spec, const Zpk& compensator, const CheckOptio
   for (size_t i = 0; i < spec.plants.size(); ++i) check_cancellations(compensator, spec.plants[i], options.compensator_path);
   r.evaluation = evaluate_all(compensator, spec.plants, spec.requirements, r.region, r.analysis);
   r.warnings = conditioning_warnings(spec.document);
+  if (spec.implementation) {
+    r.sampled = evaluate_sampled(compensator, spec.plants, spec.requirements, r.region, r.analysis, *spec.implementation,
+                                 r.evaluation);
+    r.continuous = std::move(r.evaluation);
+    r.evaluation = r.sampled->evaluation;
+    for (const std::string& w : r.sampled->warnings) r.warnings.push_back(w);
+  }
   r.locus = root_locus(make_loop_parts(compensator, spec.plants.front(), spec.analysis.pade_order), options.locus);
   return r;
 }

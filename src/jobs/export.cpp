@@ -46,43 +46,6 @@ std::string fmt(const char* f, double a, double b = 0.0, double c = 0.0) {
 
 }  // namespace
 
-GainToleranceResult discrete_gain_tolerance(const Zpk& cd, const SampledPlant& sp, const Region& region, double share) {
-  // The continuous definition on the sampled loop: stable, and the poles that matter (mapped to
-  // s = ln(z) / T) inside the region. Poles at z = 0 are infinitely fast and always inside.
-  return gain_tolerance_scan([&](double k) {
-    const DiscretePoles dp = discrete_closed_loop_poles(cd, sp, k, share);
-    if (!dp.well_posed || !dp.stable) return false;
-    std::vector<PoleInfo> poles;
-    for (const DiscretePole& p : dp.poles) {
-      if (std::abs(p.z) == 0.0) continue;
-      PoleInfo q;
-      q.pole = p.s;
-      q.damping = p.damping;
-      q.natural_frequency = p.natural_frequency;
-      q.share = p.share;
-      q.matters = p.matters;
-      poles.push_back(q);
-    }
-    return region_holds(region, poles);
-  });
-}
-
-MetricValues discrete_metric_values(const DiscreteLoopAnalysis& a) {
-  // The same assignment as the continuous loop's (requirements/evaluate.hpp), from the sampled
-  // loop's figures: poles mapped by s = ln(z) / T, L(e^{jwT}), the discrete error constants, the
-  // step at the sample instants.
-  MetricValues v{};
-  double min_damping = INFINITY;
-  for (const DiscretePole& p : a.poles)
-    if (p.matters) min_damping = std::min(min_damping, p.damping);
-  set_pole_metrics(v, min_damping, a.dominant ? std::optional<double>(a.dominant->natural_frequency) : std::nullopt);
-  if (a.well_posed) set_frequency_metrics(v, a.frequency);
-  if (!a.stable) return v;
-  set_steady_state_metrics(v, a.steady_state);
-  if (a.step) set_step_metrics(v, *a.step);
-  return v;
-}
-
 namespace {
 // Least crossover frequency times T (rad per sample) for which the sampled loop is evaluated.
 constexpr double kMinCrossoverTimesT = 1e-8;

@@ -119,16 +119,10 @@ nlohmann::json locus_json(const Locus& l) {
   return j;
 }
 
-nlohmann::json check_report_json(const CheckReport& r) {
-  const Evaluation& ev = r.evaluation;
-  nlohmann::json j;
-  j["tool"] = {{"name", "polewright"}, {"version", kToolVersion}, {"job", "check"}};
-  j["name"] = r.spec_name;
-  j["status"] = ev.all_met ? "met" : "not_met";
-  j["stable"] = ev.all_stable;
-  j["compensator"] = json_compensator(r.compensator);
-  j["pid_form"] = json_pid_form(r.compensator);
-  j["region"] = region_json(r.region);
+namespace {
+
+// The requirement rows, the worst case and the per-plant figures of one evaluation.
+void add_outcomes_json(nlohmann::json& j, const Evaluation& ev) {
   nlohmann::json rows = nlohmann::json::array();
   nlohmann::json wm = nlohmann::json::object(), wmet = nlohmann::json::object(), wmargin = nlohmann::json::object(),
                  wvar = nlohmann::json::object();
@@ -161,6 +155,70 @@ nlohmann::json check_report_json(const CheckReport& r) {
   nlohmann::json variants = nlohmann::json::array();
   for (const LoopEvaluation& e : ev.plants) variants.push_back(loop_evaluation_json(e));
   j["variants"] = variants;
+}
+
+nlohmann::json roots_json(const Roots& rs) {
+  nlohmann::json a = nlohmann::json::array();
+  for (const Complex& c : rs) a.push_back(json_complex(c));
+  return a;
+}
+
+// The implementation and the z-plane view of the sampled loop.
+nlohmann::json sampled_json(const SampledEvaluation& s) {
+  const Implementation& im = s.implementation;
+  nlohmann::json j;
+  j["label"] = sampled_label(im);
+  j["sample_time_s"] = json_number(im.sample_time_s);
+  j["method"] = discrete_method_name(im.method);
+  j["warp_rad_s"] = s.compensator.warp_rad_s ? json_number(*s.compensator.warp_rad_s) : nlohmann::json(nullptr);
+  j["compute_delay_samples"] = json_number(im.compute_delay_samples);
+  j["word_length"] = word_length_name(im.word_length);
+  j["nyquist_rad_s"] = json_number(M_PI / im.sample_time_s);
+  j["discrete_compensator"] = {{"gain", json_number(s.compensator.discrete.gain)},
+                               {"zeros_z", roots_json(s.compensator.discrete.zeros)},
+                               {"poles_z", roots_json(s.compensator.discrete.poles)}};
+  j["figures"] = "requirements, worst, variants and closed_loop_poles are of the sampled loop (closed-loop poles as "
+                 "s = ln(z) / T; step figures of the continuous output between the samples); continuous holds the "
+                 "continuous loop's";
+  nlohmann::json loops = nlohmann::json::array();
+  for (const SampledLoopEvaluation& l : s.loops) {
+    nlohmann::json z = nlohmann::json::array();
+    for (const DiscretePole& p : l.analysis.poles)
+      z.push_back({{"re", json_number(p.z.real())}, {"im", json_number(p.z.imag())}, {"abs", json_number(std::abs(p.z))},
+                   {"step_share", json_number(p.share)}, {"matters", p.matters}});
+    nlohmann::json at = nullptr;
+    if (const auto& st = l.analysis.step_at_samples)
+      at = {{"overshoot_pct", json_number(st->overshoot_pct)}, {"settling_time_s", json_number(st->settling_time_s)},
+            {"peak_time_s", json_number(st->peak_time_s)}, {"undershoot_pct", json_number(st->undershoot_pct)}};
+    loops.push_back({{"plant", l.loop.plant_name}, {"closed_loop_poles_z", z}, {"states", l.analysis.states},
+                     {"step_truncated", l.analysis.step_truncated}, {"step_at_samples", at}});
+  }
+  j["loops"] = loops;
+  return j;
+}
+
+}  // namespace
+
+nlohmann::json check_report_json(const CheckReport& r) {
+  const Evaluation& ev = r.evaluation;
+  nlohmann::json j;
+  j["tool"] = {{"name", "polewright"}, {"version", kToolVersion}, {"job", "check"}};
+  j["name"] = r.spec_name;
+  j["status"] = ev.all_met ? "met" : "not_met";
+  j["stable"] = ev.all_stable;
+  j["compensator"] = json_compensator(r.compensator);
+  j["pid_form"] = json_pid_form(r.compensator);
+  j["region"] = region_json(r.region);
+  add_outcomes_json(j, ev);
+  if (r.sampled && r.continuous) {
+    j["sampled"] = sampled_json(*r.sampled);
+    nlohmann::json c;
+    c["status"] = r.continuous->all_met ? "met" : "not_met";
+    c["stable"] = r.continuous->all_stable;
+    add_outcomes_json(c, *r.continuous);
+    c["closed_loop_poles"] = pole_list_json(r.continuous->plants.front().poles);
+    j["continuous"] = c;
+  }
   const LoopEvaluation& nominal = ev.plants.front();
   j["closed_loop_poles"] = pole_list_json(nominal.poles);
   j["gain_interval"] = gain_interval_json(nominal.gain);

@@ -31,12 +31,27 @@ std::string check_report_text(const CheckReport& r) {
   out += "plants       " + std::to_string(r.plants.size()) + " (nominal";
   if (r.plants.size() > 1) out += " + " + std::to_string(r.plants.size() - 1) + " variants";
   out += ")\n";
+  const bool sampled = r.sampled && r.continuous;
+  if (sampled) {
+    out += "loop         " + sampled_label(r.sampled->implementation) +
+           ": every figure below is of the sampled loop (poles as s = ln(z) / T, step figures between the samples too), "
+           "the continuous loop's worst value beside it\n";
+    out += "discrete     Cd(z) gain " + fmt_number(r.sampled->compensator.discrete.gain, 6) + ", " +
+           std::to_string(r.sampled->compensator.discrete.zeros.size()) + " zeros, " +
+           std::to_string(r.sampled->compensator.discrete.poles.size()) + " poles in z" +
+           (r.sampled->compensator.warp_rad_s ? ", warped at " + fmt_number(*r.sampled->compensator.warp_rad_s, 6) + " rad/s" : std::string()) +
+           "\n";
+  }
   for (const std::string& w : r.warnings) out += "warning      " + w + "\n";
   out += "\n";
 
-  TextTable t({"requirement", "limit", "worst value", "margin", "met", "worst plant"});
+  std::vector<std::string> cols = {"requirement", "limit", sampled ? "worst value (sampled)" : "worst value", "margin", "met",
+                                   "worst plant"};
+  if (sampled) cols.push_back("continuous");
+  TextTable t(cols);
   int missed = 0;
-  for (const RequirementOutcome& o : ev.outcomes) {
+  for (size_t oi = 0; oi < ev.outcomes.size(); ++oi) {
+    const RequirementOutcome& o = ev.outcomes[oi];
     const MetricInfo& info = metric_info(o.requirement.metric);
     const std::string limit = std::string(o.requirement.sense == Sense::AtMost ? "<= " : ">= ") +
                               with_unit(fmt_number(o.requirement.limit), info.unit);
@@ -48,7 +63,15 @@ std::string check_report_text(const CheckReport& r) {
     std::string margin = "-";
     if (o.worst.value) margin = with_unit(fmt_margin(o.requirement, *o.worst.value), info.unit);
     if (!o.met) ++missed;
-    t.add({info.key, limit, value, margin, o.met ? "yes" : "NO", r.plants[static_cast<size_t>(o.worst_plant)].name});
+    std::vector<std::string> row = {info.key, limit, value, margin, o.met ? "yes" : "NO",
+                                    r.plants[static_cast<size_t>(o.worst_plant)].name};
+    if (sampled) {
+      const RequirementOutcome& c = r.continuous->outcomes[oi];
+      row.push_back(c.worst.infinite ? "unbounded"
+                                     : with_unit(c.worst.value ? fmt_number(*c.worst.value) : std::string("-"), info.unit) +
+                                           (c.met ? "" : " (missed)"));
+    }
+    t.add(row);
   }
   out += t.render();
 
@@ -58,7 +81,7 @@ std::string check_report_text(const CheckReport& r) {
 
   for (size_t i = 0; i < ev.plants.size(); ++i) {
     const LoopEvaluation& e = ev.plants[i];
-    out += "\nclosed-loop poles, " + e.plant_name +
+    out += std::string("\nclosed-loop poles") + (sampled ? " (sampled loop, s = ln(z) / T)" : "") + ", " + e.plant_name +
            (e.stable ? "" : (e.poles.marginal ? "  ** MARGINAL: NOT STABLE **" : "  ** UNSTABLE **")) + "\n";
     if (e.poles.marginal)
       out += "  the pole " + pole_text(e.poles.marginal_pole) +
@@ -102,7 +125,7 @@ std::string check_report_text(const CheckReport& r) {
     out += " (" + fmt_number(g.lo) + ", " + (g.hi ? fmt_number(*g.hi) : std::string("no upper limit")) + ")";
   out += "\n";
 
-  out += "\nverdict: ";
+  out += sampled ? "\nverdict (" + sampled_label(r.sampled->implementation) + "): " : std::string("\nverdict: ");
   if (ev.all_met) out += "MET: every requirement holds for every plant\n";
   else if (!ev.all_stable) {
     bool marginal_only = true;

@@ -162,13 +162,17 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
 
 Evaluation evaluate_all(const Zpk& comp, const std::vector<Plant>& plants, const RequirementSet& req,
                         const Region& region, const AnalysisOptions& opt, const EvaluationNeeds& needs) {
+  std::vector<LoopEvaluation> loops;
+  for (const Plant& p : plants) loops.push_back(evaluate_loop(comp, p, req, region, opt, needs));
+  return evaluation_of(std::move(loops), req);
+}
+
+Evaluation evaluation_of(std::vector<LoopEvaluation> loops, const RequirementSet& req) {
   Evaluation ev;
+  ev.plants = std::move(loops);
   ev.all_stable = true;
-  for (const Plant& p : plants) {
-    ev.plants.push_back(evaluate_loop(comp, p, req, region, opt, needs));
-    ev.all_stable = ev.all_stable && ev.plants.back().stable;
-  }
-  std::vector<double> per_plant(plants.size(), 0.0);
+  for (const LoopEvaluation& e : ev.plants) ev.all_stable = ev.all_stable && e.stable;
+  std::vector<double> per_plant(ev.plants.size(), 0.0);
   ev.all_met = ev.all_stable;
   std::vector<double> viols;
   for (const Requirement& r : req.items) {

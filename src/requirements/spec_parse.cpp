@@ -28,7 +28,7 @@ const char* objective_name(Objective o) {
 
 const std::vector<std::string>& known_keys(const std::string& kind) {
   static const std::map<std::string, std::vector<std::string>> table = {
-      {"spec", {"$schema", "name", "plant", "requirements", "stages", "current", "search", "analysis"}},
+      {"spec", {"$schema", "name", "plant", "requirements", "stages", "current", "search", "analysis", "implementation"}},
       {"plant", {"numerator", "denominator", "zeros", "poles", "gain", "delay_s", "variants"}},
       {"plant_core", {"numerator", "denominator", "zeros", "poles", "gain", "delay_s"}},
       {"variant", {"numerator", "denominator", "zeros", "poles", "gain", "delay_s", "name"}},
@@ -40,6 +40,7 @@ const std::vector<std::string>& known_keys(const std::string& kind) {
       {"stages", {"lead", "lag", "notch", "integrator", "frequency_range_rad_s"}},
       {"search", {"seed", "keep", "objective", "threads", "max_evaluations", "time_limit_s", "budget_s", "margin_pct"}},
       {"analysis", {"pade_order", "samples", "horizon_s", "residue_share_pct"}},
+      {"implementation", implementation_keys()},
       {"settling_time_s", {"max", "band_pct"}},
       {"steady_state_error", {"max", "input"}},
       {"max_only", {"max"}},
@@ -294,6 +295,7 @@ Spec parse_spec(const json& doc) {
   if (const json* v = member(doc, "current")) s.current = parse_compensator(*v, "$.current");
   if (const json* v = member(doc, "search")) s.search = parse_search(*v, "$.search");
   if (const json* v = member(doc, "analysis")) s.analysis = parse_analysis(*v, "$.analysis");
+  if (const json* v = member(doc, "implementation")) s.implementation = parse_implementation(*v, "$.implementation");
   s.analysis.step.band = s.requirements.settling_band;
   s.document = doc;
   return s;

@@ -199,3 +199,90 @@ TEST_CASE("the sampled loop is closed by close_loop's interconnection algebra", 
     }
   }
 }
+
+namespace {
+// Reference for the step between samples: the hybrid loop K / (s (s + 1)) with a dead time
+// n T + delta integrated by classical fourth-order Runge-Kutta on T / 1000 steps (the input switches
+// on the grid), the compensator a gain K acting on y(kT). Figures read off the fine output.
+struct FineStep {
+  double overshoot_pct, settling_s, peak_at_samples_pct;
+};
+FineStep rk4_hybrid(double K, double T, double dead_s, double horizon_s, double band) {
+  const int fine = 1000;
+  const double h = T / fine;
+  const int shift = static_cast<int>(std::lround(dead_s / h));
+  double x1 = 0.0, x2 = 0.0;  // y = x1, x1' = x2, x2' = -x2 + v
+  std::vector<double> u, y;
+  const int n = static_cast<int>(std::ceil(horizon_s / T)) + 1;
+  double peak_samples = 0.0;
+  for (int k = 0; k < n; ++k) {
+    peak_samples = std::max(peak_samples, x1);
+    u.push_back(K * (1.0 - x1));
+    for (int i = k * fine; i < (k + 1) * fine; ++i) {
+      const long j = (i - shift) >= 0 ? (i - shift) / fine : -1;
+      const double v = j >= 0 ? u[static_cast<size_t>(j)] : 0.0;
+      y.push_back(x1);
+      auto f2 = [&](double a2) { return -a2 + v; };
+      const double k1a = x2, k1b = f2(x2);
+      const double k2a = x2 + 0.5 * h * k1b, k2b = f2(x2 + 0.5 * h * k1b);
+      const double k3a = x2 + 0.5 * h * k2b, k3b = f2(x2 + 0.5 * h * k2b);
+      const double k4a = x2 + h * k3b, k4b = f2(x2 + h * k3b);
+      x1 += h / 6.0 * (k1a + 2 * k2a + 2 * k3a + k4a);
+      x2 += h / 6.0 * (k1b + 2 * k2b + 2 * k3b + k4b);
+    }
+  }
+  FineStep r{};
+  double peak = 0.0;
+  for (double v : y) peak = std::max(peak, v);
+  r.overshoot_pct = 100.0 * (peak - 1.0);
+  r.peak_at_samples_pct = 100.0 * (peak_samples - 1.0);
+  long last = -1;
+  for (long i = static_cast<long>(y.size()) - 1; i >= 0; --i)
+    if (std::abs(y[static_cast<size_t>(i)] - 1.0) > band) {
+      last = i;
+      break;
+    }
+  const double e0 = std::abs(y[static_cast<size_t>(last)] - 1.0), e1 = std::abs(y[static_cast<size_t>(last + 1)] - 1.0);
+  r.settling_s = (last + (e0 - band) / (e0 - e1)) * h;
+  return r;
+}
+}  // namespace
+
+TEST_CASE("between samples: overshoot and settling of the continuous output match a fine hybrid simulation",
+          "[discrete_loop][between_samples]") {
+  // K / (s (s + 1)), K = 1, sampled slowly (T = 0.5 s, 0.6 s): the output peaks between the
+  // instants. Dead times: none, 0.3 of a sample (the input switches inside the interval), 1.3.
+  for (double T : {0.5, 0.6}) {
+    for (double dead_frac : {0.0, 0.3, 1.3}) {
+      INFO("T " << T << " dead " << dead_frac);
+      DiscreteLoopOptions o = loop_opts(T);
+      o.between_samples = true;
+      const DiscreteLoopAnalysis a = analyze_discrete_loop(make(1.0, {}, {}), plant_of(make(1.0, {}, {0.0, -1.0}), dead_frac * T), o);
+      REQUIRE(a.stable);
+      REQUIRE(a.step);
+      REQUIRE(a.step_at_samples);
+      const FineStep ref = rk4_hybrid(1.0, T, dead_frac * T, a.step->horizon_s, 0.02);
+      CHECK(a.step->final_value == Approx(1.0).epsilon(1e-9));  // type-1 loop
+      // Tolerances: the RK4 grid of T / 1000 places the peak to (w h)^2 / 2 ~ 1e-7 of y, the
+      // settling crossing to about one fine step.
+      CHECK(*a.step->overshoot_pct == Approx(ref.overshoot_pct).margin(1e-4));
+      CHECK(*a.step->settling_time_s == Approx(ref.settling_s).margin(2.0 * T / 1000.0));
+      CHECK(*a.step_at_samples->overshoot_pct == Approx(ref.peak_at_samples_pct).margin(1e-6));
+      CHECK(*a.step->overshoot_pct >= *a.step_at_samples->overshoot_pct);
+      REQUIRE(a.step->peak_time_s);
+    }
+  }
+}
+
+TEST_CASE("between samples: off by default, the step figures are those at the instants", "[discrete_loop][between_samples]") {
+  const DiscreteLoopAnalysis a = analyze_discrete_loop(make(1.0, {}, {}), plant_of(make(1.0, {}, {0.0, -1.0})), loop_opts(0.5));
+  REQUIRE(a.step);
+  CHECK(!a.step_at_samples);
+  const FineStep ref = rk4_hybrid(1.0, 0.5, 0.0, a.step->horizon_s, 0.02);
+  CHECK(*a.step->overshoot_pct == Approx(ref.peak_at_samples_pct).margin(1e-6));
+  DiscreteLoopOptions o = loop_opts(0.5);
+  o.points_per_sample = 3;
+  std::string err;
+  CHECK(!o.IsValid(&err));
+  CHECK(err.find("points_per_sample") != std::string::npos);
+}

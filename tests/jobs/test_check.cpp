@@ -1,5 +1,7 @@
 #include <catch2/catch.hpp>
 
+#include <cmath>
+
 #include "polewright/jobs/check.hpp"
 #include "polewright/requirements/spec_parse.hpp"
 
@@ -118,4 +120,59 @@ TEST_CASE("check: 1/(s+1)^3 at its critical gain K = 8 is marginal, not stable",
   REQUIRE(r.locus.stable_intervals.size() == 1);
   REQUIRE(r.locus.stable_intervals[0].hi);
   CHECK(*r.locus.stable_intervals[0].hi == Approx(1.0).epsilon(1e-6));
+}
+
+namespace {
+const char* kSampledSpec = R"({
+  "name": "sampled servo",
+  "plant": {"numerator": [1], "denominator": [1, 1, 0]},
+  "requirements": {"overshoot_pct": {"max": 20}, "phase_margin_deg": {"min": 30}},
+  "current": {"gain": 1.0, "zeros": [], "poles": []},
+  "implementation": {"sample_time_s": 0.5, "method": "zoh"}
+})";
+}  // namespace
+
+TEST_CASE("check with an implementation judges the sampled loop and keeps the continuous one beside it",
+          "[jobs][check][implementation]") {
+  const Spec spec = parse_spec(parse_json_text(kSampledSpec));
+  REQUIRE(spec.implementation);
+  const CheckReport r = run_check(spec, *spec.current);
+  REQUIRE(r.sampled);
+  REQUIRE(r.continuous);
+  // Continuous: 1 / (s (s + 1)) under K = 1 is the standard second-order loop with zeta = 0.5,
+  // overshoot exp(-pi zeta / sqrt(1 - zeta^2)) = 16.3 % (analytic), so 20 % is met.
+  const auto& cos = r.continuous->outcomes[0].worst;
+  REQUIRE(cos.value);
+  CHECK(*cos.value == Approx(100.0 * std::exp(-M_PI * 0.5 / std::sqrt(0.75))).epsilon(1e-4));
+}
+TEST_CASE("check with an implementation: the sampled step matches the ZOH difference equation", "[jobs][check][implementation]") {
+  const Spec spec = parse_spec(parse_json_text(kSampledSpec));
+  const CheckReport r = run_check(spec, *spec.current);
+  REQUIRE(r.sampled);
+  // ZOH table entry (from memory): 1 / (s (s + 1)) at T -> (b1 z + b0) / ((z - 1)(z - e)), e = e^-T,
+  // b1 = T - 1 + e, b0 = 1 - e - T e. Closed loop under K = 1 run as a difference equation.
+  const double T = 0.5, e = std::exp(-T), b1 = T - 1.0 + e, b0 = 1.0 - e - T * e;
+  std::vector<double> y(400, 0.0);
+  y[1] = b1;  // y[1] = b1 r[0]
+  for (size_t k = 2; k < y.size(); ++k) y[k] = -(b1 - 1.0 - e) * y[k - 1] - (e + b0) * y[k - 2] + b1 + b0;
+  double peak = 0.0;
+  for (double v : y) peak = std::max(peak, v);
+  const auto& at = r.sampled->loops[0].analysis.step_at_samples;
+  REQUIRE(at);
+  CHECK(*at->overshoot_pct == Approx(100.0 * (peak - 1.0)).epsilon(1e-9));
+  // The verdict is the sampled loop's: its overshoot (between the samples, at least the one at
+  // them) is what the requirement row holds.
+  const auto& sos = r.evaluation.outcomes[0].worst;
+  REQUIRE(sos.value);
+  CHECK(*sos.value >= *at->overshoot_pct);
+  CHECK(r.evaluation.all_met == (*sos.value <= 20.0 && *r.evaluation.outcomes[1].worst.value >= 30.0));
+  CHECK(r.continuous->all_met);
+  CHECK_FALSE(r.evaluation.all_met);  // sampled at 0.5 s the loop overshoots beyond 20 %
+}
+
+TEST_CASE("check without an implementation has no sampled figures", "[jobs][check][implementation]") {
+  const Spec spec = parse_spec(read_json_file(std::string(POLEWRIGHT_SOURCE_DIR) + "/specs/wafer-stage.json"));
+  const CheckReport r = run_check(spec, *spec.current);
+  CHECK_FALSE(r.sampled);
+  CHECK_FALSE(r.continuous);
 }

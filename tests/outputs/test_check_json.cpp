@@ -86,3 +86,31 @@ TEST_CASE("check JSON and text carry the conditioning warnings", "[outputs][chec
   CHECK(check_report_text(r).find("warning      $.plant.denominator") != std::string::npos);
   CHECK(check_report_json(demo("wafer-stage.json")).at("warnings").empty());
 }
+
+TEST_CASE("check JSON of a spec with an implementation: sampled figures, the label, the continuous block",
+          "[outputs][check_output][implementation]") {
+  const Spec spec = parse_spec(parse_json_text(R"({
+    "plant": {"numerator": [1], "denominator": [1, 1, 0], "delay_s": 0.1},
+    "requirements": {"overshoot_pct": {"max": 20}, "settling_time_s": {"max": 12}},
+    "current": {"gain": 0.8},
+    "implementation": {"sample_time_s": 0.25, "method": "tustin", "compute_delay_samples": 0.5}
+  })"));
+  const CheckReport r = run_check(spec, *spec.current);
+  const nlohmann::json j = check_report_json(r);
+  all_finite(j);
+  REQUIRE(j.contains("sampled"));
+  REQUIRE(j.contains("continuous"));
+  CHECK(j["sampled"]["label"] == "sampled at T = 0.25 s (tustin, delay 0.5 samples)");
+  CHECK(j["sampled"]["nyquist_rad_s"].get<double>() == Approx(M_PI / 0.25));
+  CHECK(j["status"] == (r.evaluation.all_met ? "met" : "not_met"));
+  CHECK(j["continuous"]["status"] == (r.continuous->all_met ? "met" : "not_met"));
+  CHECK(j["continuous"]["requirements"].size() == j["requirements"].size());
+  // The rows are of the sampled loop, the continuous block of the continuous one.
+  CHECK(j["requirements"][0]["value"].get<double>() == Approx(*r.evaluation.outcomes[0].worst.value));
+  CHECK(j["continuous"]["requirements"][0]["value"].get<double>() == Approx(*r.continuous->outcomes[0].worst.value));
+  CHECK(j["sampled"]["loops"][0]["step_at_samples"]["overshoot_pct"].is_number());
+  // Without an implementation there is neither block.
+  const nlohmann::json plain = check_report_json(demo("wafer-stage.json"));
+  CHECK_FALSE(plain.contains("sampled"));
+  CHECK_FALSE(plain.contains("continuous"));
+}

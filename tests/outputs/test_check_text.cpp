@@ -46,3 +46,19 @@ TEST_CASE("check text prints a missed value with the digits that show the miss",
   const std::string t = check_report_text(run_check(spec, *spec.current));
   CHECK(std::regex_search(t, std::regex("settling_time_s +<= 1\\.5 s +1\\.52[0-9]* s +-0\\.02[0-9]* s +NO")));
 }
+
+TEST_CASE("check text of a spec with an implementation says sampled at T and shows the continuous column",
+          "[outputs][check_output][implementation]") {
+  const Spec spec = parse_spec(parse_json_text(R"({
+    "plant": {"numerator": [1], "denominator": [1, 1, 0]},
+    "requirements": {"overshoot_pct": {"max": 20}},
+    "current": {"gain": 1.0},
+    "implementation": {"sample_time_s": 0.5, "method": "zoh", "compute_delay_samples": 1}
+  })"));
+  const std::string t = check_report_text(run_check(spec, *spec.current));
+  CHECK(t.find("sampled at T = 0.5 s (zoh, delay 1 samples)") != std::string::npos);
+  CHECK(t.find("worst value (sampled)") != std::string::npos);
+  CHECK(t.find("continuous") != std::string::npos);
+  CHECK(t.find("verdict (sampled at T = 0.5 s (zoh, delay 1 samples)): ") != std::string::npos);
+  CHECK(t.find("closed-loop poles (sampled loop, s = ln(z) / T)") != std::string::npos);
+}

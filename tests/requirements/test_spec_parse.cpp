@@ -131,6 +131,7 @@ TEST_CASE("parser keys agree with the JSON Schema's properties", "[requirements]
   CHECK(keys_of(defs.at("stages")) == as_set(known_keys("stages")));
   CHECK(keys_of(defs.at("search")) == as_set(known_keys("search")));
   CHECK(keys_of(defs.at("analysis")) == as_set(known_keys("analysis")));
+  CHECK(keys_of(defs.at("implementation")) == as_set(known_keys("implementation")));
   const json& req = defs.at("requirements").at("properties");
   for (const MetricInfo& m : metric_table()) {
     INFO(m.key);

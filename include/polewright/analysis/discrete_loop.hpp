@@ -45,6 +45,12 @@ struct DiscreteLoopOptions {
   int min_samples = 0;         // simulate at least this many samples
   int max_samples = 200000;    // and at most this many
   bool keep_trace = false;
+  // Step figures of y between the samples too: the continuous plant output inside each hold
+  // interval (exact propagation e^(A tau) with the held input, which switches inside the interval
+  // for a fractional dead time), on `points_per_sample` points per interval refined by the exact
+  // map near the extrema and the settling crossing. Off: figures at the sample instants only.
+  bool between_samples = false;
+  int points_per_sample = 16;  // at most; fewer on very long horizons (at least 4)
   TestSignal error_signal = TestSignal::Step;
   FrequencyOptions frequency;
 
@@ -67,7 +73,10 @@ struct DiscreteLoopAnalysis {
   int states = 0;
   std::vector<DiscretePole> poles;     // by |z|, largest first
   std::optional<DiscretePole> dominant;  // the largest |z| among the poles that matter
-  std::optional<StepMetrics> step;     // sampled unit-step response (stable loops)
+  std::optional<StepMetrics> step;     // sampled unit-step response (stable loops); with
+                                       // between_samples, overshoot, peak time, undershoot and
+                                       // settling of the continuous output between the samples
+  std::optional<StepMetrics> step_at_samples;  // with between_samples: the figures at the instants
   bool step_truncated = false;         // the horizon wanted more than max_samples samples
   FrequencyMetrics frequency;          // of L(e^{jwT}) on (0, pi / T]
   SteadyState steady_state;            // from the discrete error constants

@@ -5,6 +5,7 @@
 
 #include "polewright/analysis/locus.hpp"
 #include "polewright/requirements/evaluate.hpp"
+#include "polewright/requirements/sampled_evaluate.hpp"
 #include "polewright/requirements/spec.hpp"
 
 namespace pw {
@@ -27,8 +28,13 @@ struct CheckReport {
   Region region;
   RequirementSet requirements;
   AnalysisOptions analysis;
+  // The verdict. With an implementation block in the spec: the sampled loop's (every figure of
+  // the sampled loop, step figures between the samples too), and the continuous loop's figures
+  // are in `continuous`; without one, the continuous loop's.
   Evaluation evaluation;
-  Locus locus;  // of the nominal loop
+  std::optional<SampledEvaluation> sampled;   // with an implementation: the sampled-loop details
+  std::optional<Evaluation> continuous;       // with an implementation: the continuous loop
+  Locus locus;  // of the nominal loop (continuous)
   // Problems the numbers cannot hide, e.g. polynomial roots the coefficients fix only loosely.
   std::vector<std::string> warnings;
 };

@@ -12,6 +12,7 @@
 #include "polewright/model/discretize.hpp"
 #include "polewright/requirements/evaluate.hpp"
 #include "polewright/requirements/result_parse.hpp"
+#include "polewright/requirements/sampled_evaluate.hpp"
 
 namespace pw {
 
@@ -89,12 +90,8 @@ struct ExportReport {
   std::vector<std::string> notes;
 };
 
-// Gain tolerance of the sampled loop (the continuous definition, poles mapped by s = ln(z) / T).
-GainToleranceResult discrete_gain_tolerance(const Zpk& cd, const SampledPlant& sp, const Region& region, double share);
-
-// The figures of a sampled loop as metric values (gain tolerance is left missing: see
-// discrete_gain_tolerance).
-MetricValues discrete_metric_values(const DiscreteLoopAnalysis& a);
+// discrete_gain_tolerance and discrete_metric_values (the sampled loop's metric path, shared with
+// check) are in requirements/sampled_evaluate.hpp.
 
 // Throws SpecError for bad options, a rank outside the result or a compensator the method cannot
 // map; its path is then the ExportProblem field to blame ("sample_time_s", "prewarp_rad_s",

@@ -166,4 +166,8 @@ WorstCase worst_over_plants(const Requirement& r, size_t count, const PlantAt& p
 Evaluation evaluate_all(const Zpk& compensator, const std::vector<Plant>& plants, const RequirementSet& req,
                         const Region& region, const AnalysisOptions& options, const EvaluationNeeds& needs = {});
 
+// The worst case over loops already evaluated (evaluate_all's second half; the sampled loops of
+// check with an implementation go through it too).
+Evaluation evaluation_of(std::vector<LoopEvaluation> loops, const RequirementSet& req);
+
 }  // namespace pw

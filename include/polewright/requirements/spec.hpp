@@ -11,6 +11,7 @@
 
 #include "polewright/analysis/analysis_options.hpp"
 #include "polewright/model/plant.hpp"
+#include "polewright/requirements/implementation.hpp"
 #include "polewright/requirements/requirement_set.hpp"
 
 namespace pw {
@@ -63,6 +64,7 @@ struct Spec {
   std::optional<Zpk> current;
   SearchSettings search;
   AnalysisOptions analysis;
+  std::optional<Implementation> implementation;  // how the compensator runs; check then judges the sampled loop
   nlohmann::json document;  // the spec as given (results embed it so they can be re-checked exactly)
 };
 
