@@ -27,6 +27,7 @@ RequirementSet with_design_margin(const RequirementSet& req, double margin) {
     const double m = margin * std::abs(r.limit);
     r.limit += r.sense == Sense::AtMost ? -m : m;
   }
+  t.settling_band = req.settling_band * (1.0 - margin);
   return t;
 }
 

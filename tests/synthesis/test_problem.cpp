@@ -70,6 +70,9 @@ TEST_CASE("the design margin moves every limit inwards by its share of the limit
   CHECK(t.items[3].limit == 0.0);
   const RequirementSet none = with_design_margin(r, 0.0);
   for (size_t i = 0; i < r.items.size(); ++i) CHECK(none.items[i].limit == r.items[i].limit);
+  // The settling band narrows by the same fraction: 2 % -> 1.94 % at 3 %, unchanged at 0.
+  CHECK(t.settling_band == Approx(r.settling_band * 0.97).epsilon(1e-15));
+  CHECK(none.settling_band == r.settling_band);
 
   // meets_with_margin: 19.5 % overshoot meets 20 % but not 20 (1 - 0.03) = 19.4 %.
   Evaluation e;

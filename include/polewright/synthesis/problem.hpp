@@ -25,6 +25,9 @@ double objective_value(Objective o, const std::vector<MetricValue>& worst, doubl
 // L + m|L| (L(1 + m) for positive L). A negative limit moves inwards too (an upper limit of -5
 // becomes -5.15 at 3 %), and a limit of 0 has no size to scale and stays as stated. Verdicts are
 // always taken against the stated limits; this is only the aim of the search.
+// The settling band narrows by the same fraction (2 % becomes 1.94 % at 3 %): a search that settles
+// into the narrower band cannot park the overshoot peak just under the stated band, where a hair
+// more overshoot adds a whole oscillation period to the settling time.
 RequirementSet with_design_margin(const RequirementSet& req, double margin);
 
 // Whether the worst-case values of a verified loop meet the requirements with the design margin.
