@@ -30,6 +30,7 @@
 
 #include "polewright/requirements/evaluate.hpp"
 #include "polewright/requirements/implementation.hpp"
+#include "polewright/requirements/job_kind.hpp"
 #include "polewright/requirements/metric.hpp"
 #include "polewright/requirements/region.hpp"
 #include "polewright/requirements/requirement_set.hpp"

@@ -354,13 +354,9 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
   DesignReport rep;
   rep.spec_name = spec.name;
   rep.spec_document = spec.document;
-  rep.plants = ctx.plants;
-  rep.requirements = ctx.requirements;
-  rep.analysis = ctx.analysis;
+  rep.context = ctx;
   rep.objective = o.objective;
-  rep.region = ctx.region;
-  rep.frequency_range = ctx.frequency_range;
-  rep.limits = plant_limits(spec.plants, spec.requirements, rep.region, spec.stages);
+  rep.limits = plant_limits(spec.plants, spec.requirements, rep.context.region, spec.stages);
   rep.summary.seed = o.seed;
   rep.summary.threads = resolve_threads(o.threads);
   const int threads = rep.summary.threads;
@@ -383,7 +379,7 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
   lj.prepare = [&](size_t i, const std::atomic<bool>& cancel) {
     Job& job = jobs[i];
     std::vector<PoolEntry> global;
-    job.setup = prepare(structures[i], i, spec, rep.region, rep.frequency_range, screening, o, global);
+    job.setup = prepare(structures[i], i, spec, rep.context.region, rep.context.frequency_range, screening, o, global);
     for (PoolEntry& e : global)
       if (!cancel && !cancelled(o)) e.score = job.setup.problem->score(e.x);
     add_global_starts(job.setup, global, o);
@@ -547,7 +543,7 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
       const double t_round = elapsed();
       std::vector<PoolEntry> found;
       int runs = 0;
-      const long long used = escalate_round(round, setups, pool, verified, spec, rep.region, screening, o, threads, found, runs);
+      const long long used = escalate_round(round, setups, pool, verified, spec, rep.context.region, screening, o, threads, found, runs);
       spent += used;
       rep.summary.evaluations += used;
       rep.summary.local_runs += runs;

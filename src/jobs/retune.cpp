@@ -232,7 +232,7 @@ std::vector<RetuneCandidate> from_design(const Spec& spec, const RetuneOptions& 
   std::vector<Start> starts;
   for (const Candidate& c : dr.candidates) {
     if (!c.meets) continue;
-    RetuneSpace rs = make_retune_space(*spec.current, rep.frequency_range, {}, o.corner_decades, o.gain_decades);
+    RetuneSpace rs = make_retune_space(*spec.current, rep.context.frequency_range, {}, o.corner_decades, o.gain_decades);
     std::vector<double> x;
     if (retune_params_of(rs, c.compensator, &x)) starts.push_back({rs, x, "design rank " + std::to_string(c.rank)});
   }
@@ -264,8 +264,8 @@ std::vector<RetuneCandidate> from_design(const Spec& spec, const RetuneOptions& 
     rc.candidate.parameters = x;
     rc.candidate.origin = st.origin + (k % 2 == 0 ? " pulled back towards the current design" : " as designed") + " (current)";
     rc.change_decades = change_distance(st.space, x);
-    rc.response_change = response_distance(rc.candidate.compensator, *spec.current, rep.frequency_range);
-    rc.changes = change_list(st.space, x, spec, rep.region, rep.current);
+    rc.response_change = response_distance(rc.candidate.compensator, *spec.current, rep.context.frequency_range);
+    rc.changes = change_list(st.space, x, spec, rep.context.region, rep.current);
     out[k] = rc;
   });
   // Distinct ones only (a pull back that did not move duplicates its start).
@@ -293,12 +293,8 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
   RetuneReport rep;
   rep.spec_name = spec.name;
   rep.spec_document = spec.document;
-  rep.plants = spec.plants;
-  rep.requirements = spec.requirements;
-  rep.analysis = spec.analysis;
   const Verifier verifier(LoopContext::FromSpec(spec));
-  rep.region = verifier.context().region;
-  rep.frequency_range = verifier.context().frequency_range;
+  rep.context = verifier.context();
   for (const Plant& p : spec.plants) check_cancellations(*spec.current, p, "$.current");
   rep.current = verifier.verify(*spec.current);
   rep.current.rank = 0;
@@ -314,8 +310,8 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
   const AnalysisOptions screening = AnalysisOptions::Screening(spec.analysis);
   // The search aims inside the limits tightened by the design margin; verdicts use the stated ones.
   const CompensatorScorer screen(spec.plants, with_design_margin(spec.requirements, spec.search.margin_pct / 100.0),
-                                 rep.region, screening, Objective::LeastEffort,
-                                 std::sqrt(rep.frequency_range.first * rep.frequency_range.second));
+                                 rep.context.region, screening, Objective::LeastEffort,
+                                 std::sqrt(rep.context.frequency_range.first * rep.context.frequency_range.second));
 
   // Structure levels by added order: the current structure, then one order-1 stage, then a notch.
   std::vector<std::vector<std::vector<AddedStage>>> levels = {{{}}};
@@ -333,7 +329,7 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
     const auto t_level = Clock::now();
     std::vector<RetuneSpace> spaces;
     for (const auto& added : level)
-      spaces.push_back(make_retune_space(*spec.current, rep.frequency_range, added, o.corner_decades, o.gain_decades));
+      spaces.push_back(make_retune_space(*spec.current, rep.context.frequency_range, added, o.corner_decades, o.gain_decades));
     // Added stages start at the identity, centred on the current loop's crossover when it has one.
     const auto& wc = rep.current.worst[static_cast<size_t>(MetricId::Crossover)];
     for (RetuneSpace& rs : spaces)
@@ -400,8 +396,8 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
       rc.candidate.parameters = results[i].x;
       rc.candidate.origin = results[i].origin + " (" + structure_label(rs) + ")";
       rc.change_decades = change_distance(rs, results[i].x);
-      rc.response_change = response_distance(rc.candidate.compensator, *spec.current, rep.frequency_range);
-      rc.changes = change_list(rs, results[i].x, spec, rep.region, rep.current);
+      rc.response_change = response_distance(rc.candidate.compensator, *spec.current, rep.context.frequency_range);
+      rc.changes = change_list(rs, results[i].x, spec, rep.context.region, rep.current);
       level_found[k] = rc;
     });
     found.insert(found.end(), level_found.begin(), level_found.end());

@@ -100,9 +100,9 @@ nlohmann::json design_report_json(const DesignReport& r, bool include_timing) {
   j["name"] = r.spec_name;
   j["status"] = r.met() ? "met" : "not_met";
   j["objective"] = objective_name(r.objective);
-  add_search_context(j, r.region, r.frequency_range, r.plants, r.requirements, r.analysis);
+  add_search_context(j, r.context.region, r.context.frequency_range, r.context.plants, r.context.requirements, r.context.analysis);
   nlohmann::json cands = nlohmann::json::array();
-  for (const Candidate& c : r.candidates) cands.push_back(candidate_json(c, r.requirements));
+  for (const Candidate& c : r.candidates) cands.push_back(candidate_json(c, r.context.requirements));
   j["candidates"] = cands;
   nlohmann::json binding = nlohmann::json::array();
   for (const BindingRequirement& b : r.binding)

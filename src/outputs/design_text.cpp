@@ -58,13 +58,13 @@ std::string worst_violation(const Candidate& c) {
 
 std::string design_report_text(const DesignReport& r) {
   std::string out = "polewright design" + (r.spec_name.empty() ? std::string() : ": " + r.spec_name) + "\n";
-  out += "objective " + std::string(objective_name(r.objective)) + ", corners within " + fmt_number(r.frequency_range.first) +
-         " .. " + fmt_number(r.frequency_range.second) + " rad/s, " + std::to_string(r.plants.size()) + " plant(s)\n";
+  out += "objective " + std::string(objective_name(r.objective)) + ", corners within " + fmt_number(r.context.frequency_range.first) +
+         " .. " + fmt_number(r.context.frequency_range.second) + " rad/s, " + std::to_string(r.context.plants.size()) + " plant(s)\n";
   for (const std::string& w : conditioning_warnings(r.spec_document)) out += "warning " + w + "\n";
   out += "\n";
   std::vector<std::string> header = {"rank", "structure", "zero-pole gain", "low-freq gain", "zeros", "poles"};
   std::vector<MetricId> shown;
-  for (const Requirement& q : r.requirements.items)
+  for (const Requirement& q : r.context.requirements.items)
     if (std::find(shown.begin(), shown.end(), q.metric) == shown.end()) shown.push_back(q.metric);
   if (std::find(shown.begin(), shown.end(), MetricId::PeakEffort) == shown.end()) shown.push_back(MetricId::PeakEffort);
   for (MetricId id : shown) header.push_back(metric_info(id).key);

@@ -82,7 +82,7 @@ std::string comment_text(const std::string& text) {
 // The comment block both files start with.
 std::string banner(const ExportReport& r, const std::string& file) {
   std::string s = "/* " + comment_text(file) + ": discrete compensator exported by polewright.\n";
-  s += " *\n * Design: " + comment_text(r.design_name) + " (rank " + std::to_string(r.rank) + " of a " + r.source_job + " file)\n";
+  s += " *\n * Design: " + comment_text(r.design_name) + " (rank " + std::to_string(r.rank) + " of a " + job_kind_name(r.source_job) + " file)\n";
   s += " * Continuous: C(s) = " + zpk_to_string(r.continuous) + "\n";
   if (const std::string pid = pid_form_text(r.continuous); !pid.empty() && !r.continuous.poles.empty())
     s += " * As PID (continuous, before discretisation): " + comment_text(pid) + "\n";

@@ -44,7 +44,7 @@ nlohmann::ordered_json export_json(const ExportReport& r) {
   }
   j["sections"] = secs;
   j["tool"] = {{"name", "polewright"}, {"job", "export"}};
-  j["design"] = {{"name", r.design_name}, {"source_job", r.source_job}, {"rank", r.rank}};
+  j["design"] = {{"name", r.design_name}, {"source_job", job_kind_name(r.source_job)}, {"rank", r.rank}};
   j["warp_rad_s"] = r.warp_rad_s ? json_number(*r.warp_rad_s) : json(nullptr);
   j["compute_delay_samples"] = r.options.compute_delay;
   j["continuous"] = json_zpk(r.continuous);

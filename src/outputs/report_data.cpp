@@ -42,10 +42,10 @@ bool ReportData::met() const {
 }
 
 ReportData prepare_report(const ResultInput& result) {
-  if (result.job != "check" && result.job != "design" && result.job != "retune")
-    throw SpecError("$.tool.job", result.job == "compensator"
+  if (result.job != JobKind::Check && result.job != JobKind::Design && result.job != JobKind::Retune)
+    throw SpecError("$.tool.job", result.job == JobKind::Compensator
                                       ? "is missing: a bare compensator has no spec to report on (give a check, design or retune result)"
-                                      : "is \"" + result.job + "\": the report covers check, design and retune results and sweep directories");
+                                      : "is \"" + std::string(job_kind_name(result.job)) + "\": the report covers check, design and retune results and sweep directories");
   if (!result.spec) throw SpecError("$.spec", "is missing: the result does not embed its spec");
   ReportData d;
   d.job = result.job;
@@ -56,7 +56,7 @@ ReportData prepare_report(const ResultInput& result) {
   AnalysisOptions analysis = d.spec.analysis;
   analysis.step.keep_trace = true;
   std::vector<Zpk> compensators = result.compensators;
-  if (d.job == "retune") {
+  if (d.job == JobKind::Retune) {
     const Zpk current = current_of(d.document);
     const nlohmann::json& u = d.document.contains("unchanged") ? d.document["unchanged"] : nlohmann::json();
     d.unchanged = u.is_boolean() && u.get<bool>();
@@ -86,9 +86,9 @@ ReportData prepare_report(const ResultInput& result) {
     }
     const Fragility fr = settling_fragility(rd.compensator, d.spec.plants, d.spec.requirements, d.region, d.spec.analysis);
     if (fr.assessed) rd.fragile = fr.fragile;
-    if (d.job == "check") {
+    if (d.job == JobKind::Check) {
       rd.label = "checked compensator";
-    } else if (d.job == "retune") {
+    } else if (d.job == JobKind::Retune) {
       rd.label = !d.previous ? std::string(d.unchanged ? "in service (unchanged)" : "in service") : (i == 0 ? "new: " : "rank " + std::to_string(i + 1) + ": ") + structure_label(d.document, i);
     } else {
       rd.label = "rank " + std::to_string(i + 1) + ": " + structure_label(d.document, i);

@@ -6,7 +6,7 @@
 namespace pw {
 
 std::string report_diagnosis_html(const ReportData& d) {
-  if (d.job != "design" || d.met() || !d.document.is_object()) return "";
+  if (d.job != JobKind::Design || d.met() || !d.document.is_object()) return "";
   const nlohmann::json& doc = d.document;
   std::string h = "<div class=\"pw-diagnosis\"><p><b>Nothing meets every requirement.</b></p>\n";
   bool any = false;

@@ -68,8 +68,8 @@ footer { color: var(--muted); font-size: 12px; text-align: center; padding: 8px 
 
 }  // namespace
 
-std::vector<ReportSection> report_sections(const std::string& job) {
-  if (job == "sweep")
+std::vector<ReportSection> report_sections(JobKind job) {
+  if (job == JobKind::Sweep)
     return {{"summary", "Sweep at a glance", report_sweep_summary_section},
             {"sweep-map", "Sweep map", report_sweep_map_section},
             {"points", "Points of the sweep", report_sweep_points_section}};
@@ -80,8 +80,8 @@ std::vector<ReportSection> report_sections(const std::string& job) {
       {"frequency", "Loop frequency response", report_frequency_section},
       {"nyquist", "Nyquist plot and delay margin", report_nyquist_section},
   };
-  if (job == "design") s.push_back({"candidates", "Ranked candidates", report_candidates_section});
-  if (job == "retune") {
+  if (job == JobKind::Design) s.push_back({"candidates", "Ranked candidates", report_candidates_section});
+  if (job == JobKind::Retune) {
     // The changes come first after the verdict; the ranked table only when there is more than one.
     s.insert(s.begin() + 1, {"changes", "Changes from the design in service", report_retune_section});
     s.push_back({"candidates", "Ranked candidates", [](const ReportData& d) {
@@ -95,7 +95,7 @@ std::string report_html(const ReportData& d) {
   std::string h;
   h += "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\"/>\n";
   h += "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\"/>\n";
-  h += "<title>polewright " + xml_escape(d.job) + " report: " + xml_escape(d.name) + "</title>\n";
+  h += "<title>polewright " + xml_escape(job_kind_name(d.job)) + " report: " + xml_escape(d.name) + "</title>\n";
   h += "<style>" + std::string(kCss) + "</style>\n</head>\n<body>\n";
   const std::string status = d.met() ? "met" : "not_met";
   h += "<header class=\"pw-head\"><h1>" + xml_escape(d.name.empty() ? std::string("unnamed spec") : d.name) + "</h1>\n";
@@ -106,8 +106,8 @@ std::string report_html(const ReportData& d) {
          " at every point</div></header>\n<main>\n";
   } else {
     std::string extra;
-    if (d.job == "retune") extra = d.previous ? " &#183; retuned from the design in service" : " &#183; design in service unchanged";
-    h += "<div class=\"pw-sub\">polewright " + xml_escape(d.job) + " report &#183; requirements <span class=\"pw-badge " + status +
+    if (d.job == JobKind::Retune) extra = d.previous ? " &#183; retuned from the design in service" : " &#183; design in service unchanged";
+    h += "<div class=\"pw-sub\">polewright " + xml_escape(job_kind_name(d.job)) + " report &#183; requirements <span class=\"pw-badge " + status +
          "\">" + (d.met() ? "met" : "not met") + "</span> &#183; " + std::to_string(d.spec.plants.size()) +
          " plant model(s) &#183; " + std::to_string(d.designs.size()) + " compensator(s)" + extra + "</div></header>\n<main>\n";
   }

@@ -50,7 +50,7 @@ std::string driven_html(const ReportData& d, const std::string& key) {
 }  // namespace
 
 std::string report_retune_section(const ReportData& d) {
-  if (d.job != "retune") return "";
+  if (d.job != JobKind::Retune) return "";
   if (!d.previous) {
     if (d.unchanged)
       return "<p><span class=\"pw-badge met\">unchanged</span> The compensator in service already meets every requirement on "

@@ -251,7 +251,7 @@ std::vector<MapPoint> sweep_map_points(const std::vector<SweepCell>& cells) {
 
 ReportData prepare_sweep_report(const std::vector<std::string>& dirs, const SweepReportOptions& options) {
   ReportData d;
-  d.job = "sweep";
+  d.job = JobKind::Sweep;
   auto s = std::make_shared<SweepReport>(read_sweep_report(dirs, options));
   d.name = s->file.document.contains("name") && s->file.document["name"].is_string() ? s->file.document["name"].get<std::string>()
                                                                                        : dir_name(dirs.front());

@@ -38,15 +38,15 @@ nlohmann::json retune_report_json(const RetuneReport& r, bool include_timing) {
   j["status"] = r.met() ? "met" : "not_met";
   j["unchanged"] = r.already_met;
   j["warnings"] = conditioning_warnings(r.spec_document);
-  add_search_context(j, r.region, r.frequency_range, r.plants, r.requirements, r.analysis);
-  nlohmann::json cur = candidate_json(r.current, r.requirements);
+  add_search_context(j, r.context.region, r.context.frequency_range, r.context.plants, r.context.requirements, r.context.analysis);
+  nlohmann::json cur = candidate_json(r.current, r.context.requirements);
   cur.erase("rank");
   cur.erase("objective");
   cur.erase("structure");
   j["current"] = cur;
   nlohmann::json cands = nlohmann::json::array();
   for (const RetuneCandidate& rc : r.candidates) {
-    nlohmann::json c = candidate_json(rc.candidate, r.requirements);
+    nlohmann::json c = candidate_json(rc.candidate, r.context.requirements);
     c.erase("objective");
     nlohmann::json added = nlohmann::json::array();
     for (AddedStage s : rc.added) added.push_back(added_stage_name(s));

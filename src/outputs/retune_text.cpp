@@ -53,7 +53,7 @@ std::string retune_report_text(const RetuneReport& r) {
   }
   // The figures, current first.
   std::vector<MetricId> shown;
-  for (const Requirement& q : r.requirements.items)
+  for (const Requirement& q : r.context.requirements.items)
     if (std::find(shown.begin(), shown.end(), q.metric) == shown.end()) shown.push_back(q.metric);
   std::vector<std::string> header = {"design"};
   for (MetricId id : shown) header.push_back(metric_info(id).key);

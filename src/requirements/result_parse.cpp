@@ -19,15 +19,16 @@ Zpk read_result_compensator(const json& j, const std::string& path) {
   return parse_compensator(roots.empty() ? j : roots, path);
 }
 
-std::string job_of(const json& doc) {
-  if (!doc.contains("tool")) return "compensator";
+JobKind job_of(const json& doc) {
+  if (!doc.contains("tool")) return JobKind::Compensator;
   const json& tool = doc["tool"];
   if (!tool.is_object() || !tool.contains("job") || !tool["job"].is_string())
     throw SpecError("$.tool.job", "is missing: not a polewright result file");
   const std::string job = tool["job"].get<std::string>();
-  if (job != "check" && job != "design" && job != "retune")
+  const std::optional<JobKind> kind = job_kind_from_name(job);
+  if (!kind || (*kind != JobKind::Check && *kind != JobKind::Design && *kind != JobKind::Retune))
     throw SpecError("$.tool.job", "is \"" + job + "\": expected a check, design or retune result");
-  return job;
+  return *kind;
 }
 
 }  // namespace
@@ -37,7 +38,7 @@ ResultInput parse_result(const json& doc) {
   ResultInput r;
   r.document = doc;
   r.job = job_of(doc);
-  if (r.job == "compensator") {
+  if (r.job == JobKind::Compensator) {
     r.compensators.push_back(read_result_compensator(doc, "$"));
     r.paths.push_back("$");
     return r;
@@ -49,7 +50,7 @@ ResultInput parse_result(const json& doc) {
   } catch (const SpecError& e) {
     throw detail::rerooted(e, "$.spec");  // the path names the field of this file
   }
-  if (r.job == "check") {
+  if (r.job == JobKind::Check) {
     if (!doc.contains("compensator")) throw SpecError("$.compensator", "is missing");
     r.compensators.push_back(read_result_compensator(doc["compensator"], "$.compensator"));
     r.paths.push_back("$.compensator");

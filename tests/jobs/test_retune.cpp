@@ -66,7 +66,7 @@ TEST_CASE("tightening overshoot 15 % -> 8 %: the retune meets it with a smaller 
   d.threads = 1;
   const DesignReport fresh = run_design(spec, d);
   REQUIRE(fresh.met());
-  const double fresh_change = response_distance(fresh.candidates.front().compensator, *spec.current, r.frequency_range);
+  const double fresh_change = response_distance(fresh.candidates.front().compensator, *spec.current, r.context.frequency_range);
   CHECK(best.response_change < fresh_change);
   // The change list: the gain, the zero and the integrator, each with old and new values; the
   // integrator stays put, and something is driven by the overshoot requirement.

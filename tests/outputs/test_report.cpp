@@ -116,8 +116,8 @@ TEST_CASE("prepare_report refuses results it cannot report, naming the field", "
 }
 
 TEST_CASE("report_sections: check has five sections, design adds the candidates", "[outputs][report]") {
-  CHECK(report_sections("check").size() == 5);
-  const auto s = report_sections("design");
+  CHECK(report_sections(JobKind::Check).size() == 5);
+  const auto s = report_sections(JobKind::Design);
   REQUIRE(s.size() == 6);
   CHECK(s.back().id == "candidates");
   CHECK(s.front().id == "summary");

@@ -249,7 +249,7 @@ TEST_CASE("sweep table is cut at kSweepTableRows with a note", "[outputs][report
   r->expected = 24;
   for (long long i = 0; i < static_cast<long long>(kSweepTableRows) + 7; ++i) r->points.push_back(point(i, 1.0 + i, 1, PointStatus::Met, 1.0));
   ReportData d;
-  d.job = "sweep";
+  d.job = JobKind::Sweep;
   d.sweep = r;
   const std::string t = report_sweep_points_section(d);
   size_t rows = 0;

@@ -33,7 +33,7 @@ TEST_CASE("a check result reads back with its spec and compensator", "[requireme
   const CheckReport rep = run_check(spec, *spec.current);
   const json doc = json::parse(check_report_json(rep).dump());  // through text, as a file would be
   const ResultInput r = parse_result(doc);
-  CHECK(r.job == "check");
+  CHECK(r.job == JobKind::Check);
   REQUIRE(r.spec);
   CHECK(r.spec->name == "spindle speed loop");
   CHECK(r.spec->requirements.items.size() == spec.requirements.items.size());
@@ -47,7 +47,7 @@ TEST_CASE("a check result reads back with its spec and compensator", "[requireme
 
 TEST_CASE("a bare compensator object is a result of its own", "[requirements][result_parse]") {
   const ResultInput r = parse_result(json::parse(R"({"numerator": [2, 10], "denominator": [1, 50]})"));
-  CHECK(r.job == "compensator");
+  CHECK(r.job == JobKind::Compensator);
   CHECK_FALSE(r.spec);
   REQUIRE(r.compensators.size() == 1);
   CHECK(r.compensators[0].poles[0].real() == Approx(-50.0));

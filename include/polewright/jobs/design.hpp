@@ -84,11 +84,7 @@ struct DesignSummary {
 struct DesignReport {
   std::string spec_name;
   nlohmann::json spec_document;  // the spec as given
-  std::vector<Plant> plants;
-  RequirementSet requirements;
-  AnalysisOptions analysis;
-  Region region;
-  std::pair<double, double> frequency_range;
+  LoopContext context;  // plants, requirements, analysis, region, frequency range (the Verifier's)
   Objective objective = Objective::LeastEffort;
   std::vector<Candidate> candidates;
   std::vector<BindingRequirement> binding;

@@ -11,6 +11,7 @@
 #include "polewright/model/biquad.hpp"
 #include "polewright/model/discretize.hpp"
 #include "polewright/requirements/evaluate.hpp"
+#include "polewright/requirements/job_kind.hpp"
 #include "polewright/requirements/result_parse.hpp"
 #include "polewright/requirements/sampled_evaluate.hpp"
 
@@ -70,7 +71,7 @@ struct ExportOutcome {
 
 struct ExportReport {
   std::string design_name;   // spec name, or "compensator"
-  std::string source_job;    // check, design, retune or compensator
+  JobKind source_job = JobKind::Compensator;  // Check, Design, Retune or Compensator
   int rank = 1;
   ExportOptions options;
   std::optional<double> warp_rad_s;  // the warp point used (prewarp)

@@ -61,11 +61,7 @@ struct RetuneCandidate {
 struct RetuneReport {
   std::string spec_name;
   nlohmann::json spec_document;
-  std::vector<Plant> plants;
-  RequirementSet requirements;
-  AnalysisOptions analysis;
-  Region region;
-  std::pair<double, double> frequency_range;
+  LoopContext context;  // plants, requirements, analysis, region, frequency range (the Verifier's)
   Candidate current;              // the compensator in service, verified at full accuracy
   bool already_met = false;       // the current design meets: nothing changed
   std::vector<RetuneCandidate> candidates;

@@ -34,7 +34,7 @@ struct ReportDesign {
 struct SweepReport;  // outputs/report_sweep.hpp
 
 struct ReportData {
-  std::string job;                  // "check", "design", "retune" or "sweep"
+  JobKind job = JobKind::Check;     // Check, Design, Retune or Sweep
   std::string name;                 // the spec's name
   Spec spec;
   Region region;
@@ -60,7 +60,7 @@ struct ReportSection {
 };
 
 // The sections of a job's report, in page order.
-std::vector<ReportSection> report_sections(const std::string& job);
+std::vector<ReportSection> report_sections(JobKind job);
 
 // The whole page.
 std::string report_html(const ReportData& data);

@@ -8,12 +8,13 @@
 
 #include <nlohmann/json.hpp>
 
+#include "polewright/requirements/job_kind.hpp"
 #include "polewright/requirements/spec.hpp"
 
 namespace pw {
 
 struct ResultInput {
-  std::string job;                // "check", "design", "retune", or "compensator" for a bare compensator
+  JobKind job = JobKind::Compensator;  // Check, Design, Retune, or Compensator for a bare compensator
   std::optional<Spec> spec;       // the embedded spec; absent for a bare compensator
   std::vector<Zpk> compensators;  // rank order (design, retune), the checked one (check), or the bare one
   std::vector<std::string> paths; // the JSON path each compensator was read from
