@@ -148,7 +148,7 @@ void add_global_starts(StructureSetup& st, std::vector<PoolEntry>& global, const
 Candidate verify(const PoolEntry& e, const std::vector<StructureSetup>& setups, const Verifier& verifier,
                  Objective objective) {
   const StructureSetup& st = setups[e.structure];
-  Candidate c = verifier.verify(params_to_zpk(st.problem->space(), e.x), objective);
+  Candidate c = verifier.verify(params_to_zpk(st.problem->space(), e.x), objective, false);
   c.structure = st.structure;
   c.parameters = e.x;
   c.origin = e.origin;
@@ -319,7 +319,7 @@ std::vector<Candidate> without_degenerate(std::vector<Candidate> cands, const Ve
     const PrunedCompensator p =
         prune_negligible_stages(c.compensator, c.structure, c.parameters, verifier.context().frequency_range);
     if (p.dropped == 0) return;
-    Candidate v = verifier.verify(p.compensator, objective);
+    Candidate v = verifier.verify(p.compensator, objective, false);
     if ((c.meets && !v.meets) || (!c.meets && !v.meets && v.violation > c.violation)) return;
     v.structure = p.structure;
     v.parameters = p.parameters;
@@ -525,6 +525,10 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
     if (stable_count > 0)
       cands.erase(std::remove_if(cands.begin(), cands.end(), [](const Candidate& c) { return !c.verification.all_stable; }), cands.end());
     if (static_cast<int>(cands.size()) > o.keep) cands.resize(static_cast<size_t>(o.keep));
+    // The settling-cliff check only for the listed candidates (it costs four step responses per
+    // plant); then the robust-before-fragile tie-break among them.
+    parallel_for(cands.size(), threads, [&](size_t i) { verifier.add_fragility(cands[i]); });
+    order_candidates(cands, o.objective);
     for (size_t i = 0; i < cands.size(); ++i) cands[i].rank = static_cast<int>(i) + 1;
     rep.candidates = std::move(cands);
   };

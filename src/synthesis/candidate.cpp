@@ -17,7 +17,7 @@ LoopContext LoopContext::FromSpec(const Spec& spec) {
   return c;
 }
 
-Candidate Verifier::verify(const Zpk& compensator, Objective objective) const {
+Candidate Verifier::verify(const Zpk& compensator, Objective objective, bool fragility) const {
   Candidate c;
   c.compensator = compensator;
   c.verification = evaluate_all(compensator, context_.plants, context_.requirements, context_.region, context_.analysis);
@@ -34,14 +34,18 @@ Candidate Verifier::verify(const Zpk& compensator, Objective objective) const {
     c.violation += kNoiseMarginViolation;
     c.verification.total_violation = c.violation;
   }
-  if (c.verification.all_stable) {
-    const Fragility f = settling_fragility(compensator, context_.plants, context_.requirements, context_.region,
-                                           context_.analysis);
-    c.fragility_assessed = f.assessed;
-    c.fragile = f.assessed && f.fragile;
-    c.settling_jump_share = f.assessed ? f.jump_share : 0.0;
-  }
+  if (fragility) add_fragility(c);
   return c;
+}
+
+void Verifier::add_fragility(Candidate& c) const {
+  if (!c.verification.all_stable || c.fragility_checked) return;
+  c.fragility_checked = true;
+  const Fragility f = settling_fragility(c.compensator, context_.plants, context_.requirements, context_.region,
+                                         context_.analysis);
+  c.fragility_assessed = f.assessed;
+  c.fragile = f.assessed && f.fragile;
+  c.settling_jump_share = f.assessed ? f.jump_share : 0.0;
 }
 
 }  // namespace pw

@@ -28,3 +28,22 @@ TEST_CASE("the verifier checks a compensator over the spec's loop at full accura
   k1.gain = 1.0;
   CHECK(v.verify(k1).meets);
 }
+
+TEST_CASE("the settling-cliff check can be deferred and added later with the same result", "[synthesis][candidate]") {
+  // 6 / ((s + 1)(s + 2)(s + 3)) with the PI 0.7708487 (s + 0.8149) / s, whose overshoot sits at the
+  // 2 % band (the parked PI of tests/synthesis/test_fragility.cpp, scipy reference there).
+  const Spec spec = parse_spec(nlohmann::json::parse(R"({"plant": {"gain": 6, "poles": [-1, -2, -3]},
+    "requirements": {"settling_time_s": {"max": 30, "band_pct": 2}}})"));
+  const Verifier v(LoopContext::FromSpec(spec));
+  const Zpk pi{{-0.8149}, {0.0}, 0.7708487};
+  const Candidate full = v.verify(pi);
+  Candidate later = v.verify(pi, Objective::LeastEffort, false);
+  CHECK(full.fragility_checked);
+  CHECK_FALSE(later.fragility_checked);
+  CHECK_FALSE(later.fragile);
+  v.add_fragility(later);
+  CHECK(later.fragility_checked);
+  CHECK(later.fragile == full.fragile);
+  CHECK(later.settling_jump_share == full.settling_jump_share);
+  CHECK(full.fragile);  // the cliff: a 10 % narrower band adds an oscillation period
+}

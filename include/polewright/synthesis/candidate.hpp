@@ -28,6 +28,7 @@ struct Candidate {
   // (synthesis/fragility.hpp); `fragility_assessed` is false when some plant's loop does not settle.
   bool fragile = false;
   bool fragility_assessed = false;
+  bool fragility_checked = false;  // the check ran (Verifier::add_fragility), whatever its outcome
   double settling_jump_share = 0.0;
   // A margin within numerical noise of zero on some plant: treated as violating (not stable).
   bool margins_at_noise = false;
@@ -49,7 +50,12 @@ class Verifier {
  public:
   explicit Verifier(LoopContext context) : context_(std::move(context)) {}
   // The full-accuracy check of `compensator` over every plant; the objective as the search ranks it.
-  Candidate verify(const Zpk& compensator, Objective objective = Objective::LeastEffort) const;
+  // With `fragility` false the settling-cliff check (four more step responses per plant) is left
+  // for add_fragility, so a search can run it only on the candidates it lists.
+  Candidate verify(const Zpk& compensator, Objective objective = Objective::LeastEffort, bool fragility = true) const;
+  // The settling-cliff check of a verified candidate (synthesis/fragility.hpp); a no-op for an
+  // unstable loop or a candidate already assessed.
+  void add_fragility(Candidate& c) const;
   const LoopContext& context() const { return context_; }
 
  private:
