@@ -21,23 +21,26 @@ double objective_value(Objective o, const std::vector<MetricValue>& w, double hf
   }
 }
 
+namespace {
+// The one tightening rule: the limit moves inwards by margin |L|.
+Requirement tightened(Requirement r, double margin) {
+  const double m = margin * std::abs(r.limit);
+  r.limit += r.sense == Sense::AtMost ? -m : m;
+  return r;
+}
+}  // namespace
+
 RequirementSet with_design_margin(const RequirementSet& req, double margin) {
   RequirementSet t = req;
-  for (Requirement& r : t.items) {
-    const double m = margin * std::abs(r.limit);
-    r.limit += r.sense == Sense::AtMost ? -m : m;
-  }
+  for (Requirement& r : t.items) r = tightened(r, margin);
   t.settling_band = req.settling_band * (1.0 - margin);
   return t;
 }
 
 bool meets_with_margin(const Evaluation& e, double margin) {
   if (!e.all_met) return false;
-  for (const RequirementOutcome& o : e.outcomes) {
-    Requirement r = o.requirement;
-    r.limit += (r.sense == Sense::AtMost ? -1.0 : 1.0) * margin * std::abs(r.limit);
-    if (requirement_violation(r, o.worst) > 0.0) return false;
-  }
+  for (const RequirementOutcome& o : e.outcomes)
+    if (requirement_violation(tightened(o.requirement, margin), o.worst) > 0.0) return false;
   return true;
 }
 
