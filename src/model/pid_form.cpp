@@ -17,9 +17,6 @@ const char* pid_shape_name(PidShape s) {
 
 namespace {
 
-// Same test as zpk_integrators: a root within 1e-12 of the roots' scale from the origin.
-bool at_origin(Complex r, double scale) { return std::abs(r) <= 1e-12 * scale; }
-
 // Coefficients of prod(s - z) in ascending powers (real parts: the zeros come in conjugate pairs).
 std::vector<double> ascending_product(const Roots& zeros) {
   std::vector<Complex> c = {Complex(1.0, 0.0)};
@@ -40,15 +37,15 @@ std::vector<double> ascending_product(const Roots& zeros) {
 
 std::optional<PidForm> pid_form(const Zpk& c) {
   if (!(std::isfinite(c.gain) && c.gain != 0.0)) return std::nullopt;
-  const double scale = std::max(1.0, zpk_frequency_scale(c));
+  const double tol = zpk_origin_tolerance(c);
   int integrators = 0;
   Roots others;
   for (const Complex& p : c.poles) {
-    if (at_origin(p, scale)) ++integrators;
+    if (std::abs(p) <= tol) ++integrators;
     else others.push_back(p);
   }
   for (const Complex& z : c.zeros)
-    if (at_origin(z, scale)) return std::nullopt;  // a zero at the origin: no PID term gives it
+    if (std::abs(z) <= tol) return std::nullopt;  // a zero at the origin: no PID term gives it
   if (integrators > 1 || others.size() > 1) return std::nullopt;
   const bool filter = others.size() == 1;
   if (filter && !(others[0].imag() == 0.0 && others[0].real() < 0.0)) return std::nullopt;

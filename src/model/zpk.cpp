@@ -63,10 +63,6 @@ Zpk zpk_series(const Zpk& a, const Zpk& b) {
   return out;
 }
 
-namespace {
-bool at_origin(Complex r, double scale) { return std::abs(r) <= 1e-12 * scale; }
-}  // namespace
-
 double zpk_frequency_scale(const Zpk& z) {
   double log_sum = 0.0;
   int count = 0;
@@ -79,21 +75,23 @@ double zpk_frequency_scale(const Zpk& z) {
   return count ? std::exp(log_sum / count) : 1.0;
 }
 
+double zpk_origin_tolerance(const Zpk& z) { return 1e-12 * std::max(1.0, zpk_frequency_scale(z)); }
+
 int zpk_integrators(const Zpk& z) {
-  const double scale = std::max(1.0, zpk_frequency_scale(z));
+  const double tol = zpk_origin_tolerance(z);
   int n = 0;
-  for (const Complex& p : z.poles) n += at_origin(p, scale) ? 1 : 0;
-  for (const Complex& q : z.zeros) n -= at_origin(q, scale) ? 1 : 0;
+  for (const Complex& p : z.poles) n += std::abs(p) <= tol ? 1 : 0;
+  for (const Complex& q : z.zeros) n -= std::abs(q) <= tol ? 1 : 0;
   return n;
 }
 
 double zpk_low_frequency_gain(const Zpk& z) {
-  const double scale = std::max(1.0, zpk_frequency_scale(z));
+  const double tol = zpk_origin_tolerance(z);
   Complex acc(z.gain, 0.0);
   for (const Complex& q : z.zeros)
-    if (!at_origin(q, scale)) acc *= -q;
+    if (std::abs(q) > tol) acc *= -q;
   for (const Complex& p : z.poles)
-    if (!at_origin(p, scale)) acc /= -p;
+    if (std::abs(p) > tol) acc /= -p;
   return acc.real();
 }
 

@@ -43,3 +43,15 @@ TEST_CASE("zpk_to_string writes factors", "[model][zpk]") {
   c.poles = {Complex(-400, 0), Complex(0, 0)};
   CHECK(zpk_to_string(c) == "3.1 (s + 40) / (s + 400)s");
 }
+
+TEST_CASE("zpk_origin_tolerance: 1e-12 of the roots' scale, at least 1e-12", "[model][zpk]") {
+  // Roots -100 and -1e4: geometric mean 1000, so a root within 1e-9 of 0 is at the origin.
+  const Zpk wide{{-100.0}, {0.0, -1e4}, 1.0};
+  CHECK(zpk_origin_tolerance(wide) == Approx(1e-9));
+  // A near-origin root enters the scale itself: for poles 1e-13 and -5 the scale is below 1, so
+  // the tolerance is 1e-12 and 1e-13 counts as an integrator while 2e-12 does not.
+  CHECK(zpk_integrators(Zpk{{}, {1e-13, -5.0}, 1.0}) == 1);
+  CHECK(zpk_integrators(Zpk{{}, {2e-12, -5.0}, 1.0}) == 0);
+  // Slow roots never shrink it below 1e-12.
+  CHECK(zpk_origin_tolerance(Zpk{{-1e-3}, {-1e-4}, 1.0}) == Approx(1e-12));
+}

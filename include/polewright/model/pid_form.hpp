@@ -41,7 +41,7 @@ struct PidForm {
 // one other pole (real, in the left half plane: the derivative filter), and a derivative only with
 // that filter pole; the zeros (real or a conjugate pair) make up the rest. A reading whose terms do
 // not all share the sign of the gain (for example an integrator with a lag, which gives Kd < 0) is
-// not a PID and gives nothing. Root tolerance for "at the origin": as zpk_integrators.
+// not a PID and gives nothing. Root tolerance for "at the origin": zpk_origin_tolerance.
 std::optional<PidForm> pid_form(const Zpk& c);
 
 // The transfer function of a parallel-form PID (round trip of pid_form).

@@ -31,6 +31,9 @@ Poly zpk_denominator(const Zpk& z);
 // Series connection a(s) b(s).
 Zpk zpk_series(const Zpk& a, const Zpk& b);
 
+// A root with |r| at most this counts as at the origin: 1e-12 of the roots' scale (at least 1).
+double zpk_origin_tolerance(const Zpk& z);
+
 // Number of poles minus zeros at the origin (|root| <= tol * scale): the loop type when positive.
 int zpk_integrators(const Zpk& z);
 
