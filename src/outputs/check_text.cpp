@@ -26,7 +26,7 @@ std::string check_report_text(const CheckReport& r) {
   out += "compensator  C(s) = " + zpk_to_string(r.compensator) + "\n";
   out += "gains        " + gains_text(r.compensator) + " (" + std::to_string(zpk_integrators(r.compensator)) +
          " integrator(s))\n";
-  if (const std::string pid = pid_form_text(r.compensator); !pid.empty() && !r.compensator.poles.empty())
+  if (const std::string pid = pid_form_text(r.compensator); !pid.empty())
     out += "as PID       " + pid + "\n";
   out += "plants       " + std::to_string(r.plants.size()) + " (nominal";
   if (r.plants.size() > 1) out += " + " + std::to_string(r.plants.size() - 1) + " variants";

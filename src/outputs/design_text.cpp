@@ -89,7 +89,7 @@ std::string design_report_text(const DesignReport& r) {
   // Candidates that are a PI, PD or PID (an integrator and/or a lead): their tuning parameters.
   std::string pid_lines;
   for (const Candidate& c : r.candidates) {
-    const std::string p = c.structure.stage_count() > 0 ? pid_form_text(c.compensator) : "";
+    const std::string p = pid_form_text(c.compensator);
     if (!p.empty()) pid_lines += "  rank " + std::to_string(c.rank) + " " + p + "\n";
   }
   if (!pid_lines.empty()) out += "\n" + pid_lines;

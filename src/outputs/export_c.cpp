@@ -84,7 +84,7 @@ std::string banner(const ExportReport& r, const std::string& file) {
   std::string s = "/* " + comment_text(file) + ": discrete compensator exported by polewright.\n";
   s += " *\n * Design: " + comment_text(r.design_name) + " (rank " + std::to_string(r.rank) + " of a " + job_kind_name(r.source_job) + " file)\n";
   s += " * Continuous: C(s) = " + zpk_to_string(r.continuous) + "\n";
-  if (const std::string pid = pid_form_text(r.continuous); !pid.empty() && !r.continuous.poles.empty())
+  if (const std::string pid = pid_form_text(r.continuous); !pid.empty())
     s += " * As PID (continuous, before discretisation): " + comment_text(pid) + "\n";
   s += " * Method: " + std::string(discrete_method_name(r.options.method));
   if (r.warp_rad_s) s += " (warped at " + num(*r.warp_rad_s) + " rad/s; notches at their own centres)";

@@ -35,7 +35,7 @@ std::string z_text(Complex z) {
 std::string export_text(const ExportReport& r) {
   std::string out = "polewright export: " + r.design_name + " (rank " + std::to_string(r.rank) + ")\n";
   out += "continuous   C(s) = " + zpk_to_string(r.continuous) + "\n";
-  if (const std::string pid = pid_form_text(r.continuous); !pid.empty() && !r.continuous.poles.empty())
+  if (const std::string pid = pid_form_text(r.continuous); !pid.empty())
     out += "as PID       " + pid + " (continuous)\n";
   out += "method       " + std::string(discrete_method_name(r.options.method));
   if (r.warp_rad_s) out += ", warped at " + fmt_number(*r.warp_rad_s, 6) + " rad/s (notches at their centres)";

@@ -70,7 +70,7 @@ nlohmann::json json_pid_form(const Zpk& c) {
 
 std::string pid_form_text(const Zpk& c) {
   const std::optional<PidForm> f = pid_form(c);
-  if (!f) return "";
+  if (!f || f->shape == PidShape::P) return "";  // a pure gain needs no PID line
   const PidParallel& p = f->parallel;
   std::string out = std::string(pid_shape_name(f->shape)) + " form: Kp " + fmt_number(p.kp);
   if (p.ki != 0.0) out += ", Ki " + fmt_number(p.ki) + " /s";

@@ -76,6 +76,8 @@ TEST_CASE("the PID reading of a compensator, as JSON and as one line", "[outputs
   CHECK(pid_form_text(Zpk{{-0.5}, {0.0}, 4.0}) == "PI form: Kp 4, Ki 2 /s; K 4, Ti 2 s");
   CHECK(json_pid_form(Zpk{{-1.0}, {-0.1}, 0.1}).is_null());
   CHECK(pid_form_text(Zpk{{-1.0}, {-0.1}, 0.1}).empty());
+  CHECK(pid_form_text(Zpk{{}, {}, 3.0}).empty());  // a pure gain: its P reading needs no line
+  CHECK(json_pid_form(Zpk{{}, {}, 3.0}).at("shape") == "P");
   // A pure integral controller has no standard form.
   const nlohmann::json i = json_pid_form(Zpk{{}, {0.0}, 2.0});
   CHECK(i.at("shape") == "PI");

@@ -26,7 +26,7 @@ nlohmann::json json_compensator(const Zpk& c);
 // "standard": {k, ti_s, td_s, n} or null}, or null when the compensator is not a P, PI, PD or PID.
 nlohmann::json json_pid_form(const Zpk& c);
 // One line: "PID: Kp 0.72, Ki 0.6 /s, Kd 0.114 s, Tf 0.05 s; K 0.72, Ti 1.2 s, Td 0.158 s, N 3.17"
-// (empty when not a PID).
+// (empty when not a PID, and for a pure gain: a P needs no line of its own).
 std::string pid_form_text(const Zpk& c);
 
 // The two gain conventions, named, for the text and HTML tables:
