@@ -13,15 +13,9 @@
 
 using namespace pw;
 using pw::test::make;
+using pw::test::plant_of;
 
 namespace {
-Plant plant_of(const Zpk& z, double delay = 0.0) {
-  Plant p;
-  p.name = "nominal";
-  p.tf = z;
-  p.delay_s = delay;
-  return p;
-}
 DiscreteLoopOptions loop_opts(double T, int d = 0) {
   DiscreteLoopOptions o;
   o.sample_time_s = T;

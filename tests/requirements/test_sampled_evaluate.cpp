@@ -12,15 +12,9 @@
 
 using namespace pw;
 using pw::test::make;
+using pw::test::plant_of;
 
 namespace {
-Plant plant_of(const Zpk& z, double delay = 0.0) {
-  Plant p;
-  p.name = "nominal";
-  p.tf = z;
-  p.delay_s = delay;
-  return p;
-}
 Implementation impl(double T, double d = 0.0) {
   Implementation im;
   im.sample_time_s = T;
