@@ -1,5 +1,7 @@
 #include "polewright/analysis/measured_frequency.hpp"
 
+#include "../model/format_text.hpp"
+
 #include <cmath>
 #include <cstdio>
 
@@ -7,17 +9,7 @@ namespace pw {
 
 namespace {
 
-std::string fmt(const char* f, double a) {
-  char buf[256];
-  std::snprintf(buf, sizeof buf, f, a);
-  return buf;
-}
-
-std::string fmt(const char* f, double a, double b) {
-  char buf[256];
-  std::snprintf(buf, sizeof buf, f, a, b);
-  return buf;
-}
+using detail::fmt;
 
 }  // namespace
 

@@ -1,5 +1,7 @@
 #include "polewright/jobs/export.hpp"
 
+#include "../model/format_text.hpp"
+
 #include <cmath>
 #include <cstdio>
 #include <stdexcept>
@@ -35,11 +37,7 @@ bool ExportOptions::IsValid(std::string* error) const {
 
 namespace {
 
-std::string fmt(const char* f, double a, double b = 0.0, double c = 0.0) {
-  char buf[256];
-  std::snprintf(buf, sizeof buf, f, a, b, c);
-  return buf;
-}
+using detail::fmt;
 
 // A bad export, blamed on the ExportOptions field `field` (see ExportProblem).
 [[noreturn]] void bad(const std::string& field, const std::string& msg) { throw SpecError(field, msg); }

@@ -1,5 +1,7 @@
 #include "polewright/requirements/region.hpp"
 
+#include "../model/format_text.hpp"
+
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
@@ -7,11 +9,7 @@
 namespace pw {
 
 namespace {
-std::string fmt(const char* pattern, double a, double b = 0.0, double c = 0.0) {
-  char buf[256];
-  std::snprintf(buf, sizeof buf, pattern, a, b, c);
-  return buf;
-}
+using detail::fmt;
 }  // namespace
 
 bool Region::contains_shape(Complex p) const {

@@ -1,5 +1,7 @@
 #include "polewright/requirements/sampled_evaluate.hpp"
 
+#include "../model/format_text.hpp"
+
 #include <cmath>
 #include <cstdio>
 #include <stdexcept>
@@ -13,11 +15,7 @@ namespace pw {
 
 namespace {
 
-std::string fmt(const char* f, double a, double b = 0.0, double c = 0.0) {
-  char buf[256];
-  std::snprintf(buf, sizeof buf, f, a, b, c);
-  return buf;
-}
+using detail::fmt;
 
 std::vector<PoleInfo> s_equivalents(const std::vector<DiscretePole>& poles) {
   // Poles at z = 0 are infinitely fast: always inside any region, left out of the s-plane list.
