@@ -52,11 +52,13 @@ std::vector<PlantLimit> plant_limits(const std::vector<Plant>& plants, const Req
     if (pmax > 0.0) {
       const double lo = 2.0 * pmax;
       const std::optional<double> cap = cmax ? cmax : (bmax ? std::optional<double>(*bmax) : std::nullopt);
-      // value_or, not *cap behind a has_value test: the same logic without GCC's -Wmaybe-uninitialized.
-      const bool capped = cap.value_or(INFINITY) < lo;
+      // One plain value, never *cap: reading the optional behind a test still trips GCC's
+      // -Wmaybe-uninitialized under LTO. Infinite means uncapped.
+      const double cap_rad_s = cap.value_or(INFINITY);
+      const bool capped = cap_rad_s < lo;
       PlantLimit l{"unstable_pole", p.name, pmax, std::nullopt, lo, capped, capped ? (cmax ? "crossover_rad_s" : "bandwidth_rad_s") : "", ""};
       l.message = "unstable pole at " + fmt(pmax) + " rad/s needs a crossover above about " + fmt(lo) + " rad/s";
-      if (l.binding) l.message += "; the requirements cap it at " + fmt(*cap) + " rad/s";
+      if (l.binding) l.message += "; the requirements cap it at " + fmt(cap_rad_s) + " rad/s";
       out.push_back(l);
     }
     if (p.delay_s > 0.0) {
