@@ -325,8 +325,11 @@ StepMetrics step_response(const ClosedLoop& L, const PoleAnalysis& poles, const 
     for (const PoleInfo& p : poles.poles)
       if (!p.matters && p.residue < visible) unresolved += p.residue;
   }
+  // A sample at least as high as both neighbours and higher than one of them: inside a run of
+  // equal samples (a tail that has decayed to its final value in floating point) only the run's
+  // first and last samples count, not each of the thousands between them.
   auto local_max = [](const std::vector<double>& v, size_t k, double s) {
-    return s * v[k] >= s * v[k - 1] && s * v[k] >= s * v[k + 1];
+    return s * v[k] >= s * v[k - 1] && s * v[k] >= s * v[k + 1] && (s * v[k] > s * v[k - 1] || s * v[k] > s * v[k + 1]);
   };
   auto reach = [&](const std::vector<double>& v, size_t k) {
     return std::max(std::abs(v[k] - v[k - 1]), std::abs(v[k + 1] - v[k])) + 2.0 * unresolved;

@@ -127,3 +127,36 @@ TEST_CASE("badly scaled loop: the zero-order-hold map agrees with the modal expa
   REQUIRE(a.settling_time_s);
   CHECK(*a.settling_time_s == Approx(*b.settling_time_s).epsilon(1e-3));
 }
+
+TEST_CASE("a tail decayed to its final value in floating point adds no peak and no overshoot", "[analysis][step]") {
+  // Our own scenario: the loop found for an open-loop unstable actuator, 76.37 / ((s - 2.674)(s + 14.15))
+  // under a lead 1.18 (s + 3.181) / (s + 4.391), simulated over a horizon 35 times its 2.4 s
+  // settling time (a loose settling limit forces it). Its closed-loop poles are real -1.48 and a
+  // pair at -7.19 +- 5.44j (damping 0.80) with a small share, so the response rises without overshoot
+  // to within rounding of y(inf) and then stays on it for thousands of equal samples. Runs of equal
+  // samples are not peaks to refine one by one (that cost 7 s of a 7.2 s design); what is left is
+  // rounding: the overshoot stays below 1e-9 %, the settling time is unchanged by the long horizon,
+  // and the peak effort is the feedthrough u(0+) = 1.18 (the compensator's gain times the unit
+  // error; analytic).
+  Zpk c, g;
+  c.gain = 1.1802041721685996;
+  c.zeros = {Complex(-3.1814173539463284, 0.0)};
+  c.poles = {Complex(-4.390584131916178, 0.0)};
+  g.gain = 76.36840844371585;
+  g.poles = {Complex(2.6741282635973436, 0.0), Complex(-14.153780354919002, 0.0)};
+  Plant p;
+  p.tf = g;
+  const LoopParts parts = make_loop_parts(c, p, 6);
+  const ClosedLoop cl = close_loop(parts.compensator, parts.plant);
+  const PoleAnalysis pa = analyze_poles(cl, 0.02);
+  StepOptions o;
+  const StepMetrics shortest = step_response(cl, pa, o);
+  const StepMetrics longest = step_response(cl, pa, o, 57.0);
+  CHECK(longest.horizon_s > 80.0);
+  REQUIRE(longest.overshoot_pct);
+  CHECK(*longest.overshoot_pct < 1e-9);
+  REQUIRE(shortest.settling_time_s);
+  REQUIRE(longest.settling_time_s);
+  CHECK(*longest.settling_time_s == Approx(*shortest.settling_time_s).epsilon(1e-9));
+  CHECK(*longest.peak_effort == Approx(1.1802041721685996).epsilon(1e-12));
+}
