@@ -307,7 +307,8 @@ bool same_design(const Candidate& a, const Candidate& b, std::pair<double, doubl
 }
 
 // Degenerate candidates: a stage that does nothing over the frequency range is folded into the
-// gain (fragility.hpp) and the simpler loop verified again; it replaces the candidate when its
+// gain, an integrator parked at the bottom of the range dropped (fragility.hpp), and the simpler
+// loop verified again; it replaces the candidate when its
 // verdict is no worse (a stage whose removal changes the verdict acts outside the range and
 // stays). A candidate that is the same loop over the range as one listed before it is dropped.
 std::vector<Candidate> without_degenerate(std::vector<Candidate> cands, const Verifier& verifier, Objective objective,
@@ -323,7 +324,12 @@ std::vector<Candidate> without_degenerate(std::vector<Candidate> cands, const Ve
     if ((c.meets && !v.meets) || (!c.meets && !v.meets && v.violation > c.violation)) return;
     v.structure = p.structure;
     v.parameters = p.parameters;
-    v.origin = c.origin + " (" + std::to_string(p.dropped) + " negligible stage(s) folded into the gain)";
+    const int folded_stages = p.dropped - (p.integrator_dropped ? 1 : 0);
+    std::string what;
+    if (p.integrator_dropped) what = "parked integrator dropped";
+    if (folded_stages > 0)
+      what += (what.empty() ? "" : ", ") + std::to_string(folded_stages) + " negligible stage(s) folded into the gain";
+    v.origin = c.origin + " (" + what + ")";
     folded[i] = std::move(v);
     use[i] = 1;
   });

@@ -9,9 +9,9 @@ namespace {
 
 // The settling time of one loop with the band and the compensator gain given; nullopt when the
 // loop is unstable or does not settle within the horizon.
-std::optional<double> settling_time(const Zpk& c, const Plant& p, const RequirementSet& only_settling,
+std::optional<double> settling_time(const Zpk& c, const Plant& p, const RequirementSet& step_only,
                                     const Region& region, const AnalysisOptions& options, double band) {
-  RequirementSet rs = only_settling;
+  RequirementSet rs = step_only;
   rs.settling_band = band;
   AnalysisOptions a = options;
   a.step.band = band;
@@ -28,11 +28,11 @@ std::optional<double> settling_time(const Zpk& c, const Plant& p, const Requirem
 
 Fragility settling_fragility(const Zpk& compensator, const std::vector<Plant>& plants, const RequirementSet& req,
                              const Region& region, const AnalysisOptions& options) {
-  // Only the settling requirement (its limit sets the least horizon); nothing else is evaluated.
+  // Only the step, with no requirement: its horizon then comes from the poles and residues alone
+  // (provably past the last band exit, step.hpp), not from the settling limit, which for a loose
+  // limit would simulate many times longer than the loop takes to settle.
   RequirementSet only = req;
   only.items.clear();
-  for (const Requirement& r : req.items)
-    if (r.metric == MetricId::SettlingTime) only.items.push_back(r);
   const double band = req.settling_band;
   Fragility f;
   f.assessed = !plants.empty();
@@ -80,7 +80,11 @@ PrunedCompensator prune_negligible_stages(const Zpk& c, const Structure& s, cons
     const int n_params = stage_facts(k).parameters;
     bool negligible = false;
     double factor = 1.0;
-    if (k != StageKind::Integrator && root + n_roots <= c.zeros.size() && root + n_roots <= c.poles.size()) {
+    if (k == StageKind::Integrator && root < c.zeros.size()) {
+      // factor 1: (s + wi) / s tends to 1 above wi, and x[0] does not carry the integrator.
+      negligible = std::abs(c.zeros[root]) <= range.first * std::pow(10.0, kParkedIntegratorDecades);
+      out.integrator_dropped = negligible;
+    } else if (k != StageKind::Integrator && root + n_roots <= c.zeros.size() && root + n_roots <= c.poles.size()) {
       auto stage_at = [&](Complex sv) {
         Complex v(1.0, 0.0);
         for (int i = 0; i < n_roots; ++i) v *= (sv - c.zeros[root + i]) / (sv - c.poles[root + i]);
@@ -105,10 +109,13 @@ PrunedCompensator prune_negligible_stages(const Zpk& c, const Structure& s, cons
       ++out.dropped;
       // The DC-normalised gain x[0]: a lead or lag carries unit DC gain, so folding its
       // high-frequency value 1 (= factor) changes the zpk gain's DC-normalised part by |factor / f(0)|.
-      Complex dc(1.0, 0.0);
-      for (int i = 0; i < n_roots; ++i) dc *= c.zeros[root + i] / c.poles[root + i];
-      x0_shift += std::log10(std::abs(factor / dc.real()));
+      if (k != StageKind::Integrator) {
+        Complex dc(1.0, 0.0);
+        for (int i = 0; i < n_roots; ++i) dc *= c.zeros[root + i] / c.poles[root + i];
+        x0_shift += std::log10(std::abs(factor / dc.real()));
+      }
       for (int i = 0; i < n_params; ++i) drop_params.push_back(param + static_cast<size_t>(i));
+      if (k == StageKind::Integrator) out.structure.integrator = false;
       if (k == StageKind::Lead) --out.structure.lead;
       if (k == StageKind::Lag) --out.structure.lag;
       if (k == StageKind::Notch) --out.structure.notch;

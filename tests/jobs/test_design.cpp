@@ -1,5 +1,7 @@
 #include <catch2/catch.hpp>
 
+#include <cstdio>
+
 #include "polewright/jobs/design.hpp"
 #include "polewright/outputs/design_output.hpp"
 #include "polewright/requirements/spec_parse.hpp"
@@ -296,5 +298,38 @@ TEST_CASE("listed candidates are not degenerate and carry the settling-cliff fla
   for (const auto& c : j["candidates"]) {
     CHECK(c.contains("fragile"));
     CHECK(c["margins_at_noise"].is_boolean());
+  }
+}
+
+TEST_CASE("an integrator parked at the bottom of the range is listed only when the loop needs it", "[jobs][design]") {
+  // Our own scenario: a kiln zone heater, 2 / ((s + 0.5)(s + 2)), type 0, with a wide design range
+  // (1e-3..1e3 rad/s). Without a steady-state requirement the integrator is optional, and a PI
+  // whose zero sits in the lowest half decade of the range (at most 1e-3 * 10^0.5) may be listed
+  // only when the loop without it verifies worse (prune_negligible_stages drops it; the Verifier
+  // is the independent full-accuracy check). With a 0 step error required, every met candidate
+  // keeps its integrator (error constant: a type-0 loop has error 1/(1+Kp) > 0).
+  const char* base = R"({"plant": {"gain": 2, "poles": [-0.5, -2]},
+    "requirements": {"overshoot_pct": {"max": 10}, "settling_time_s": {"max": 4}%s},
+    "stages": {"lead": 1, "lag": 1, "integrator": "auto", "frequency_range_rad_s": [1e-3, 1e3]},
+    "search": {"keep": 6, "seed": 3}})";
+  for (const char* extra : {"", R"(, "steady_state_error": {"max": 0})"}) {
+    char text[1024];
+    std::snprintf(text, sizeof text, base, extra);
+    const Spec spec = spec_of(text);
+    DesignOptions o = DesignOptions::FromSpec(spec);
+    o.threads = 1;
+    const DesignReport r = run_design(spec, o);
+    REQUIRE(r.met());
+    const Verifier verifier(LoopContext::FromSpec(spec));
+    const auto range = verifier.context().frequency_range;
+    for (const Candidate& c : r.candidates) {
+      if (*extra != '\0' && c.meets) CHECK(c.structure.integrator);
+      if (!c.structure.integrator) continue;
+      const PrunedCompensator p = prune_negligible_stages(c.compensator, c.structure, c.parameters, range);
+      if (!p.integrator_dropped) continue;
+      const Candidate without = verifier.verify(p.compensator, o.objective, false);
+      const bool worse = (c.meets && !without.meets) || (!c.meets && without.violation > c.violation);
+      CHECK(worse);
+    }
   }
 }

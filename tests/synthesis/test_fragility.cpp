@@ -113,13 +113,29 @@ TEST_CASE("a stage that does nothing over the frequency range is folded into the
   CHECK(q.dropped == 1);
   CHECK(q.compensator.zeros.empty());
   CHECK(q.compensator.gain == Approx(1.0).epsilon(1e-12));
-  // An integrator is never folded (it sets the steady-state error), even with its zero far below.
+  // An integrator is not folded by the asymptote test: with its zero at 1 rad/s, mid-range, it stays.
   Zpk integ;
-  integ.zeros = {Complex(-1e-6, 0.0)};
+  integ.zeros = {Complex(-1.0, 0.0)};
   integ.poles = {Complex(0.0, 0.0)};
   Structure i_only;
   i_only.integrator = true;
-  CHECK(prune_negligible_stages(integ, i_only, {}, range).dropped == 0);
+  const PrunedCompensator kept = prune_negligible_stages(integ, i_only, {}, range);
+  CHECK(kept.dropped == 0);
+  CHECK_FALSE(kept.integrator_dropped);
+  // Its zero parked at the bottom of the range (0.01 rad/s, inside the lowest half decade up to
+  // 0.0316): dropped, gain unchanged, since (s + wi) / s tends to 1 above wi.
+  integ.gain = 2.5;
+  integ.zeros = {Complex(-0.01, 0.0)};
+  const PrunedCompensator parked = prune_negligible_stages(integ, i_only, {}, range);
+  CHECK(parked.dropped == 1);
+  CHECK(parked.integrator_dropped);
+  CHECK_FALSE(parked.structure.integrator);
+  CHECK(parked.compensator.zeros.empty());
+  CHECK(parked.compensator.poles.empty());
+  CHECK(parked.compensator.gain == 2.5);
+  // Just above the half decade (0.04 rad/s) it stays.
+  integ.zeros = {Complex(-0.04, 0.0)};
+  CHECK_FALSE(prune_negligible_stages(integ, i_only, {}, range).integrator_dropped);
 }
 
 TEST_CASE("folding a stage keeps the design parameters of the simpler structure", "[synthesis][fragility]") {

@@ -44,15 +44,22 @@ bool margins_at_noise(const LoopEvaluation& e);
 // A stage is negligible over [lo, hi] when its frequency response stays within
 // kNegligibleStageShare (relative, complex: magnitude and phase) of one of its asymptotes, the
 // low-frequency value f(0) or the high-frequency value 1, at kNegligibleStageSamples log-spaced
-// frequencies. Integrators are never negligible (they act at DC: the steady-state error).
+// frequencies. An integrator acts at DC (the steady-state error) and is never negligible by that
+// test; it is dropped instead when its zero is parked in the lowest kParkedIntegratorDecades of the
+// range (the search made its integral action as slow as it may go: over the range the stage is
+// close to 1 but for a creep slower than anything else in the loop). Dropping it can change the
+// steady-state verdict, so the caller verifies the simpler loop again (design.cpp keeps the fold
+// only when the verdict is no worse).
 constexpr double kNegligibleStageShare = 0.01;
 constexpr int kNegligibleStageSamples = 201;
+constexpr double kParkedIntegratorDecades = 0.5;
 
 struct PrunedCompensator {
   Zpk compensator;
   Structure structure;
   std::vector<double> parameters;  // the design parameters without the dropped stages' entries
-  int dropped = 0;                 // stages folded into the gain
+  int dropped = 0;                 // stages folded into the gain (the dropped integrator included)
+  bool integrator_dropped = false; // a parked integrator was dropped
 };
 
 // Folds every negligible stage of `c` (stage order of `s`: integrator, leads, lags, notches, as
