@@ -196,6 +196,7 @@ int bench_planted(int argc, char** argv) {
   int threads = 1;
   bool verbose = false;
   double budget_s = -1.0;  // the spec's default unless given
+  std::string spec_dir;    // --write-specs: each problem's spec as DIR/planted-NNN.json, to rerun alone
   for (int i = 1; i < argc; ++i) {
     const std::string a = argv[i];
     auto next = [&] { return i + 1 < argc ? argv[++i] : ""; };
@@ -205,8 +206,9 @@ int bench_planted(int argc, char** argv) {
     else if (a == "--threads") threads = std::atoi(next());
     else if (a == "--verbose") verbose = true;
     else if (a == "--budget-s") budget_s = std::atof(next());
+    else if (a == "--write-specs") spec_dir = next();
     else {
-      std::fprintf(stderr, "usage: polewright-bench planted [--count N] [--seed S] [--slack F] [--threads T] [--budget-s B] [--verbose]\n");
+      std::fprintf(stderr, "usage: polewright-bench planted [--count N] [--seed S] [--slack F] [--threads T] [--budget-s B] [--write-specs DIR] [--verbose]\n");
       return 2;
     }
   }
@@ -227,6 +229,14 @@ int bench_planted(int argc, char** argv) {
       spec = nullptr;
     }
     if (spec.is_null()) continue;
+    if (!spec_dir.empty()) {
+      char name[32];
+      std::snprintf(name, sizeof name, "/planted-%03d.json", n);
+      if (FILE* out = std::fopen((spec_dir + name).c_str(), "w")) {
+        std::fputs(spec.dump(2).c_str(), out);
+        std::fclose(out);
+      }
+    }
     const Spec s = parse_spec(spec);
     DesignOptions o = DesignOptions::FromSpec(s);
     o.threads = threads;
