@@ -12,10 +12,13 @@ diff -r "$tmp/measured" "$src/tests/reference/measured" >/dev/null || { echo "te
 "$py" - "$tmp/measured_fixture.json" "$src/tests/reference/measured_fixture.json" <<'PY' || exit 1
 import json, math, sys
 a, b = (json.load(open(p)) for p in sys.argv[1:3])
-def close(x, y):
-    if isinstance(x, dict): return x.keys() == y.keys() and all(close(x[k], y[k]) for k in x)
-    if isinstance(x, list): return len(x) == len(y) and all(close(u, v) for u, v in zip(x, y))
-    if isinstance(x, float): return math.isclose(x, y, rel_tol=1e-9, abs_tol=1e-12)
+# The frequency of a maximum (a key ending in _at) is fixed only to about the square root of the
+# optimiser's tolerance on a flat peak, so it may move by ~1e-8 relative between machines (seen:
+# 4e-9 on peak_sensitivity_at); every other figure keeps 1e-9.
+def close(x, y, rel=1e-9):
+    if isinstance(x, dict): return x.keys() == y.keys() and all(close(x[k], y[k], 1e-6 if k.endswith("_at") else rel) for k in x)
+    if isinstance(x, list): return len(x) == len(y) and all(close(u, v, rel) for u, v in zip(x, y))
+    if isinstance(x, float): return math.isclose(x, y, rel_tol=rel, abs_tol=1e-12)
     return x == y
 if not close(a, b):
     print("measured_fixture.json differs from the generator's output")
