@@ -146,23 +146,33 @@ py::object retune(const py::object& spec_arg, const py::object& seed, const py::
 py::object export_(const py::object& result, const py::object& rank_arg, const py::object& sample_time,
                    const py::object& method, const py::object& prewarp, const py::object& compute_delay,
                    const py::object& spec) {
-  pw::ExportOptions o;
-  const std::optional<double> t = number_argument(sample_time, "sample_time");
-  if (!t) throw pw::SpecError("sample_time", "is missing: give the sample time in seconds");
-  if (!(*t > 0.0)) throw pw::SpecError("sample_time", "must be > 0");
-  o.sample_time_s = *t;
-  const std::string mname = py::isinstance<py::str>(method) ? method.cast<std::string>() : "";
-  const auto m = pw::parse_discrete_method(mname);
-  if (!m) throw pw::SpecError("method", "is " + py::repr(method).cast<std::string>() + ": expected tustin, prewarp, zoh or matched");
-  o.method = *m;
+  // The spec's implementation block (embedded, or `spec`) gives the defaults, as on the command line.
+  const int rank = static_cast<int>(whole_argument(rank_arg, "rank", 1, 1000000).value_or(1));
+  const pw::ResultInput in = parse_result_argument(result, spec);
+  const bool from_spec = in.spec && in.spec->implementation;
+  pw::ExportOptions o = from_spec ? pw::ExportOptions::FromImplementation(*in.spec->implementation) : pw::ExportOptions{};
+  if (const std::optional<double> t = number_argument(sample_time, "sample_time")) {
+    if (!(*t > 0.0)) throw pw::SpecError("sample_time", "must be > 0");
+    o.sample_time_s = *t;
+  } else if (!from_spec) {
+    throw pw::SpecError("sample_time", "is missing: give the sample time in seconds (the spec has no implementation block)");
+  }
+  if (!method.is_none()) {
+    const std::string mname = py::isinstance<py::str>(method) ? method.cast<std::string>() : "";
+    const auto m = pw::parse_discrete_method(mname);
+    if (!m) throw pw::SpecError("method", "is " + py::repr(method).cast<std::string>() + ": expected tustin, prewarp, zoh or matched");
+    if (*m != o.method) o.prewarp_rad_s.reset();
+    o.method = *m;
+  }
   if (const auto w = number_argument(prewarp, "prewarp_rad_s")) {
     if (o.method != pw::DiscreteMethod::Prewarp) throw pw::SpecError("prewarp_rad_s", "applies to method \"prewarp\" only");
     if (!(*w > 0.0)) throw pw::SpecError("prewarp_rad_s", "must be > 0");
     o.prewarp_rad_s = *w;
   }
-  if (auto v = whole_argument(compute_delay, "compute_delay", 0, 50)) o.compute_delay = static_cast<int>(*v);
-  const int rank = static_cast<int>(whole_argument(rank_arg, "rank", 1, 1000000).value_or(1));
-  const pw::ResultInput in = parse_result_argument(result, spec);
+  if (const auto d = number_argument(compute_delay, "compute_delay")) {
+    if (!(*d >= 0.0 && *d <= pw::kMaxComputeDelaySamples)) throw pw::SpecError("compute_delay", "must be within 0..50 samples");
+    o.compute_delay_samples = *d;
+  }
   nlohmann::ordered_json j;
   {
     py::gil_scoped_release release;
@@ -269,10 +279,12 @@ PYBIND11_MODULE(polewright, m) {
         "keep"_a = py::none(), "allow_new_stages"_a = false, "timing"_a = false,
         "Move the compensator in service (the spec's `current`) as little as possible until it meets the "
         "requirements. Returns the CLI's `retune --json` content; KeyboardInterrupt stops the search.");
-  m.def("export", &pwpy::export_, "result"_a, "rank"_a = 1, "sample_time"_a = py::none(), "method"_a = "tustin",
-        py::kw_only(), "prewarp_rad_s"_a = py::none(), "compute_delay"_a = 0, "spec"_a = py::none(),
+  m.def("export", &pwpy::export_, "result"_a, "rank"_a = 1, "sample_time"_a = py::none(), "method"_a = py::none(),
+        py::kw_only(), "prewarp_rad_s"_a = py::none(), "compute_delay"_a = py::none(), "spec"_a = py::none(),
         "Discretise the compensator of rank `rank` of a result (dict or path) at `sample_time` seconds "
-        "(method: tustin, prewarp, zoh or matched) and re-verify the sampled loop. Returns the CLI's "
+        "(method: tustin, prewarp, zoh or matched; computation delay in samples, a fraction allowed) and "
+        "re-verify the sampled loop. Unset arguments come from the spec's implementation block, else "
+        "tustin and no delay (sample_time is then required). Returns the CLI's "
         "`export --format json` content.");
   m.def("report", &pwpy::report, "result"_a, "path"_a,
         "Write the self-contained HTML report of a result (dict or path) or of a sweep directory to `path` "

@@ -46,7 +46,7 @@ std::string strip_c_extension(const std::string& out) {
 // the option that sets it. Fields no option sets keep their names; JSON paths pass unchanged.
 constexpr OptionNames kExportOptions = {
     {"sample_time_s", "--sample-time"},     {"prewarp_rad_s", "--prewarp-rad-s"},
-    {"compute_delay", "--compute-delay"},   {"clamp", "--clamp"},
+    {"compute_delay_samples", "--compute-delay"},   {"clamp", "--clamp"},
     {"precision", "--precision"},           {"rank", "--rank"},
     {"max_phase_margin_drop_deg", "--max-pm-drop-deg"}, {"max_gain_margin_drop_db", "--max-gm-drop-db"},
     {"min_rate_ratio", "--min-rate-ratio"}};
@@ -56,19 +56,18 @@ constexpr OptionNames kExportOptions = {
 void register_export(CLI::App& app) {
   auto* cmd = app.add_subcommand("export", "Discretise a compensator, write C, JSON or CSV, and re-verify the sampled loop");
   struct Args {
-    std::string result, spec, out, rank = "1", sample_time, method = "tustin", prewarp, delay = "0", format = "c",
-                                        precision = "double", pm_drop = "5", gm_drop = "2", rate = "10";
+    std::string result, spec, out, rank = "1", sample_time, method, prewarp, delay, format = "c", precision, pm_drop = "5", gm_drop = "2", rate = "10";
     std::vector<std::string> clamp;
   };
   auto a = std::make_shared<Args>();
   cmd->add_option("RESULT", a->result, "check/design result JSON, or a file holding one compensator object")->required();
   cmd->add_option("--rank", a->rank, "candidate rank in a design result (default 1)");
-  cmd->add_option("--sample-time", a->sample_time, "sample time T in seconds (required)")->required();
-  cmd->add_option("--method", a->method, "tustin (default), prewarp, zoh or matched");
+  cmd->add_option("--sample-time", a->sample_time, "sample time T in seconds (default: the spec's implementation block)");
+  cmd->add_option("--method", a->method, "tustin, prewarp, zoh or matched (default: the spec's, else tustin)");
   cmd->add_option("--prewarp-rad-s", a->prewarp, "warp point for --method prewarp (default: the continuous crossover)");
-  cmd->add_option("--compute-delay", a->delay, "samples between sampling y and applying u (default 0)");
+  cmd->add_option("--compute-delay", a->delay, "samples between sampling y and applying u, a fraction allowed (default: the spec's, else 0)");
   cmd->add_option("--format", a->format, "c (default: OUT.h + OUT.c), json or csv");
-  cmd->add_option("--precision", a->precision, "double (default) or float, for --format c");
+  cmd->add_option("--precision", a->precision, "double or float: the C code and the coefficients re-verified (default: the spec's word length, else double)");
   cmd->add_option("--clamp", a->clamp, "LO HI: clamp the C output, with conditional integration")->expected(2);
   cmd->add_option("--spec", a->spec, "spec file to re-verify against (needed for a bare compensator; overrides an embedded spec)");
   cmd->add_option("--max-pm-drop-deg", a->pm_drop, "warn when the phase margin drops by more (default 5)");
@@ -80,22 +79,44 @@ void register_export(CLI::App& app) {
     select([a] {
       std::string file = a->result;
       return guarded(file, [&] {
-        ExportOptions o;
-        o.sample_time_s = number_option("--sample-time", a->sample_time, "a number of seconds > 0");
-        if (!(o.sample_time_s > 0.0)) throw SpecError("--sample-time", "is \"" + a->sample_time + "\": must be > 0");
-        const auto m = parse_discrete_method(a->method);
-        if (!m) throw SpecError("--method", "is \"" + a->method + "\": expected tustin, prewarp, zoh or matched");
-        o.method = *m;
+        // The spec's implementation block (of the result, or --spec) gives the defaults; the
+        // options given here override it one by one.
+        ResultInput in = parse_result(read_json_file(a->result));
+        if (!a->spec.empty()) {
+          file = a->spec;
+          in.spec = parse_spec(read_json_file(a->spec));
+          file = a->result;
+        }
+        const bool from_spec = in.spec && in.spec->implementation;
+        ExportOptions o = from_spec ? ExportOptions::FromImplementation(*in.spec->implementation) : ExportOptions{};
+        if (!a->sample_time.empty()) {
+          o.sample_time_s = number_option("--sample-time", a->sample_time, "a number of seconds > 0");
+          if (!(o.sample_time_s > 0.0)) throw SpecError("--sample-time", "is \"" + a->sample_time + "\": must be > 0");
+        } else if (!from_spec) {
+          throw SpecError("--sample-time", "is needed: the spec has no implementation block to take the sample time from");
+        }
+        if (!a->method.empty()) {
+          const auto m = parse_discrete_method(a->method);
+          if (!m) throw SpecError("--method", "is \"" + a->method + "\": expected tustin, prewarp, zoh or matched");
+          if (*m != o.method) o.prewarp_rad_s.reset();  // the spec's warp point belongs to its own method
+          o.method = *m;
+        }
         if (!a->prewarp.empty()) {
           if (o.method != DiscreteMethod::Prewarp) throw SpecError("--prewarp-rad-s", "applies to --method prewarp only");
           o.prewarp_rad_s = number_option("--prewarp-rad-s", a->prewarp, "a frequency in rad/s > 0");
         }
-        o.compute_delay = whole_option("--compute-delay", a->delay, 0, 50);
+        if (!a->delay.empty()) {
+          o.compute_delay_samples = number_option("--compute-delay", a->delay, "a number of samples within 0..50");
+          if (!(o.compute_delay_samples >= 0.0 && o.compute_delay_samples <= kMaxComputeDelaySamples))
+            throw SpecError("--compute-delay", "is \"" + a->delay + "\": must be within 0..50 samples");
+        }
         if (a->format != "c" && a->format != "json" && a->format != "csv")
           throw SpecError("--format", "is \"" + a->format + "\": expected c, json or csv");
-        if (a->precision != "double" && a->precision != "float")
-          throw SpecError("--precision", "is \"" + a->precision + "\": expected double or float");
-        o.precision = a->precision == "float" ? Precision::Float : Precision::Double;
+        if (!a->precision.empty()) {
+          if (a->precision != "double" && a->precision != "float")
+            throw SpecError("--precision", "is \"" + a->precision + "\": expected double or float");
+          o.precision = a->precision == "float" ? Precision::Float : Precision::Double;
+        }
         if (!a->clamp.empty()) {
           const double lo = number_option("--clamp", a->clamp.at(0), "two numbers LO HI");
           const double hi = number_option("--clamp", a->clamp.at(1), "two numbers LO HI");
@@ -116,12 +137,6 @@ void register_export(CLI::App& app) {
           if (!why.empty()) throw SpecError("-o", "is \"" + a->out + "\": " + why);
         }
 
-        ResultInput in = parse_result(read_json_file(a->result));
-        if (!a->spec.empty()) {
-          file = a->spec;
-          in.spec = parse_spec(read_json_file(a->spec));
-          file = a->result;
-        }
         const ExportReport r = naming_options(kExportOptions, [&] { return run_export(in, rank, o); });
         const bool to_stdout = a->out == "-";
         if (a->format == "c") {

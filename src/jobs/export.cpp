@@ -18,7 +18,8 @@ std::optional<ExportProblem> ExportOptions::Problem() const {
     return bad("prewarp_rad_s", "must be a number > 0");
   if (prewarp_rad_s && !(*prewarp_rad_s * sample_time_s < M_PI))
     return bad("prewarp_rad_s", "must be below the Nyquist frequency pi / T");
-  if (compute_delay < 0 || compute_delay > 50) return bad("compute_delay", "must be a whole number of samples within 0..50");
+  if (!(compute_delay_samples >= 0.0 && compute_delay_samples <= kMaxComputeDelaySamples))
+    return bad("compute_delay_samples", "must be a number of samples within 0..50");
   if (clamp && !(std::isfinite(clamp->first) && std::isfinite(clamp->second) && clamp->first < clamp->second))
     return bad("clamp", "needs two finite numbers LO < HI");
   if (!(max_phase_margin_drop_deg >= 0.0)) return bad("max_phase_margin_drop_deg", "must be >= 0");
@@ -27,6 +28,26 @@ std::optional<ExportProblem> ExportOptions::Problem() const {
   if (!(unbounded_gain_margin_floor_db >= 0.0)) return bad("unbounded_gain_margin_floor_db", "must be >= 0");
   if (!(float_radius_fraction > 0.0 && float_radius_fraction < 1.0)) return bad("float_radius_fraction", "must be within (0, 1)");
   return std::nullopt;
+}
+
+ExportOptions ExportOptions::FromImplementation(const Implementation& im) {
+  ExportOptions o;
+  o.sample_time_s = im.sample_time_s;
+  o.method = im.method;
+  o.prewarp_rad_s = im.prewarp_rad_s;
+  o.compute_delay_samples = im.compute_delay_samples;
+  o.precision = im.word_length == WordLength::Float ? Precision::Float : Precision::Double;
+  return o;
+}
+
+Implementation ExportOptions::implementation() const {
+  Implementation im;
+  im.sample_time_s = sample_time_s;
+  im.method = method;
+  im.prewarp_rad_s = prewarp_rad_s;
+  im.compute_delay_samples = compute_delay_samples;
+  im.word_length = precision == Precision::Float ? WordLength::Float : WordLength::Double;
+  return im;
 }
 
 bool ExportOptions::IsValid(std::string* error) const {
@@ -157,44 +178,44 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
     return r;
   }
 
-  // Re-verification in discrete time, for every plant.
+  // Re-verification of the sampled loop for every plant, by the routine check uses with an
+  // implementation block (evaluate_sampled_loop: the compensator with the coefficients it runs,
+  // the plant behind a zero-order hold with its dead time and the computation delay, the step
+  // between the samples too), so a spec's verdict and its export's agree.
   const Spec& spec = *in.spec;
-  DiscreteLoopOptions lo;
-  lo.sample_time_s = T;
-  lo.compute_delay = o.compute_delay;
-  lo.band = spec.requirements.settling_band;
-  lo.residue_share = spec.analysis.residue_share;
-  lo.error_signal = spec.requirements.error_signal;
-  lo.frequency = spec.analysis.frequency;
-  lo.keep_trace = false;
+  const Implementation im = o.implementation();
+  const Zpk as_run = o.precision == Precision::Float ? float_rounded_compensator(r.discrete) : r.discrete;
+  if (spec.implementation) {
+    const Implementation& si = *spec.implementation;
+    const bool same = si.sample_time_s == im.sample_time_s && si.method == im.method &&
+                      si.prewarp_rad_s == im.prewarp_rad_s && si.compute_delay_samples == im.compute_delay_samples &&
+                      si.word_length == im.word_length;
+    if (same)
+      r.notes.push_back("the sampled loop of the spec's implementation block (" + sampled_label(im) + "), as check judges it");
+    else
+      r.warnings.push_back("the spec's implementation block is " + sampled_label(si) + ", this export " + sampled_label(im) +
+                           ": the verdict below is of another loop than the one check and design judge");
+  }
   r.discrete_stable = true;
   for (size_t i = 0; i < spec.plants.size(); ++i) {
     ExportLoop& L = r.loops[i];
     const auto& cs = L.continuous_eval.step;
-    lo.min_samples = 0;
-    if (cs) lo.min_samples = static_cast<int>(std::min<double>(lo.max_samples, std::ceil(cs->horizon_s / T) + 1.0));
+    const int min_samples = cs ? static_cast<int>(std::min(2e5, std::ceil(cs->horizon_s / T) + 1.0)) : 0;
+    SampledLoopEvaluation s;
     try {
-      L.discrete_eval = analyze_discrete_loop(r.discrete, spec.plants[i], lo);
-    } catch (const std::invalid_argument& e) {
-      bad("sample_time_s", e.what());
+      s = evaluate_sampled_loop(as_run, spec.plants[i], im, spec.requirements, region, spec.analysis, min_samples);
+    } catch (const SpecError& e) {
+      bad("sample_time_s", e.message());
     }
-    L.discrete = discrete_metric_values(L.discrete_eval);
-    if (L.discrete_eval.step_truncated) {
-      // A cut step gives no figure at all (an overshoot read before the peak would pass): every
-      // time-domain value is left out, and a requirement on one cannot be met.
-      for (const MetricInfo& info : metric_table())
-        if (info.time_domain) L.discrete[static_cast<size_t>(info.id)] = MetricValue{};
+    L.discrete_eval = std::move(s.analysis);
+    L.discrete = s.loop.values;
+    if (L.discrete_eval.step_truncated)
       r.warnings.push_back(L.plant_name + ": " +
                            fmt("the sampled step stops at %.0f samples (%.4g s) before its slowest pole has decayed: "
                                "no step figure is given (use a longer sample time)",
-                               static_cast<double>(lo.max_samples), (lo.max_samples - 1) * T));
-    }
-    if (spec.requirements.has(MetricId::GainTolerance) && L.discrete_eval.stable) {
-      const SampledPlant sp = sample_plant(spec.plants[i], T, o.compute_delay);
-      const GainToleranceResult g = discrete_gain_tolerance(r.discrete, sp, region, spec.analysis.residue_share);
-      set_gain_tolerance_metric(L.discrete, g.tolerance_pct);
-    }
-    r.discrete_stable = r.discrete_stable && L.discrete_eval.stable && L.discrete_eval.well_posed;
+                               static_cast<double>(DiscreteLoopOptions{}.max_samples),
+                               (DiscreteLoopOptions{}.max_samples - 1) * T));
+    r.discrete_stable = r.discrete_stable && s.loop.stable;
   }
   r.all_met = r.discrete_stable;
   for (const Requirement& req : spec.requirements.items) {
@@ -250,7 +271,7 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
                                2.0 * M_PI / T, ratio, *r.crossover_rad_s) +
                            fmt(" (under %.3g; common practice is 10 to 20 times or more)", o.min_rate_ratio));
   }
-  r.notes.push_back("step figures are read at the sample instants; the plant output between samples is not checked");
+  r.notes.push_back("step figures hold between the samples too: the plant output inside each sample interval is checked");
   return r;
 }
 

@@ -89,7 +89,7 @@ std::string banner(const ExportReport& r, const std::string& file) {
   s += " * Method: " + std::string(discrete_method_name(r.options.method));
   if (r.warp_rad_s) s += " (warped at " + num(*r.warp_rad_s) + " rad/s; notches at their own centres)";
   s += "\n * Sample time: " + num(r.options.sample_time_s) + " s (" + num(1.0 / r.options.sample_time_s) + " Hz)\n";
-  s += " * Computation delay assumed in the re-verification: " + std::to_string(r.options.compute_delay) + " sample(s)\n";
+  s += " * Computation delay assumed in the re-verification: " + num(r.options.compute_delay_samples) + " sample(s)\n";
   s += " * Realisation: u = g * prod_i B_i(z^-1) / A_i(z^-1), " + std::to_string(r.cascade.sections.size()) +
        " second-order section(s), direct form II transposed, " +
        (r.options.precision == Precision::Double ? "double" : "float") + " precision.\n";

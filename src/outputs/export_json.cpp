@@ -46,7 +46,7 @@ nlohmann::ordered_json export_json(const ExportReport& r) {
   j["tool"] = {{"name", "polewright"}, {"job", "export"}};
   j["design"] = {{"name", r.design_name}, {"source_job", job_kind_name(r.source_job)}, {"rank", r.rank}};
   j["warp_rad_s"] = r.warp_rad_s ? json_number(*r.warp_rad_s) : json(nullptr);
-  j["compute_delay_samples"] = r.options.compute_delay;
+  j["compute_delay_samples"] = json_number(r.options.compute_delay_samples);
   j["continuous"] = json_zpk(r.continuous);
   j["continuous_pid_form"] = json_pid_form(r.continuous);
   const json dz = json_zpk(r.discrete);

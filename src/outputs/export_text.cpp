@@ -40,7 +40,7 @@ std::string export_text(const ExportReport& r) {
   out += "method       " + std::string(discrete_method_name(r.options.method));
   if (r.warp_rad_s) out += ", warped at " + fmt_number(*r.warp_rad_s, 6) + " rad/s (notches at their centres)";
   out += "\nsample time  " + fmt_number(r.options.sample_time_s, 6) + " s, Nyquist " + fmt_number(M_PI / r.options.sample_time_s, 6) +
-         " rad/s, computation delay " + std::to_string(r.options.compute_delay) + " sample(s)\n";
+         " rad/s, computation delay " + fmt_number(r.options.compute_delay_samples, 6) + " sample(s)\n";
   if (r.crossover_rad_s)
     out += "rate ratio   2 pi / T is " + fmt_number((2.0 * M_PI / r.options.sample_time_s) / *r.crossover_rad_s, 3) +
            " times the continuous crossover\n";

@@ -110,6 +110,26 @@ done
 ls -a "$tmp/c" | grep -q '^\.[ch]$' && { fail=$((fail+1)); echo "FAIL: hidden .h/.c written"; } || pass=$((pass+1))
 ( cd "$tmp" && ls -a | grep -q '^\.[ch]$' ) && { fail=$((fail+1)); echo "FAIL: hidden .h/.c written"; } || pass=$((pass+1))
 
+# The spec's implementation block gives the defaults: no --sample-time needed, the sampled loop is
+# check's (same verdict); an option overrides one setting and warns. Without a block and without
+# --sample-time: exit 2 naming the option.
+expect 2 "no --sample-time and no implementation block" -- "$bin" export "$tmp/r.json" --format json -o "$tmp/keep.json"
+one_line "--sample-time"; untouched
+/usr/bin/python3 - "$tmp/r.json" "$tmp/ri.json" <<'P'
+import json, sys
+d = json.load(open(sys.argv[1]))
+d["spec"]["implementation"] = {"sample_time_s": 0.004, "method": "zoh", "compute_delay_samples": 0.5}
+json.dump(d, open(sys.argv[2], "w"))
+P
+"$bin" check <(/usr/bin/python3 -c "import json; d=json.load(open('$tmp/ri.json')); s=d['spec']; s['current']=d['compensator']; print(json.dumps(s))") >"$tmp/check.txt" 2>&1
+check_rc=$?
+expect "$check_rc" "export at the spec's implementation: check's verdict" -- "$bin" export "$tmp/ri.json" --format json -o "$tmp/i.json"
+/usr/bin/python3 -c "import json,sys; d=json.load(open('$tmp/i.json')); sys.exit(not (d['sample_time_s']==0.004 and d['method']=='zoh' and d['compute_delay_samples']==0.5))" \
+  && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: implementation defaults not taken"; head -c 600 "$tmp/i.json"; }
+grep -q "implementation block" "$tmp/out" && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: no note naming the implementation block"; cat "$tmp/out"; }
+"$bin" export "$tmp/ri.json" --sample-time 0.002 --format json -o "$tmp/j.json" >"$tmp/out" 2>&1
+grep -q "^warning: the spec's implementation block" "$tmp/out" && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: no warning for an override"; cat "$tmp/out"; }
+
 # Same input, byte-identical output.
 "$bin" export "$tmp/r.json" --sample-time 0.002 --method zoh --format json -o "$tmp/d1.json" >/dev/null
 "$bin" export "$tmp/r.json" --sample-time 0.002 --method zoh --format json -o "$tmp/d2.json" >/dev/null

@@ -3,7 +3,9 @@
 
 #include <cmath>
 
+#include "polewright/jobs/check.hpp"
 #include "polewright/jobs/export.hpp"
+#include "polewright/requirements/spec_parse.hpp"
 
 using namespace pw;
 using nlohmann::json;
@@ -63,8 +65,8 @@ TEST_CASE("export errors name the ExportOptions field to blame, never a command-
   CHECK(path_of(lead_result(), 1, at(0.0)) == "sample_time_s");
   CHECK(path_of(lead_result(), 2, at(1e-3)) == "rank");
   ExportOptions o = at(1e-3);
-  o.compute_delay = -1;
-  CHECK(path_of(lead_result(), 1, o) == "compute_delay");
+  o.compute_delay_samples = -1;
+  CHECK(path_of(lead_result(), 1, o) == "compute_delay_samples");
   o = at(1e-3);
   o.clamp = std::make_pair(1.0, -1.0);
   CHECK(path_of(lead_result(), 1, o) == "clamp");
@@ -174,14 +176,14 @@ TEST_CASE("a slow-sampled export warns and fails the phase margin", "[export][ex
   // 2 pi / T = 3.1 times the crossover with one sample of computation delay: the predicted loss
   // wT/2 + wT (field notes) is ~150 deg at this crossover, far beyond the 5 deg threshold.
   ExportOptions o = at(0.2);
-  o.compute_delay = 1;
+  o.compute_delay_samples = 1;
   const ExportReport r = run_export(lead_result(), 1, o);
   CHECK(!r.all_met);
   CHECK(has_warning(r, "sample rate"));
   // Moderately slow (T = 30 ms, ~47 times the crossover, d = 1): the margin drops by about
   // 1.5 wT = 11 deg: warned, while the rate is fine.
   ExportOptions m = at(0.03);
-  m.compute_delay = 1;
+  m.compute_delay_samples = 1;
   const ExportReport q = run_export(lead_result(30.0, 40.0), 1, m);
   CHECK(has_warning(q, "phase margin drops"));
   CHECK(!has_warning(q, "sample rate"));
@@ -287,4 +289,50 @@ TEST_CASE("a sample time beyond double precision is refused", "[export][export_j
   // Crossover about 3.3 rad/s: 3.3e-11 rad per sample at T = 1e-11, under the 1e-8 floor.
   CHECK_THROWS_WITH(run_export(lead_result(), 1, at(1e-11)), Catch::Contains("too short for double precision"));
   CHECK_NOTHROW(run_export(lead_result(), 1, at(1e-8)));  // 3.3e-8 rad per sample
+}
+
+TEST_CASE("export takes the spec's implementation as its default and gives check's sampled verdict", "[export][export_job]") {
+  // Our own scenario: a gimbal axis 20 / (s (s + 4)) under a lead, run at T = 20 ms with a
+  // fractional computation delay (0.5 sample) and float coefficients. Export with the options the
+  // implementation block gives must judge the same sampled loop as check: every worst value and
+  // verdict equal (both go through evaluate_sampled_loop), and a note says so.
+  const json spec = json::parse(R"({"plant": {"gain": 20, "poles": [0, -4]},
+    "requirements": {"overshoot_pct": {"max": 25}, "settling_time_s": {"max": 2.5},
+                     "phase_margin_deg": {"min": 40}},
+    "current": {"gain": 2.2, "zeros": [-3], "poles": [-12]},
+    "implementation": {"sample_time_s": 0.02, "method": "tustin", "compute_delay_samples": 0.5,
+                       "word_length": "float"}})");
+  const Spec s = parse_spec(spec);
+  REQUIRE(s.implementation);
+  const ExportOptions o = ExportOptions::FromImplementation(*s.implementation);
+  CHECK(o.sample_time_s == 0.02);
+  CHECK(o.method == DiscreteMethod::Tustin);
+  CHECK(o.compute_delay_samples == 0.5);
+  CHECK(o.precision == Precision::Float);
+  const Implementation back = o.implementation();
+  CHECK(back.sample_time_s == 0.02);
+  CHECK(back.compute_delay_samples == 0.5);
+  CHECK(back.word_length == WordLength::Float);
+
+  const CheckReport c = run_check(s, *s.current);
+  REQUIRE(c.sampled);
+  const ResultInput in = parse_result(json{{"tool", {{"job", "check"}}}, {"spec", spec}, {"compensator", {{"gain", 2.2}, {"zeros", {-3}}, {"poles", {-12}}}}});
+  const ExportReport r = run_export(in, 1, o);
+  REQUIRE(r.outcomes.size() == c.evaluation.outcomes.size());
+  for (size_t i = 0; i < r.outcomes.size(); ++i) {
+    INFO(metric_info(r.outcomes[i].requirement.metric).key);
+    const MetricValue& a = r.outcomes[i].discrete;
+    const MetricValue& b = c.evaluation.outcomes[i].worst;
+    REQUIRE(a.value.has_value() == b.value.has_value());
+    if (a.value) CHECK(*a.value == *b.value);
+    CHECK(r.outcomes[i].met == c.evaluation.outcomes[i].met);
+  }
+  CHECK(r.all_met == c.evaluation.all_met);
+  bool noted = false;
+  for (const std::string& n : r.notes) noted = noted || n.find("implementation block") != std::string::npos;
+  CHECK(noted);
+  // Another sample time than the spec's: warned, since the verdict is then of another loop.
+  ExportOptions other = o;
+  other.sample_time_s = 0.01;
+  CHECK(has_warning(run_export(in, 1, other), "implementation block"));
 }

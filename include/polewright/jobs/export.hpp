@@ -32,8 +32,12 @@ struct ExportOptions {
   // Prewarp: the warp point; default the highest gain crossover of the nominal continuous loop
   // (needs a spec). Notches are always warped at their own centre.
   std::optional<double> prewarp_rad_s;
-  int compute_delay = 0;                            // samples between sampling y and applying u
-  Precision precision = Precision::Double;          // of the generated C code
+  // Samples between sampling y and applying u, 0..50; a fraction is exact (it adds to the plant's
+  // dead time before sampling, as check does with the spec's implementation block).
+  double compute_delay_samples = 0.0;
+  // Of the generated C code and of the coefficients the sampled loop is re-verified with (float:
+  // every section coefficient rounded to single precision, as the implementation's word length).
+  Precision precision = Precision::Double;
   std::optional<std::pair<double, double>> clamp;   // output limits lo < hi (C code)
   // Warnings (common practice thresholds).
   double max_phase_margin_drop_deg = 5.0;           // discrete phase margin below the continuous one by more
@@ -44,6 +48,13 @@ struct ExportOptions {
   // A section is close to instability in float when rounding a1, a2 to float moves its pole radius
   // by more than this fraction of its distance to the unit circle (or onto or past the circle).
   double float_radius_fraction = 0.5;
+
+  // The defaults a spec's implementation block gives: its sample time, method, warp point,
+  // computation delay and word length (the rest as above). A result designed or checked at T
+  // re-exports at T with the same sampled loop, hence the same verdict.
+  static ExportOptions FromImplementation(const Implementation& im);
+  // The implementation these options describe (the sampled loop export re-verifies).
+  Implementation implementation() const;
 
   // The first bad setting, if any.
   std::optional<ExportProblem> Problem() const;
