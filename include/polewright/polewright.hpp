@@ -60,6 +60,7 @@
 #include "polewright/jobs/design.hpp"
 #include "polewright/jobs/export.hpp"
 #include "polewright/jobs/retune.hpp"
+#include "polewright/jobs/sample_time.hpp"
 #include "polewright/jobs/sweep.hpp"
 
 #include "polewright/outputs/check_output.hpp"

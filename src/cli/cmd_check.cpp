@@ -28,7 +28,7 @@ void register_check(CLI::App& app) {
   auto* cmd = app.add_subcommand("check", "Evaluate a compensator against every requirement and plant variant");
   struct Args {
     std::string spec, compensator, out, report;
-    bool json = false;
+    bool json = false, find_sample_time = false;
   };
   auto a = std::make_shared<Args>();
   cmd->add_option("SPEC", a->spec, "spec file (JSON)")->required();
@@ -36,6 +36,8 @@ void register_check(CLI::App& app) {
   cmd->add_option("-o,--output", a->out, "write the report as JSON to this file (atomically)");
   cmd->add_flag("--json", a->json, "print the JSON report to stdout instead of the table");
   cmd->add_option("--report", a->report, "also write the HTML report to this file (atomically)");
+  cmd->add_flag("--find-sample-time", a->find_sample_time,
+                "also find the slowest sample time at which the sampled loop meets (the spec's implementation, else tustin)");
   cmd->callback([a] {
     select([a] {
       std::string file = a->spec;
@@ -53,6 +55,7 @@ void register_check(CLI::App& app) {
         }
         // With --compensator, an error in the compensator is that file's, at its root.
         CheckOptions options;
+        options.find_sample_time = a->find_sample_time;
         if (!a->compensator.empty()) {
           options.compensator_path = "$";
           file = a->compensator;

@@ -99,7 +99,12 @@ CheckReport run_check(const Spec& spec, const Zpk& compensator, const CheckOptio
     r.continuous = std::move(r.evaluation);
     r.evaluation = r.sampled->evaluation;
     for (const std::string& w : r.sampled->warnings) r.warnings.push_back(w);
+    r.rate = rate_guidance(*spec.implementation, *r.continuous);
   }
+  if (options.find_sample_time)
+    r.sample_time_search = find_slowest_sample_time(compensator, spec.plants, spec.requirements, r.region, r.analysis,
+                                                    spec.implementation.value_or(Implementation{}),
+                                                    r.continuous ? *r.continuous : r.evaluation, options.sample_time);
   r.locus = root_locus(make_loop_parts(compensator, spec.plants.front(), spec.analysis.pade_order), options.locus);
   return r;
 }

@@ -199,6 +199,29 @@ nlohmann::json sampled_json(const SampledEvaluation& s) {
 
 }  // namespace
 
+nlohmann::json rate_guidance_json(const RateGuidance& g) {
+  return {{"sample_time_s", json_number(g.sample_time_s)},
+          {"crossover_rad_s", json_number(g.crossover_rad_s)},
+          {"rate_ratio", json_number(g.rate_ratio)},
+          {"hold_phase_deg", json_number(g.hold_phase_deg)},
+          {"delay_phase_deg", json_number(g.delay_phase_deg)}};
+}
+
+nlohmann::json sample_time_search_json(const SampleTimeSearch& s) {
+  const Implementation& im = s.implementation;
+  nlohmann::json trials = nlohmann::json::array();
+  for (const SampleTimeTrial& t : s.trials)
+    trials.push_back({{"sample_time_s", json_number(t.sample_time_s)}, {"met", t.met}, {"implementable", t.implementable}});
+  return {{"method", discrete_method_name(im.method)},
+          {"compute_delay_samples", json_number(im.compute_delay_samples)},
+          {"word_length", word_length_name(im.word_length)},
+          {"reference_rad_s", json_number(s.reference_rad_s)},
+          {"reference", s.reference_is_crossover ? "crossover" : "fastest_pole"},
+          {"slowest_met_s", s.slowest_met_s ? json_number(*s.slowest_met_s) : nlohmann::json(nullptr)},
+          {"first_failed_s", s.first_failed_s ? json_number(*s.first_failed_s) : nlohmann::json(nullptr)},
+          {"trials", trials}};
+}
+
 nlohmann::json check_report_json(const CheckReport& r) {
   const Evaluation& ev = r.evaluation;
   nlohmann::json j;
@@ -212,6 +235,7 @@ nlohmann::json check_report_json(const CheckReport& r) {
   add_outcomes_json(j, ev);
   if (r.sampled && r.continuous) {
     j["sampled"] = sampled_json(*r.sampled);
+    j["sampled"]["rate"] = r.rate ? rate_guidance_json(*r.rate) : nlohmann::json(nullptr);
     nlohmann::json c;
     c["status"] = r.continuous->all_met ? "met" : "not_met";
     c["stable"] = r.continuous->all_stable;
@@ -226,6 +250,7 @@ nlohmann::json check_report_json(const CheckReport& r) {
   j["analysis"] = {{"pade_order", r.analysis.pade_order},
                    {"residue_share", json_number(r.analysis.residue_share)},
                    {"settling_band", json_number(r.requirements.settling_band)}};
+  if (r.sample_time_search) j["sample_time_search"] = sample_time_search_json(*r.sample_time_search);
   j["warnings"] = r.warnings;
   j["spec"] = r.spec_document;
   j["cautions"] = kCautions;

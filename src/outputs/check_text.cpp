@@ -134,7 +134,31 @@ std::string check_report_text(const CheckReport& r) {
                          : "NOT MET: the closed loop is unstable for at least one plant\n";
   }
   else out += "NOT MET: " + std::to_string(missed) + " of " + std::to_string(ev.outcomes.size()) + " requirement bounds missed\n";
+  if (r.rate) {
+    const RateGuidance& g = *r.rate;
+    out += "rate         2 pi / T is " + fmt_number(g.rate_ratio, 3) + " times the continuous crossover " +
+           fmt_number(g.crossover_rad_s, 4) + " rad/s (common practice: 10 to 20 or more); there the hold costs " +
+           fmt_number(g.hold_phase_deg, 3) + " deg of phase and the computation delay " + fmt_number(g.delay_phase_deg, 3) +
+           " deg\n";
+  }
+  if (r.sample_time_search) out += sample_time_search_text(*r.sample_time_search);
   out += "\ncaution: " + std::string(kCautions) + "\n";
+  return out;
+}
+
+std::string sample_time_search_text(const SampleTimeSearch& s) {
+  const Implementation& im = s.implementation;
+  std::string how = std::string(discrete_method_name(im.method)) + ", delay " + fmt_number(im.compute_delay_samples, 3) +
+                    " samples" + (im.word_length == WordLength::Float ? ", float coefficients" : "");
+  std::string out = "slowest T    ";
+  if (s.slowest_met_s && s.first_failed_s)
+    out += fmt_number(*s.slowest_met_s, 4) + " s meets, " + fmt_number(*s.first_failed_s, 4) + " s does not (" + how +
+           "; from the fastest rate tried down, " + std::to_string(s.trials.size()) + " trials)\n";
+  else if (s.slowest_met_s)
+    out += "every sample time tried meets, up to " + fmt_number(*s.slowest_met_s, 4) + " s (" + how + ")\n";
+  else
+    out += "none meets, not even " + fmt_number(s.trials.empty() ? 0.0 : s.trials.front().sample_time_s, 4) + " s (" + how +
+           "): the loop fails for another reason than the rate\n";
   return out;
 }
 

@@ -101,5 +101,17 @@ expect 2 "cancelling --compensator file" -- "$bin" check "$tmp/unstable.json" --
 one_line "$tmp/cancels.json: \$: compensator zero"
 grep -qF '$.current' "$tmp/err" && { fail=$((fail+1)); echo "FAIL: the error blames the spec's \$.current"; } || pass=$((pass+1))
 
+# check --find-sample-time: the rate line and the slowest sample time, with and without a block.
+cat >"$tmp/axis.json" <<'J'
+{ "plant": { "gain": 1, "poles": [0] }, "requirements": { "phase_margin_deg": { "min": 60 } },
+  "current": { "gain": 10 }, "implementation": { "sample_time_s": 0.02, "compute_delay_samples": 1 } }
+J
+expect 0 "find-sample-time on a sampled loop that meets" -- "$bin" check "$tmp/axis.json" --find-sample-time
+grep -q "^rate         2 pi / T is" "$tmp/out" && grep -q "^slowest T    0.034[0-9]* s meets" "$tmp/out" && pass=$((pass+1)) ||
+  { fail=$((fail+1)); echo "FAIL: rate or slowest-T line"; cat "$tmp/out"; }
+expect 0 "find-sample-time in the JSON" -- "$bin" check "$tmp/axis.json" --find-sample-time --json
+/usr/bin/python3 -c "import json,sys; d=json.load(open('$tmp/out')); s=d['sample_time_search']; sys.exit(not (0.034 < s['slowest_met_s'] < s['first_failed_s'] < 0.0352 and d['sampled']['rate']['rate_ratio'] > 30))" \
+  && pass=$((pass+1)) || { fail=$((fail+1)); echo "FAIL: sample_time_search JSON"; }
+
 echo "$pass passed, $fail failed"
 [ "$fail" = 0 ]

@@ -4,6 +4,7 @@
 #include <string>
 
 #include "polewright/analysis/locus.hpp"
+#include "polewright/jobs/sample_time.hpp"
 #include "polewright/requirements/evaluate.hpp"
 #include "polewright/requirements/sampled_evaluate.hpp"
 #include "polewright/requirements/spec.hpp"
@@ -17,7 +18,11 @@ struct CheckOptions {
   // cancels an unstable plant pole, ...): the spec's current by default; "$" for a compensator
   // file of its own, "$.candidates[2].compensator" for one read from a result.
   std::string compensator_path = "$.current";
-  bool IsValid(std::string* error) const { return locus.IsValid(error); }
+  // Also search the slowest sample time that meets (sample_time.hpp), with the spec's
+  // implementation (method, delay in samples, word length) or, without one, Tustin, no delay, double.
+  bool find_sample_time = false;
+  SampleTimeOptions sample_time;
+  bool IsValid(std::string* error) const { return locus.IsValid(error) && sample_time.IsValid(error); }
 };
 
 struct CheckReport {
@@ -34,6 +39,8 @@ struct CheckReport {
   Evaluation evaluation;
   std::optional<SampledEvaluation> sampled;   // with an implementation: the sampled-loop details
   std::optional<Evaluation> continuous;       // with an implementation: the continuous loop
+  std::optional<RateGuidance> rate;           // with an implementation: the rate against the crossover
+  std::optional<SampleTimeSearch> sample_time_search;  // with CheckOptions::find_sample_time
   Locus locus;  // of the nominal loop (continuous)
   // Problems the numbers cannot hide, e.g. polynomial roots the coefficients fix only loosely.
   std::vector<std::string> warnings;

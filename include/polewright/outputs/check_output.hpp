@@ -21,4 +21,9 @@ nlohmann::json check_report_json(const CheckReport& r);
 
 std::string check_report_text(const CheckReport& r);
 
+// The rate guidance and the slowest-sample-time search as JSON objects and as text lines.
+nlohmann::json rate_guidance_json(const RateGuidance& g);
+nlohmann::json sample_time_search_json(const SampleTimeSearch& s);
+std::string sample_time_search_text(const SampleTimeSearch& s);
+
 }  // namespace pw
