@@ -16,6 +16,13 @@
 
 namespace pw {
 
+bool sweep_word_key(const std::string& key) {
+  static const char* const words[] = {"name", "$schema", "input", "integrator", "objective", "method", "word_length"};
+  for (const char* w : words)
+    if (key == w) return true;
+  return false;
+}
+
 using detail::index_path;
 using detail::json;
 using detail::key_path;
@@ -27,10 +34,6 @@ namespace {
 
 constexpr int kMaxSobolDimensions = 40;  // GSL's Sobol generator
 
-// Spec keys whose values are words, not numbers: their strings are never expressions.
-bool word_key(const std::string& key) {
-  return key == "name" || key == "$schema" || key == "input" || key == "integrator" || key == "objective";
-}
 
 std::string pointer_to_path(const std::string& prefix, const json::json_pointer& p) {
   // json_pointer's string form is "/plant/denominator/0": rebuild "$.base.plant.denominator[0]".
@@ -48,7 +51,7 @@ std::string pointer_to_path(const std::string& prefix, const json::json_pointer&
 }
 
 void find_expressions(const json& j, const json::json_pointer& here, const std::string& key, std::vector<ExpressionSite>& out) {
-  if (j.is_string() && !word_key(key)) {
+  if (j.is_string() && !sweep_word_key(key)) {
     out.push_back({here, pointer_to_path("$.base", here), j.get<std::string>()});
   } else if (j.is_object()) {
     for (auto it = j.begin(); it != j.end(); ++it) find_expressions(it.value(), here / it.key(), it.key(), out);

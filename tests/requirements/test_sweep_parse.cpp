@@ -201,3 +201,45 @@ TEST_CASE("sample points are the same in any order of asking (streamed generatio
     }
   }
 }
+
+namespace {
+// Every property name of the spec schema whose value may be a string (type "string", an enum or a
+// const), at any depth: the keys a sweep base may hold words at.
+void string_keys(const json& schema, const std::string& key, std::set<std::string>& out) {
+  if (schema.is_object()) {
+    if (!key.empty() && ((schema.contains("type") && schema["type"] == "string") || schema.contains("enum") ||
+                         schema.contains("const")))
+      out.insert(key);
+    for (auto it = schema.begin(); it != schema.end(); ++it) {
+      if (it.key() == "properties" && it->is_object()) {
+        for (auto p = it->begin(); p != it->end(); ++p) string_keys(p.value(), p.key(), out);
+      } else {
+        const bool same_key = it.key() == "oneOf" || it.key() == "anyOf" || it.key() == "allOf" || it.key() == "items";
+        string_keys(it.value(), same_key ? key : "", out);
+      }
+    }
+  } else if (schema.is_array()) {
+    for (const json& v : schema) string_keys(v, key, out);
+  }
+}
+}  // namespace
+
+TEST_CASE("the word keys of a sweep base are the string-valued keys of the spec schema", "[requirements][sweep_parse]") {
+  // specs/spec.schema.json is the outside reference: a key added there with string values must be
+  // a word key too, or a sweep base holding it would read "tustin" as an expression.
+  const json schema = read_json_file(std::string(POLEWRIGHT_SOURCE_DIR) + "/specs/spec.schema.json");
+  std::set<std::string> keys;
+  string_keys(schema, "", keys);
+  REQUIRE(keys.count("method") == 1);
+  for (const std::string& k : keys) {
+    INFO(k);
+    CHECK(sweep_word_key(k));
+  }
+  CHECK_FALSE(sweep_word_key("gain"));
+  CHECK_FALSE(sweep_word_key("sample_time_s"));
+  // A base with an implementation block: the method and word length stay words, T is swept.
+  json j = json::parse(kSweep);
+  j["base"]["implementation"] = {{"sample_time_s", "0.001 * J"}, {"method", "tustin"}, {"word_length", "float"}};
+  const SweepFile f = parse_sweep(j);
+  CHECK(f.expressions.size() == 5);
+}

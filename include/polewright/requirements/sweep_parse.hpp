@@ -61,6 +61,11 @@ struct SweepFile {
 constexpr long long kMaxSweepPoints = 10'000'000;
 constexpr long long kMaxSampledPoints = 1'000'000;
 
+// Spec keys whose values are words (a method, a word length, a name...), not numbers: their strings
+// in a sweep base are never read as expressions. A test keeps it equal to the string-valued keys
+// of specs/spec.schema.json.
+bool sweep_word_key(const std::string& key);
+
 // Throws SpecError naming the field. Every expression is compiled and evaluated once (at the first
 // grid point) so that syntax errors and unknown names are reported before any point runs.
 SweepFile parse_sweep(const nlohmann::json& doc);
