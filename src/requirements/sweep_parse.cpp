@@ -29,7 +29,8 @@ constexpr int kMaxSobolDimensions = 40;  // GSL's Sobol generator
 
 // Spec keys whose values are words, not numbers: their strings are never expressions.
 bool word_key(const std::string& key) {
-  return key == "name" || key == "$schema" || key == "input" || key == "integrator" || key == "objective";
+  return key == "name" || key == "$schema" || key == "input" || key == "integrator" || key == "objective" ||
+         key == "method" || key == "word_length";  // implementation: tustin, float ...
 }
 
 std::string pointer_to_path(const std::string& prefix, const json::json_pointer& p) {
