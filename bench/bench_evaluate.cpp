@@ -3,6 +3,11 @@
 // with k = 10^U(-1,1), z = 10^U(0,1.3), p = 10^U(1.3,2.5), wn = 60*10^U(-0.05,0.05), zz = U(0.01,0.1),
 // zp = U(0.3,1). One evaluation: closed-loop poles, region test, 1000-sample step of y and u over 3 s
 // (overshoot, settling, rise, peak effort) and margins from the loop frequency response.
+// With --sample-time T: the same pool through both the continuous screening evaluator and the
+// sampled one the search uses with an implementation (Tustin at T, one sample of computation
+// delay: implement_compensator + evaluate_sampled_loop in its screening form, step figures at the
+// instants from a window of four settling limits; --between: the check path's figures between the
+// samples over the whole horizon), each for the given time, and both rates printed with their ratio.
 #include <chrono>
 #include <cmath>
 #include <cstdio>
@@ -12,6 +17,7 @@
 #include <vector>
 
 #include "polewright/requirements/evaluate.hpp"
+#include "polewright/requirements/sampled_evaluate.hpp"
 
 using namespace pw;
 
@@ -26,12 +32,17 @@ int bench_evaluate(int argc, char** argv) {
   unsigned seed = 2026;
   long long count = 0;  // with --count N: exactly N evaluations (for instruction counts under callgrind)
   bool full = false;    // --full: the check path (full accuracy, every figure) instead of screening
+  double sample_time = 0.0;  // --sample-time T: compare with the sampled loop at T
+  bool screening_instants = true;  // the search's sampled screening (instants, window); --between: the check path
   for (int i = 1; i < argc; ++i)
     if (!std::strcmp(argv[i], "--full")) full = true;
+  for (int i = 1; i < argc; ++i)
+    if (!std::strcmp(argv[i], "--between")) screening_instants = false;
   for (int i = 1; i + 1 < argc; i += 2) {
     if (!std::strcmp(argv[i], "--seconds")) seconds = std::atof(argv[i + 1]);
     if (!std::strcmp(argv[i], "--count")) count = std::atoll(argv[i + 1]);
     if (!std::strcmp(argv[i], "--seed")) seed = static_cast<unsigned>(std::atoi(argv[i + 1]));
+    if (!std::strcmp(argv[i], "--sample-time")) sample_time = std::atof(argv[i + 1]);
   }
   Plant plant;
   plant.name = "wafer-stage workload";
@@ -67,25 +78,47 @@ int bench_evaluate(int argc, char** argv) {
     c.poles = {Complex(-p, 0), pair_root(wn, zp), std::conj(pair_root(wn, zp))};
   }
 
-  long long n = 0, stable = 0, met = 0;
-  double checksum = 0.0;
-  const auto t0 = std::chrono::steady_clock::now();
-  double elapsed = 0.0;
-  while (count > 0 ? n < count : elapsed < seconds) {
-    for (int i = 0; i < 256 && (count == 0 || n < count); ++i, ++n) {
-      const LoopEvaluation e = evaluate_loop(pool[static_cast<size_t>(n % 4096)], plant, req, region, opt, needs);
-      stable += e.stable;
-      bool all = e.stable;
-      for (const Requirement& r : req.items) all = all && requirement_met(r, e.values[static_cast<size_t>(r.metric)]);
-      met += all;
-      if (e.values[0].value) checksum += *e.values[0].value;
+  Implementation im;
+  im.sample_time_s = sample_time;
+  im.method = DiscreteMethod::Tustin;
+  im.compute_delay_samples = 1.0;
+  struct Run {
+    long long n = 0, stable = 0, met = 0;
+    double checksum = 0.0, elapsed = 0.0;
+  };
+  auto run = [&](bool sampled) {
+    Run r;
+    const auto t0 = std::chrono::steady_clock::now();
+    while (count > 0 ? r.n < count : r.elapsed < seconds) {
+      for (int i = 0; i < 256 && (count == 0 || r.n < count); ++i, ++r.n) {
+        const Zpk& c = pool[static_cast<size_t>(r.n % 4096)];
+        const LoopEvaluation e =
+            sampled ? evaluate_sampled_loop(implement_compensator(c, im, std::nullopt).discrete, plant, im, req, region, opt, 0,
+                                        screening_instants)
+                      .loop
+                    : evaluate_loop(c, plant, req, region, opt, needs);
+        r.stable += e.stable;
+        bool all = e.stable;
+        for (const Requirement& q : req.items) all = all && requirement_met(q, e.values[static_cast<size_t>(q.metric)]);
+        r.met += all;
+        if (e.values[0].value) r.checksum += *e.values[0].value;
+      }
+      r.elapsed = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
     }
-    elapsed = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
-  }
+    return r;
+  };
   std::printf("workload: 180000/(s(s+8)(s^2+2.4s+3600)) with random lead + notch compensators (seed %u), %s path\n",
               seed, full ? "full-accuracy (check)" : "screening");
-  std::printf("evaluations: %lld in %.2f s on one thread; stable %lld, meeting all %lld (checksum %.6g)\n", n, elapsed,
-              stable, met, checksum);
-  std::printf("evaluations per second: %.0f\n", n / elapsed);
+  const Run c = run(false);
+  std::printf("evaluations: %lld in %.2f s on one thread; stable %lld, meeting all %lld (checksum %.6g)\n", c.n, c.elapsed,
+              c.stable, c.met, c.checksum);
+  std::printf("evaluations per second: %.0f\n", c.n / c.elapsed);
+  if (sample_time > 0.0) {
+    const Run d = run(true);
+    std::printf("sampled at T = %g s (tustin, 1 sample delay): %lld in %.2f s; stable %lld, meeting all %lld (checksum %.6g)\n",
+                sample_time, d.n, d.elapsed, d.stable, d.met, d.checksum);
+    std::printf("sampled evaluations per second: %.0f (cost %.2f times the continuous evaluation)\n", d.n / d.elapsed,
+                (c.n / c.elapsed) / (d.n / d.elapsed));
+  }
   return 0;
 }

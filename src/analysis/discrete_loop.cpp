@@ -23,6 +23,7 @@ bool DiscreteLoopOptions::IsValid(std::string* error) const {
   if (!(band > 0.0 && band < 1.0)) return fail("band must be within (0, 1)");
   if (!(residue_share > 0.0 && residue_share < 1.0)) return fail("residue_share must be within (0, 1)");
   if (min_samples < 0 || max_samples < 10 || min_samples > max_samples) return fail("need 0 <= min_samples <= max_samples, max_samples >= 10");
+  if (window_samples < 0) return fail("window_samples must be >= 0");
   if (points_per_sample < 4 || points_per_sample > 1000) return fail("points_per_sample must be within 4..1000");
   return frequency.IsValid(error);
 }
@@ -258,18 +259,25 @@ StepMetrics sampled_step(const DLoop& cl, double y_final, const std::vector<Disc
   truncated = k > o.max_samples;
   int n = static_cast<int>(std::min<double>(o.max_samples, k));
   n = std::min(o.max_samples, std::max(n, o.min_samples));
+  if (o.window_samples > 0 && n > o.window_samples) {
+    n = std::max(o.window_samples, 10);
+    truncated = false;
+  }
   StepMetrics m;
   m.samples = n;
   m.horizon_s = (n - 1) * T;
   m.final_value = y_final;
   std::vector<double> y(static_cast<size_t>(n)), u(static_cast<size_t>(n));
   // The delayed samples make A mostly a shift: a sparse copy keeps long dead times cheap.
-  Eigen::VectorXd x = Eigen::VectorXd::Zero(cl.states());
+  // Two state buffers swapped each step: no allocation inside the loop.
+  Eigen::VectorXd x = Eigen::VectorXd::Zero(cl.states()), next(cl.states());
   const Eigen::SparseMatrix<double> A = cl.A.sparseView();
   for (int k = 0; k < n; ++k) {
     y[static_cast<size_t>(k)] = cl.Cy.dot(x) + cl.Dy;
     u[static_cast<size_t>(k)] = cl.Cu.dot(x) + cl.Du;
-    x = A * x + cl.B;
+    next.noalias() = A * x;
+    next += cl.B;
+    x.swap(next);
   }
   const double yf = y_final, ay = std::abs(yf), sg = yf >= 0.0 ? 1.0 : -1.0;
   double peak = -INFINITY, effort = 0.0, under = 0.0;

@@ -120,7 +120,8 @@ StructureSetup prepare(const Structure& s, size_t index, const Spec& spec, const
   ParamSpace ps = make_param_space(s, range, glo - 3.0, ghi + 3.0, sign);
   StructureSetup st;
   st.structure = s;
-  st.problem = std::make_shared<DesignProblem>(spec.plants, with_design_margin(spec.requirements, o.margin), region, screening, o.objective, ps);
+  st.problem = std::make_shared<DesignProblem>(spec.plants, with_design_margin(spec.requirements, o.margin), region, screening,
+                                               o.objective, ps, spec.implementation);
   if (o.metric_objective) st.problem->set_metric_objective(*o.metric_objective);
   for (Seed& sd : seeds) st.starts.push_back(sd);
   // Low-discrepancy screening points, shifted by a rotation drawn from the seed and structure.
@@ -187,7 +188,7 @@ long long escalate_round(int round, const std::vector<StructureSetup>& setups, c
   std::vector<std::shared_ptr<DesignProblem>> problems;
   for (const StructureSetup& st : setups) {
     problems.push_back(std::make_shared<DesignProblem>(spec.plants, with_design_margin(spec.requirements, margin), region, screening,
-                                                       o.objective, st.problem->space()));
+                                                       o.objective, st.problem->space(), spec.implementation));
   }
   struct Task {
     int kind = 0;  // 0 polish a near miss, 1 fresh starts, 2 global

@@ -230,9 +230,10 @@ std::vector<RetuneCandidate> from_design(const Spec& spec, const RetuneOptions& 
     std::string origin;
   };
   std::vector<Start> starts;
+  const double cap = rep.context.corner_cap_rad_s.value_or(INFINITY);
   for (const Candidate& c : dr.candidates) {
     if (!c.meets) continue;
-    RetuneSpace rs = make_retune_space(*spec.current, rep.context.frequency_range, {}, o.corner_decades, o.gain_decades);
+    RetuneSpace rs = make_retune_space(*spec.current, rep.context.frequency_range, {}, o.corner_decades, o.gain_decades, cap);
     std::vector<double> x;
     if (retune_params_of(rs, c.compensator, &x)) starts.push_back({rs, x, "design rank " + std::to_string(c.rank)});
   }
@@ -311,8 +312,10 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
   // The search aims inside the limits tightened by the design margin; verdicts use the stated ones.
   const CompensatorScorer screen(spec.plants, with_design_margin(spec.requirements, spec.search.margin_pct / 100.0),
                                  rep.context.region, screening, Objective::LeastEffort,
-                                 std::sqrt(rep.context.frequency_range.first * rep.context.frequency_range.second));
+                                 std::sqrt(rep.context.frequency_range.first * rep.context.frequency_range.second),
+                                 spec.implementation);
 
+  const double cap = rep.context.corner_cap_rad_s.value_or(INFINITY);
   // Structure levels by added order: the current structure, then one order-1 stage, then a notch.
   std::vector<std::vector<std::vector<AddedStage>>> levels = {{{}}};
   if (o.allow_new_stages) {
@@ -329,7 +332,7 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
     const auto t_level = Clock::now();
     std::vector<RetuneSpace> spaces;
     for (const auto& added : level)
-      spaces.push_back(make_retune_space(*spec.current, rep.context.frequency_range, added, o.corner_decades, o.gain_decades));
+      spaces.push_back(make_retune_space(*spec.current, rep.context.frequency_range, added, o.corner_decades, o.gain_decades, cap));
     // Added stages start at the identity, centred on the current loop's crossover when it has one.
     const auto& wc = rep.current.worst[static_cast<size_t>(MetricId::Crossover)];
     for (RetuneSpace& rs : spaces)

@@ -3,6 +3,7 @@
 #include "polewright/outputs/check_output.hpp"
 #include "polewright/outputs/design_output.hpp"
 #include "polewright/outputs/json_values.hpp"
+#include "polewright/synthesis/problem.hpp"
 
 namespace pw {
 
@@ -90,8 +91,34 @@ nlohmann::json candidate_json(const Candidate& c, const RequirementSet& req) {
   // The objective is only meaningful for a candidate that meets everything.
   j["objective"] = c.meets ? json_number(c.objective) : nlohmann::json(nullptr);
   j["origin"] = c.origin;
-  (void)req;
+  if (c.continuous) {
+    // The continuous loop of the same compensator, beside the sampled figures above.
+    nlohmann::json k;
+    k["meets"] = c.continuous->all_met;
+    k["stable"] = c.continuous->all_stable;
+    add_metrics(k, worst_metrics(c.continuous->plants, req));
+    j["continuous"] = k;
+  }
   return j;
+}
+
+void add_implementation_json(nlohmann::json& j, const LoopContext& ctx) {
+  if (!ctx.implementation) return;
+  const Implementation& im = *ctx.implementation;
+  j["implementation"] = {
+      {"label", sampled_label(im)},
+      {"sample_time_s", json_number(im.sample_time_s)},
+      {"method", discrete_method_name(im.method)},
+      {"prewarp_rad_s", im.prewarp_rad_s ? json_number(*im.prewarp_rad_s) : nlohmann::json(nullptr)},
+      {"compute_delay_samples", json_number(im.compute_delay_samples)},
+      {"word_length", word_length_name(im.word_length)},
+      {"nyquist_rad_s", json_number(M_PI / im.sample_time_s)},
+      {"corner_cap_share", json_number(kCornerNyquistShare)},
+      {"corner_cap_rad_s", ctx.corner_cap_rad_s ? json_number(*ctx.corner_cap_rad_s) : nlohmann::json(nullptr)},
+      {"note", ctx.corner_cap_rad_s ? nlohmann::json(ctx.corner_note()) : nlohmann::json(nullptr)},
+      {"figures", "metrics, violations, closed_loop_poles, meets and stable of every candidate are of the sampled "
+                  "loop (poles as s = ln(z) / T, step figures between the samples too); continuous holds the "
+                  "continuous loop's"}};
 }
 
 nlohmann::json design_report_json(const DesignReport& r, bool include_timing) {
@@ -101,6 +128,7 @@ nlohmann::json design_report_json(const DesignReport& r, bool include_timing) {
   j["status"] = r.met() ? "met" : "not_met";
   j["objective"] = objective_name(r.objective);
   add_search_context(j, r.context.region, r.context.frequency_range, r.context.plants, r.context.requirements, r.context.analysis);
+  add_implementation_json(j, r.context);
   nlohmann::json cands = nlohmann::json::array();
   for (const Candidate& c : r.candidates) cands.push_back(candidate_json(c, r.context.requirements));
   j["candidates"] = cands;

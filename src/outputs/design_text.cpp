@@ -56,10 +56,20 @@ std::string worst_violation(const Candidate& c) {
   return s;
 }
 
+std::string implementation_text(const LoopContext& ctx) {
+  if (!ctx.implementation) return "";
+  std::string out = "loop " + sampled_label(*ctx.implementation) +
+                    ": figures and verdicts are of the sampled loop (step figures between the samples too); "
+                    "\"continuous\" is the continuous loop's verdict\n";
+  if (ctx.corner_cap_rad_s) out += "note " + ctx.corner_note() + "\n";
+  return out;
+}
+
 std::string design_report_text(const DesignReport& r) {
   std::string out = "polewright design" + (r.spec_name.empty() ? std::string() : ": " + r.spec_name) + "\n";
   out += "objective " + std::string(objective_name(r.objective)) + ", corners within " + fmt_number(r.context.frequency_range.first) +
          " .. " + fmt_number(r.context.frequency_range.second) + " rad/s, " + std::to_string(r.context.plants.size()) + " plant(s)\n";
+  out += implementation_text(r.context);
   for (const std::string& w : conditioning_warnings(r.spec_document)) out += "warning " + w + "\n";
   out += "\n";
   std::vector<std::string> header = {"rank", "structure", "zero-pole gain", "low-freq gain", "zeros", "poles"};
@@ -70,6 +80,7 @@ std::string design_report_text(const DesignReport& r) {
   for (MetricId id : shown) header.push_back(metric_info(id).key);
   header.push_back("settling");
   header.push_back("verdict");
+  if (r.context.implementation) header.push_back("continuous");
   TextTable t(header);
   for (const Candidate& c : r.candidates) {
     std::string structure;
@@ -83,6 +94,7 @@ std::string design_report_text(const DesignReport& r) {
     }
     row.push_back(settling_robustness_text(c));
     row.push_back(candidate_verdict(c));
+    if (r.context.implementation) row.push_back(!c.continuous ? "-" : c.continuous->all_met ? "meets all" : "misses");
     t.add(row);
   }
   out += r.candidates.empty() ? "  no candidate\n" : t.render();

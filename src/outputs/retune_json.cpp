@@ -39,6 +39,7 @@ nlohmann::json retune_report_json(const RetuneReport& r, bool include_timing) {
   j["unchanged"] = r.already_met;
   j["warnings"] = conditioning_warnings(r.spec_document);
   add_search_context(j, r.context.region, r.context.frequency_range, r.context.plants, r.context.requirements, r.context.analysis);
+  add_implementation_json(j, r.context);
   nlohmann::json cur = candidate_json(r.current, r.context.requirements);
   cur.erase("rank");
   cur.erase("objective");

@@ -32,6 +32,7 @@ std::string change_table(const RetuneCandidate& rc) {
 
 std::string retune_report_text(const RetuneReport& r) {
   std::string out = "polewright retune" + (r.spec_name.empty() ? std::string() : ": " + r.spec_name) + "\n";
+  out += implementation_text(r.context);
   for (const std::string& w : conditioning_warnings(r.spec_document)) out += "warning " + w + "\n";
   const Candidate& cur = r.current;
   out += "in service: " + zpk_to_string(cur.compensator) + "  (" + candidate_verdict(cur) + ")\n";

@@ -2,6 +2,7 @@
 
 #include "../model/format_text.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <stdexcept>
@@ -130,7 +131,7 @@ Plant plant_with_compute_delay(const Plant& plant, const Implementation& im) {
 
 SampledLoopEvaluation evaluate_sampled_loop(const Zpk& cd, const Plant& plant, const Implementation& im,
                                             const RequirementSet& req, const Region& region,
-                                            const AnalysisOptions& options, int min_samples) {
+                                            const AnalysisOptions& options, int min_samples, bool screening) {
   DiscreteLoopOptions lo;
   lo.sample_time_s = im.sample_time_s;
   lo.compute_delay = 0;  // folded into the plant's dead time (exact for a fraction too)
@@ -139,7 +140,8 @@ SampledLoopEvaluation evaluate_sampled_loop(const Zpk& cd, const Plant& plant, c
   lo.error_signal = req.error_signal;
   lo.frequency = options.frequency;
   lo.keep_trace = options.step.keep_trace;
-  lo.between_samples = true;
+  lo.between_samples = !screening;
+  if (screening) lo.window_samples = screening_window_samples(req, im.sample_time_s);
   lo.min_samples = std::min(std::max(min_samples, 0), lo.max_samples);
   const Plant p = plant_with_compute_delay(plant, im);
   SampledLoopEvaluation s;
@@ -175,6 +177,16 @@ SampledLoopEvaluation evaluate_sampled_loop(const Zpk& cd, const Plant& plant, c
     set_gain_tolerance_metric(e.values, e.gain.tolerance_pct);
   }
   return s;
+}
+
+int screening_window_samples(const RequirementSet& req, double T) {
+  double longest = 0.0;
+  for (const Requirement& r : req.items)
+    if (r.sense == Sense::AtMost &&
+        (r.metric == MetricId::SettlingTime || r.metric == MetricId::RiseTime))
+      longest = std::max(longest, r.limit);
+  if (!(longest > 0.0) || !(T > 0.0)) return 0;
+  return static_cast<int>(std::min(2e5, std::max(200.0, std::ceil(4.0 * longest / T))));
 }
 
 SampledEvaluation evaluate_sampled(const Zpk& c, const std::vector<Plant>& plants, const RequirementSet& req,

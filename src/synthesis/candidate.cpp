@@ -1,5 +1,8 @@
 #include "polewright/synthesis/candidate.hpp"
 
+#include <cmath>
+#include <cstdio>
+
 #include "polewright/synthesis/fragility.hpp"
 #include "polewright/synthesis/parameters.hpp"
 #include "polewright/synthesis/problem.hpp"
@@ -14,13 +17,51 @@ LoopContext LoopContext::FromSpec(const Spec& spec) {
   c.analysis = spec.analysis;
   c.frequency_range = spec.stages.frequency_range_rad_s ? *spec.stages.frequency_range_rad_s
                                                         : default_frequency_range(spec.plants, c.region);
+  c.uncut_frequency_range = c.frequency_range;
+  c.implementation = spec.implementation;
+  if (c.implementation) {
+    const double cap = kCornerNyquistShare * M_PI / c.implementation->sample_time_s;
+    if (c.frequency_range.second > cap) {
+      c.corner_cap_rad_s = cap;
+      c.frequency_range.second = cap;
+      // A range entirely above the cap keeps a decade below it.
+      if (c.frequency_range.first >= cap) c.frequency_range.first = cap / 10.0;
+    }
+  }
   return c;
+}
+
+std::string LoopContext::corner_note() const {
+  if (!corner_cap_rad_s || !implementation) return "";
+  char buf[400];
+  std::snprintf(buf, sizeof buf,
+                "corners above %.6g rad/s (%.6g of the Nyquist frequency pi / T = %.6g rad/s at T = %.6g s) are left out "
+                "of the search: the frequency range [%.6g, %.6g] rad/s was cut to [%.6g, %.6g] rad/s",
+                *corner_cap_rad_s, kCornerNyquistShare, M_PI / implementation->sample_time_s,
+                implementation->sample_time_s, uncut_frequency_range.first, uncut_frequency_range.second,
+                frequency_range.first, frequency_range.second);
+  return buf;
 }
 
 Candidate Verifier::verify(const Zpk& compensator, Objective objective, bool fragility) const {
   Candidate c;
   c.compensator = compensator;
   c.verification = evaluate_all(compensator, context_.plants, context_.requirements, context_.region, context_.analysis);
+  if (context_.implementation) {
+    // The sampled loop is the verdict; the continuous check stays beside it. A compensator the
+    // implementation cannot run (a warp point it cannot find, an overflow) meets nothing.
+    c.continuous = c.verification;
+    try {
+      c.verification = evaluate_sampled(compensator, context_.plants, context_.requirements, context_.region,
+                                        context_.analysis, *context_.implementation, *c.continuous)
+                           .evaluation;
+    } catch (const SpecError&) {
+      c.verification.all_stable = false;
+      c.verification.all_met = false;
+      c.verification.total_violation += kUnstableViolation;
+      for (RequirementOutcome& o : c.verification.outcomes) o.met = false;
+    }
+  }
   c.worst = worst_metrics(c.verification.plants, context_.requirements);
   c.meets = c.verification.all_met;
   c.violation = c.verification.total_violation;

@@ -2,6 +2,8 @@
 
 #include <cmath>
 
+#include "polewright/requirements/sampled_evaluate.hpp"
+
 namespace pw {
 
 double objective_value(Objective o, const std::vector<MetricValue>& w, double hf_gain) {
@@ -72,17 +74,46 @@ std::vector<MetricValue> worst_metrics(const std::vector<LoopEvaluation>& plants
 }
 
 CompensatorScorer::CompensatorScorer(std::vector<Plant> plants, RequirementSet req, Region region,
-                                     AnalysisOptions screening, Objective objective, double frequency_ref)
+                                     AnalysisOptions screening, Objective objective, double frequency_ref,
+                                     std::optional<Implementation> implementation)
     : plants_(std::move(plants)), req_(std::move(req)), region_(region), opt_(screening), objective_(objective),
-      frequency_ref_(frequency_ref) {}
+      frequency_ref_(frequency_ref), implementation_(std::move(implementation)) {}
 
 DesignProblem::DesignProblem(std::vector<Plant> plants, RequirementSet req, Region region, AnalysisOptions screening,
-                             Objective objective, ParamSpace space)
+                             Objective objective, ParamSpace space, std::optional<Implementation> implementation)
     : space_(std::move(space)),
       scorer_(std::move(plants), std::move(req), region, screening, objective,
-              std::sqrt(space_.freq_lo * space_.freq_hi)) {}
+              std::sqrt(space_.freq_lo * space_.freq_hi), std::move(implementation)) {}
 
 DesignScore DesignProblem::score(const std::vector<double>& x) const { return scorer_.score(params_to_zpk(space_, x)); }
+
+std::vector<LoopEvaluation> CompensatorScorer::loops(const Zpk& c, const EvaluationNeeds& needs) const {
+  std::vector<LoopEvaluation> evals;
+  evals.reserve(plants_.size());
+  if (!implementation_) {
+    for (const Plant& p : plants_) evals.push_back(evaluate_loop(c, p, req_, region_, opt_, needs));
+    return evals;
+  }
+  const Implementation& im = *implementation_;
+  try {
+    // The prewarp method without its own warp point warps at the nominal continuous crossover.
+    std::optional<double> wc;
+    if (im.method == DiscreteMethod::Prewarp && !im.prewarp_rad_s) {
+      EvaluationNeeds f;
+      f.everything = false;
+      f.frequency = true;
+      wc = evaluate_loop(c, plants_.front(), req_, region_, opt_, f).frequency.crossover_rad_s;
+    }
+    const Zpk cd = implement_compensator(c, im, wc).discrete;
+    // The sampled screening: step figures at the instants only, from a window of four times the
+    // longest time limit (the verification looks between the samples over the whole horizon, and
+    // the design margin keeps the search inside the limits).
+    for (const Plant& p : plants_) evals.push_back(evaluate_sampled_loop(cd, p, im, req_, region_, opt_, 0, true).loop);
+  } catch (const SpecError&) {
+    evals.clear();
+  }
+  return evals;
+}
 
 DesignScore CompensatorScorer::score(const Zpk& c) const {
   EvaluationNeeds needs;
@@ -90,13 +121,15 @@ DesignScore CompensatorScorer::score(const Zpk& c) const {
   needs.step = objective_ == Objective::LeastEffort || objective_ == Objective::Simplest || objective_ == Objective::Fastest ||
                (metric_objective_ && metric_info(metric_objective_->metric).time_domain);
   needs.frequency = objective_ == Objective::MostRobust;
-  std::vector<LoopEvaluation> evals;
-  evals.reserve(plants_.size());
+  const std::vector<LoopEvaluation> evals = loops(c, needs);
   DesignScore s;
+  if (evals.empty()) {
+    s.violation = kUnstableViolation + kIllPosedPenalty * static_cast<double>(plants_.size());
+    s.objective = 1e300;
+    return s;
+  }
   double unstable = 0.0;
-  for (const Plant& p : plants_) {
-    evals.push_back(evaluate_loop(c, p, req_, region_, opt_, needs));
-    const LoopEvaluation& e = evals.back();
+  for (const LoopEvaluation& e : evals) {
     if (!e.well_posed) {
       unstable += kIllPosedPenalty;
     } else if (!e.stable) {

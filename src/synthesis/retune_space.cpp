@@ -96,7 +96,8 @@ double bode_gain(const Zpk& z) {
 }
 
 RetuneSpace make_retune_space(const Zpk& current, std::pair<double, double> range, const std::vector<AddedStage>& added,
-                              double corner_decades, double gain_decades) {
+                              double corner_decades, double gain_decades, double corner_cap_rad_s) {
+  const double cap = std::log10(corner_cap_rad_s);
   if (!(current.gain != 0.0) || !std::isfinite(current.gain))
     throw std::invalid_argument("the current compensator has a zero or non-finite gain");
   RetuneSpace rs;
@@ -116,12 +117,12 @@ RetuneSpace make_retune_space(const Zpk& current, std::pair<double, double> rang
         rs.factors.push_back({zeros ? FactorKind::RealZero : FactorKind::RealPole, Complex(r.real(), 0.0),
                               r.real() < 0.0 ? 1.0 : -1.0, rs.dim()});
         const double c = std::log10(std::abs(r.real()));
-        push(rs, what + " corner", c, c - corner_decades, c + corner_decades);
+        push(rs, what + " corner", c, c - corner_decades, std::min(c + corner_decades, cap));
       } else if (r.imag() > 0.0) {
         const double wn = std::abs(r), zeta = -r.real() / wn;
         rs.factors.push_back({zeros ? FactorKind::ZeroPair : FactorKind::PolePair, r, zeta < 0.0 ? -1.0 : 1.0, rs.dim()});
         const double c = std::log10(wn);
-        push(rs, what + " natural frequency", c, c - corner_decades, c + corner_decades);
+        push(rs, what + " natural frequency", c, c - corner_decades, std::min(c + corner_decades, cap));
         const double lz = std::log10(std::max(std::abs(zeta), 1e-6));
         push(rs, what + " damping", lz, lz - 1.0, std::min(std::log10(kZetaMax), lz + 1.0));
       }

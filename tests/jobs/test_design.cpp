@@ -2,6 +2,7 @@
 
 #include <cstdio>
 
+#include "polewright/jobs/check.hpp"
 #include "polewright/jobs/design.hpp"
 #include "polewright/outputs/design_output.hpp"
 #include "polewright/requirements/spec_parse.hpp"
@@ -332,4 +333,53 @@ TEST_CASE("an integrator parked at the bottom of the range is listed only when t
       CHECK(worse);
     }
   }
+}
+
+TEST_CASE("design with an implementation ranks and verifies on the sampled loop, as check judges it",
+          "[jobs][design][implementation]") {
+  // 1 / (s (s + 1)) run by a zero-order hold at T = 0.5 s: K = 1 meets 20 % overshoot in
+  // continuous time (16.3 %, analytic) but not sampled (tests/jobs/test_check.cpp). The design must
+  // return a lead whose sampled loop meets, and check of that compensator with the same spec must
+  // give the same verdict and the same worst values.
+  const Spec spec = spec_of(R"({"plant": {"numerator": [1], "denominator": [1, 1, 0]},
+    "requirements": {"overshoot_pct": {"max": 20}, "phase_margin_deg": {"min": 30}, "settling_time_s": {"max": 12}},
+    "stages": {"lead": 1, "frequency_range_rad_s": [0.05, 50]},
+    "search": {"keep": 2},
+    "implementation": {"sample_time_s": 0.5, "method": "zoh"}})");
+  DesignOptions o = DesignOptions::FromSpec(spec);
+  o.threads = 1;
+  const DesignReport r = run_design(spec, o);
+  REQUIRE(r.met());
+  REQUIRE(r.context.corner_cap_rad_s);  // 0.5 pi / T = 3.14 rad/s < 50
+  for (const Candidate& c : r.candidates) {
+    REQUIRE(c.continuous);
+    for (const Complex& z : c.compensator.zeros) CHECK(std::abs(z) <= *r.context.corner_cap_rad_s * (1 + 1e-9));
+    for (const Complex& p : c.compensator.poles) CHECK(std::abs(p) <= *r.context.corner_cap_rad_s * (1 + 1e-9));
+    const CheckReport k = run_check(spec, c.compensator);
+    REQUIRE(k.sampled);
+    CHECK(k.evaluation.all_met == c.meets);
+    REQUIRE(k.evaluation.outcomes.size() == c.verification.outcomes.size());
+    for (size_t i = 0; i < k.evaluation.outcomes.size(); ++i) {
+      CHECK(k.evaluation.outcomes[i].met == c.verification.outcomes[i].met);
+      REQUIRE(k.evaluation.outcomes[i].worst.value);
+      CHECK(*k.evaluation.outcomes[i].worst.value == Approx(*c.verification.outcomes[i].worst.value).epsilon(1e-12));
+    }
+  }
+  // The outputs say so: the label, the note, the continuous figures beside the sampled ones.
+  const json j = design_report_json(r, false);
+  REQUIRE(j.contains("implementation"));
+  CHECK(j["implementation"]["label"] == sampled_label(*spec.implementation));
+  CHECK(j["implementation"]["corner_cap_rad_s"].get<double>() == Approx(M_PI));
+  CHECK(j["implementation"]["note"].get<std::string>().find("left out of the search") != std::string::npos);
+  CHECK(j["candidates"][0].contains("continuous"));
+  const std::string text = design_report_text(r);
+  CHECK(text.find(sampled_label(*spec.implementation)) != std::string::npos);
+  CHECK(text.find("left out of the search") != std::string::npos);
+  // Without the block the same spec designs on the continuous loop, and says nothing of sampling.
+  json plain = spec.document;
+  plain.erase("implementation");
+  const DesignReport c = run_design(parse_spec(plain), o);
+  const json jc = design_report_json(c, false);
+  CHECK_FALSE(jc.contains("implementation"));
+  CHECK_FALSE(jc["candidates"][0].contains("continuous"));
 }

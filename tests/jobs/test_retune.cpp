@@ -165,3 +165,33 @@ TEST_CASE("retune escalation: the flexible arm joint meets the new settling boun
   for (const SearchPhase& p : r.summary.phases) sum += p.evaluations;
   CHECK(sum == r.summary.evaluations);
 }
+
+TEST_CASE("retune with an implementation: a gain that meets in continuous time is retuned for the sampled loop",
+          "[jobs][retune][implementation]") {
+  // 1 / (s (s + 1)) under K = 1: overshoot 16.3 % continuous (zeta = 0.5, analytic), beyond 20 % when a
+  // zero-order hold runs it at T = 0.5 s (tests/jobs/test_check.cpp). A lower gain meets sampled.
+  const Spec spec = spec_with(R"({"plant": {"numerator": [1], "denominator": [1, 1, 0]},
+    "requirements": {"overshoot_pct": {"max": 20}, "phase_margin_deg": {"min": 30}},
+    "stages": {"lead": 1, "frequency_range_rad_s": [0.05, 50]},
+    "current": {"gain": 1.0, "zeros": [], "poles": []},
+    "search": {"keep": 2},
+    "implementation": {"sample_time_s": 0.5, "method": "zoh"}})");
+  RetuneOptions o = RetuneOptions::FromSpec(spec);
+  o.threads = 1;
+  const RetuneReport r = run_retune(spec, o);
+  REQUIRE(r.current.continuous);
+  CHECK(r.current.continuous->all_met);
+  CHECK_FALSE(r.current.meets);
+  CHECK_FALSE(r.already_met);
+  REQUIRE(r.met());
+  const Candidate& top = r.candidates.front().candidate;
+  const CheckReport k = run_check(spec, top.compensator);
+  REQUIRE(k.sampled);
+  CHECK(k.evaluation.all_met);
+  CHECK(top.meets);
+  const json j = retune_report_json(r, false);
+  REQUIRE(j.contains("implementation"));
+  CHECK(j["implementation"]["label"] == sampled_label(*spec.implementation));
+  CHECK(j["current"].contains("continuous"));
+  CHECK(retune_report_text(r).find(sampled_label(*spec.implementation)) != std::string::npos);
+}

@@ -3,6 +3,8 @@
 #include <chrono>
 #include <thread>
 
+#include "polewright/jobs/check.hpp"
+#include "polewright/requirements/spec_parse.hpp"
 #include "polewright/jobs/sweep.hpp"
 
 using namespace pw;
@@ -180,4 +182,34 @@ TEST_CASE("a stop request cancels the points in flight; they are not delivered",
   CHECK(s.ran == static_cast<long long>(delivered.size()));
   CHECK(s.ran + s.abandoned <= 2 + static_cast<long long>(delivered.size()));
   for (size_t i = 0; i < delivered.size(); ++i) CHECK(delivered[i] == static_cast<long long>(i));  // an in-order prefix
+}
+
+TEST_CASE("a design point with an implementation designs on the sampled loop; the sample time can vary",
+          "[jobs][sweep][implementation]") {
+  // 1 / (s (s + 1)) with the implementation's sample time a parameter: at T = 0.5 s a zero-order hold
+  // makes K = 1 overshoot beyond 20 % (tests/jobs/test_check.cpp), so a point must be designed on its
+  // sampled loop; `method` stays a word in the base (no expression).
+  const SweepFile f = parse_sweep(json::parse(R"({
+    "base": {"plant": {"numerator": [1], "denominator": [1, 1, 0]},
+             "requirements": {"overshoot_pct": {"max": 20}, "phase_margin_deg": {"min": 30}, "settling_time_s": {"max": 12}},
+             "stages": {"lead": 1, "frequency_range_rad_s": [0.05, 50]},
+             "search": {"keep": 1},
+             "implementation": {"sample_time_s": "T", "method": "zoh"}},
+    "parameters": {"T": {"values": [0.5, 0.05]}},
+    "job": "design"})"));
+  const SweepPoints pts(f);
+  REQUIRE(pts.size() == 2);
+  for (long long i = 0; i < pts.size(); ++i) {
+    const SweepPointResult r = run_sweep_point(f, pts, i);
+    INFO("point " << i << ": " << r.message);
+    REQUIRE(r.top);
+    REQUIRE(r.top->continuous);  // verified on the sampled loop, the continuous figures beside
+    const Spec spec = parse_spec(point_spec(f, pts.at(i), 1));
+    REQUIRE(spec.implementation);
+    CHECK(spec.implementation->sample_time_s == pts.at(i)[0]);
+    const CheckReport k = run_check(spec, r.top->compensator);
+    REQUIRE(k.sampled);
+    CHECK(k.evaluation.all_met == r.top->meets);
+    CHECK(r.status == (r.top->meets ? PointStatus::Met : PointStatus::NotMet));
+  }
 }

@@ -120,3 +120,57 @@ TEST_CASE("sampled_label names T, the method and the delay", "[implementation][s
   im.method = DiscreteMethod::Zoh;
   CHECK(sampled_label(im) == "sampled at T = 0.002 s (zoh, delay 0.5 samples, float coefficients)");
 }
+
+TEST_CASE("the screening window is four times the longest time limit, in samples", "[implementation][sampled_evaluate]") {
+  RequirementSet r = overshoot_max(10);
+  CHECK(screening_window_samples(r, 0.002) == 0);  // no time limit: no window
+  r.items.push_back({MetricId::SettlingTime, Sense::AtMost, 0.8});
+  r.items.push_back({MetricId::RiseTime, Sense::AtMost, 0.3});
+  CHECK(screening_window_samples(r, 0.002) == 1600);  // 4 * 0.8 / 0.002 (by hand)
+  CHECK(screening_window_samples(r, 0.1) == 200);     // 32 samples, raised to the floor of 200
+}
+
+TEST_CASE("the screening form of the sampled loop: figures at the instants from the window", "[implementation][sampled_evaluate]") {
+  // K a / (s + a) with a = 2, K = 0.5 at T = 0.1 (closed form above): a first-order loop with pole
+  // z = e^(-aT) - K (1 - e^(-aT)) = 0.7280 has no overshoot between or at the samples, and its
+  // samples y[k] = y_f (1 - z^k) (first-order difference equation, by hand) reach the 2 % band
+  // after ln(0.02) / ln(z) = 12.3 samples, well inside the window of 4 * 5 s / 0.1 = 200 samples.
+  const double a = 2.0, K = 0.5, T = 0.1, e = std::exp(-a * T), z = e - K * (1.0 - e);
+  const Zpk c = make(K, {}, {});
+  const Plant g = plant_of(make(a, {}, {-a}));
+  RequirementSet req = overshoot_max(50);
+  req.items.push_back({MetricId::SettlingTime, Sense::AtMost, 5.0});
+  const Region region;
+  const SampledLoopEvaluation full = evaluate_sampled_loop(c, g, impl(T), req, region, AnalysisOptions{});
+  const SampledLoopEvaluation screen = evaluate_sampled_loop(c, g, impl(T), req, region, AnalysisOptions{}, 0, true);
+  REQUIRE(full.loop.step);
+  REQUIRE(screen.loop.step);
+  CHECK_FALSE(screen.analysis.step_at_samples);  // no look between the samples
+  CHECK(full.analysis.step_at_samples);
+  CHECK(screen.loop.step->samples <= 200);
+  const double ts = std::log(0.02) / std::log(z) * T;  // continuous-k crossing; the tool interpolates linearly
+  REQUIRE(screen.loop.step->settling_time_s);
+  CHECK(*screen.loop.step->settling_time_s == Approx(ts).epsilon(0.03));
+  CHECK(*screen.loop.step->settling_time_s == Approx(*full.analysis.step_at_samples->settling_time_s).epsilon(1e-12));
+}
+
+TEST_CASE("the screening window cuts a long step without flagging it truncated", "[implementation][sampled_evaluate]") {
+  // The same loop at T = 0.01: z = e^(-0.02) - 0.5 (1 - e^(-0.02)) = 0.9703; the envelope horizon
+  // (a tenth of the 2 % band) is about ln(0.002 / 3) / ln(z) = 243 samples, the window 200 (the floor;
+  // 4 * 0.05 / 0.01 = 20), and the band is reached after ln(0.02) / ln(z) = 130 samples (by hand).
+  const double a = 2.0, K = 0.5, T = 0.01, e = std::exp(-a * T), z = e - K * (1.0 - e);
+  const Zpk c = make(K, {}, {});
+  const Plant g = plant_of(make(a, {}, {-a}));
+  RequirementSet req = overshoot_max(50);
+  req.items.push_back({MetricId::SettlingTime, Sense::AtMost, 0.05});
+  const Region region;
+  const SampledLoopEvaluation full = evaluate_sampled_loop(c, g, impl(T), req, region, AnalysisOptions{});
+  const SampledLoopEvaluation screen = evaluate_sampled_loop(c, g, impl(T), req, region, AnalysisOptions{}, 0, true);
+  REQUIRE(full.loop.step);
+  REQUIRE(screen.loop.step);
+  CHECK(full.loop.step->samples > 200);
+  CHECK(screen.loop.step->samples == 200);
+  CHECK_FALSE(screen.analysis.step_truncated);
+  REQUIRE(screen.loop.step->settling_time_s);
+  CHECK(*screen.loop.step->settling_time_s == Approx(std::log(0.02) / std::log(z) * T).epsilon(0.01));
+}

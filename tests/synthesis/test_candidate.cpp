@@ -47,3 +47,61 @@ TEST_CASE("the settling-cliff check can be deferred and added later with the sam
   CHECK(later.settling_jump_share == full.settling_jump_share);
   CHECK(full.fragile);  // the cliff: a 10 % narrower band adds an oscillation period
 }
+
+namespace {
+// 1 / (s (s + 1)) under K = 1: continuous zeta = 0.5, overshoot 16.3 % (analytic), PM 51.8 deg;
+// run by a zero-order hold at T = 0.5 s it overshoots beyond 20 % (tests/jobs/test_check.cpp).
+const char* kSampledSpec = R"({
+  "plant": {"numerator": [1], "denominator": [1, 1, 0]},
+  "requirements": {"overshoot_pct": {"max": 20}, "phase_margin_deg": {"min": 30}},
+  "stages": {"lead": 1, "frequency_range_rad_s": [0.05, 50]},
+  "implementation": {"sample_time_s": 0.5, "method": "zoh"}
+})";
+}  // namespace
+
+TEST_CASE("with an implementation the verifier judges the sampled loop, the continuous one beside it",
+          "[synthesis][candidate][implementation]") {
+  const Spec spec = parse_spec(nlohmann::json::parse(kSampledSpec));
+  const Verifier v(LoopContext::FromSpec(spec));
+  REQUIRE(v.context().implementation);
+  Zpk k1;
+  k1.gain = 1.0;
+  const Candidate c = v.verify(k1);
+  REQUIRE(c.continuous);
+  CHECK(c.continuous->all_met);  // 16.3 % < 20 % in continuous time
+  CHECK_FALSE(c.meets);          // the sampled loop overshoots more
+  // The verdict is the one the sampled evaluation gives (the check path) on the same loop.
+  const Evaluation s = evaluate_sampled(k1, spec.plants, spec.requirements, v.context().region, spec.analysis,
+                                        *spec.implementation, *c.continuous)
+                           .evaluation;
+  REQUIRE(s.outcomes.size() == c.verification.outcomes.size());
+  for (size_t i = 0; i < s.outcomes.size(); ++i) {
+    CHECK(s.outcomes[i].met == c.verification.outcomes[i].met);
+    REQUIRE(s.outcomes[i].worst.value);
+    CHECK(*s.outcomes[i].worst.value == *c.verification.outcomes[i].worst.value);
+  }
+  CHECK(*c.worst[static_cast<size_t>(MetricId::Overshoot)].value > 20.0);
+}
+
+TEST_CASE("with an implementation the corner range is cut at half the Nyquist frequency, with a note",
+          "[synthesis][candidate][implementation]") {
+  // T = 0.5 s: pi / T = 6.283 rad/s, so corners stop at kCornerNyquistShare pi / T = 3.1416 rad/s.
+  const Spec spec = parse_spec(nlohmann::json::parse(kSampledSpec));
+  const LoopContext ctx = LoopContext::FromSpec(spec);
+  REQUIRE(ctx.corner_cap_rad_s);
+  CHECK(*ctx.corner_cap_rad_s == Approx(0.5 * M_PI / 0.5).epsilon(1e-12));
+  CHECK(ctx.frequency_range.first == 0.05);
+  CHECK(ctx.frequency_range.second == Approx(M_PI).epsilon(1e-12));
+  CHECK(ctx.uncut_frequency_range.second == 50.0);
+  CHECK(ctx.corner_note().find("3.14159 rad/s") != std::string::npos);
+  // A range below the cap is left alone, and without an implementation there is no cut.
+  nlohmann::json j = nlohmann::json::parse(kSampledSpec);
+  j["stages"]["frequency_range_rad_s"] = {0.05, 3.0};
+  const LoopContext low = LoopContext::FromSpec(parse_spec(j));
+  CHECK_FALSE(low.corner_cap_rad_s);
+  CHECK(low.frequency_range.second == 3.0);
+  CHECK(low.corner_note().empty());
+  j.erase("implementation");
+  j["stages"]["frequency_range_rad_s"] = {0.05, 50.0};
+  CHECK_FALSE(LoopContext::FromSpec(parse_spec(j)).corner_cap_rad_s);
+}

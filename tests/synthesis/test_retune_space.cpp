@@ -124,3 +124,24 @@ TEST_CASE("retune_params_of maps a compensator of the same structure into the re
   real_poles.poles = {Complex(-10, 0), Complex(-2, 0), Complex(-12, 0)};
   CHECK_FALSE(retune_params_of(rs, real_poles, &x));
 }
+
+TEST_CASE("a corner cap keeps retuned corners below it, or where they are when above already",
+          "[synthesis][retune_space][implementation]") {
+  // Corners of kCurrent: 4 and |-3+j59.92| = 60 (zeros), 40 and |-42+j42.85| = 60 (poles). With a cap
+  // at 50 rad/s the zero at 4 may rise to 50 (not 4 * 10^1.5 = 126), the pole at 40 to 50, and the
+  // pairs at 60 stay at most where they are (by hand).
+  const RetuneSpace free = make_retune_space(kCurrent, {0.5, 600.0});
+  const RetuneSpace capped = make_retune_space(kCurrent, {0.5, 600.0}, {}, 1.5, 2.0, 50.0);
+  REQUIRE(capped.dim() == free.dim());
+  for (int i = 0; i < capped.dim(); ++i) {
+    const std::string& n = capped.names[static_cast<size_t>(i)];
+    INFO(n);
+    CHECK(capped.lower[static_cast<size_t>(i)] == free.lower[static_cast<size_t>(i)]);
+    if (n.find("corner") != std::string::npos || n.find("natural frequency") != std::string::npos) {
+      const double c = capped.current[static_cast<size_t>(i)];
+      CHECK(capped.upper[static_cast<size_t>(i)] == Approx(std::max(c, std::log10(50.0))).epsilon(1e-12));
+    } else {
+      CHECK(capped.upper[static_cast<size_t>(i)] == free.upper[static_cast<size_t>(i)]);
+    }
+  }
+}

@@ -44,6 +44,9 @@ struct DiscreteLoopOptions {
   double residue_share = 0.02; // a pole "matters" at this share of the step response or more
   int min_samples = 0;         // simulate at least this many samples
   int max_samples = 200000;    // and at most this many
+  // Screening: when > 0, simulate at most this many samples and take the figures from that window
+  // (a loop still outside the band at its end has no settling time; not flagged as truncated).
+  int window_samples = 0;
   bool keep_trace = false;
   // Step figures of y between the samples too: the continuous plant output inside each hold
   // interval (exact propagation e^(A tau) with the held input, which switches inside the interval

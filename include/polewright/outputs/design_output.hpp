@@ -26,6 +26,11 @@ void add_search_context(nlohmann::json& j, const Region& region, std::pair<doubl
 void add_search_phases(nlohmann::json& search, const DesignSummary& s);
 // Wall-clock seconds per phase, in the order of "phases" (for the optional "timing" block only).
 nlohmann::json phase_seconds_json(const DesignSummary& s);
+// With an implementation in the context: "implementation" (label, sample time, method, delay, word
+// length, Nyquist, the corner cap and its note, or null), and nothing without one.
+void add_implementation_json(nlohmann::json& j, const LoopContext& ctx);
+// Lines for the text reports: "loop ... sampled at T ..." and the corner note ("" without an implementation).
+std::string implementation_text(const LoopContext& ctx);
 nlohmann::json design_report_json(const DesignReport& r, bool include_timing = true);
 std::string design_report_text(const DesignReport& r);
 

@@ -47,9 +47,16 @@ struct SampledLoopEvaluation {
   DiscreteLoopAnalysis analysis;   // z-plane poles, the step at the samples and between them
 };
 // `min_samples`: simulate at least this many samples (the continuous step's horizon over T).
+// `screening` (the search's cheap path; verification and check leave it off): step figures at the
+// sample instants only, from a window of screening_window_samples(req, T) samples at most.
 SampledLoopEvaluation evaluate_sampled_loop(const Zpk& discrete, const Plant& plant, const Implementation& im,
                                             const RequirementSet& req, const Region& region,
-                                            const AnalysisOptions& options, int min_samples = 0);
+                                            const AnalysisOptions& options, int min_samples = 0,
+                                            bool screening = false);
+
+// The screening's step window: four times the largest upper time limit of `req` (settling, rise)
+// in samples of T, at least 200; 0 (no window) when `req` bounds no time.
+int screening_window_samples(const RequirementSet& req, double sample_time_s);
 
 // Every plant's sampled loop and the worst case over them (the check verdict with an implementation).
 struct SampledEvaluation {

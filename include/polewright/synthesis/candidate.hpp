@@ -3,11 +3,13 @@
 // check over every plant out. Design, retune and sweep verify through it.
 #pragma once
 
+#include <optional>
 #include <string>
 #include <utility>
 #include <vector>
 
 #include "polewright/requirements/evaluate.hpp"
+#include "polewright/requirements/sampled_evaluate.hpp"
 #include "polewright/requirements/spec.hpp"
 #include "polewright/synthesis/structure.hpp"
 
@@ -19,7 +21,9 @@ struct Candidate {
   Zpk compensator;
   std::vector<double> parameters;
   std::string origin;                  // which start led here
-  Evaluation verification;             // full-accuracy check over every plant
+  Evaluation verification;             // full-accuracy check over every plant (of the sampled loop
+                                       // when the spec has an implementation)
+  std::optional<Evaluation> continuous;  // with an implementation: the continuous loop's check beside it
   std::vector<MetricValue> worst;      // worst case over the plants, per MetricId
   bool meets = false;
   double objective = 0.0;
@@ -34,6 +38,10 @@ struct Candidate {
   bool margins_at_noise = false;
 };
 
+// With an implementation, compensator corners (searched zeros and poles) stay below this share of
+// the Nyquist frequency pi / T: the frequency range the search draws corners from is cut there.
+constexpr double kCornerNyquistShare = 0.5;
+
 // What every search of one spec shares: the loop and how it is judged.
 struct LoopContext {
   std::vector<Plant> plants;
@@ -41,6 +49,15 @@ struct LoopContext {
   Region region;
   AnalysisOptions analysis;              // full accuracy (the screening options derive from it)
   std::pair<double, double> frequency_range;  // rad/s: where compensator corners go
+  // How the compensator runs: then every candidate is verified (and screened) on the sampled loop.
+  std::optional<Implementation> implementation;
+  // Set when the implementation cut the frequency range at kCornerNyquistShare * pi / T (rad/s).
+  std::optional<double> corner_cap_rad_s;
+  std::pair<double, double> uncut_frequency_range;  // the range before that cut
+
+  // "corners above 785.4 rad/s (0.5 of the Nyquist frequency pi / T) are left out of the search: ..."
+  // when the cut applies, else "".
+  std::string corner_note() const;
 
   // The context of a spec: region from its requirements, the spec's frequency range or the default.
   static LoopContext FromSpec(const Spec& spec);

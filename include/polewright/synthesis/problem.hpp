@@ -7,6 +7,7 @@
 #include <vector>
 
 #include "polewright/requirements/evaluate.hpp"
+#include "polewright/requirements/implementation.hpp"
 #include "polewright/requirements/spec.hpp"
 #include "polewright/synthesis/parameters.hpp"
 #include "polewright/synthesis/search_problem.hpp"
@@ -38,12 +39,16 @@ bool meets_with_margin(const Evaluation& e, double margin);
 std::vector<MetricValue> worst_metrics(const std::vector<LoopEvaluation>& plants, const RequirementSet& req);
 
 // Scores one compensator over every plant: the violation of the requirements (with the graded
-// penalties of search_problem.hpp for loops that are not stable) and the objective.
+// penalties of search_problem.hpp for loops that are not stable) and the objective. With an
+// implementation every plant's loop is the sampled one (the compensator discretised as it runs,
+// requirements/sampled_evaluate.hpp, step figures between the samples too); a compensator the
+// implementation cannot run scores as an ill-posed loop.
 class CompensatorScorer {
  public:
   // `frequency_ref` (rad/s) scales the graded instability penalty.
   CompensatorScorer(std::vector<Plant> plants, RequirementSet req, Region region, AnalysisOptions screening,
-                    Objective objective, double frequency_ref);
+                    Objective objective, double frequency_ref,
+                    std::optional<Implementation> implementation = std::nullopt);
 
   // Replaces the objective by one metric (lower is better for an upper bound, higher for a lower
   // bound): used to find the best value of a requirement that is relaxed.
@@ -51,8 +56,13 @@ class CompensatorScorer {
 
   DesignScore score(const Zpk& c) const;
   const RequirementSet& requirements() const { return req_; }
+  const std::optional<Implementation>& implementation() const { return implementation_; }
 
  private:
+  // The loops of every plant: continuous, or sampled with an implementation (empty when the
+  // implementation cannot run `c`).
+  std::vector<LoopEvaluation> loops(const Zpk& c, const EvaluationNeeds& needs) const;
+
   std::vector<Plant> plants_;
   RequirementSet req_;
   Region region_;
@@ -60,12 +70,13 @@ class CompensatorScorer {
   Objective objective_;
   double frequency_ref_;
   std::optional<Requirement> metric_objective_;
+  std::optional<Implementation> implementation_;
 };
 
 class DesignProblem : public Problem {
  public:
   DesignProblem(std::vector<Plant> plants, RequirementSet req, Region region, AnalysisOptions screening,
-                Objective objective, ParamSpace space);
+                Objective objective, ParamSpace space, std::optional<Implementation> implementation = std::nullopt);
 
   void set_metric_objective(const Requirement& r) { scorer_.set_metric_objective(r); }
 

@@ -16,6 +16,7 @@
 // |log10 |stage(jw)|| (how far the stage moves the loop's magnitude, in decades).
 #pragma once
 
+#include <cmath>
 #include <string>
 #include <utility>
 #include <vector>
@@ -55,11 +56,13 @@ struct RetuneSpace {
 };
 
 // Factors `current`; corners may move `corner_decades` either way, the gain `gain_decades`.
-// Added stages have their corners inside `range`. Throws std::invalid_argument for a compensator
-// without a usable factorisation (a zero gain).
+// Added stages have their corners inside `range`. A corner of `current` moves up to
+// `corner_cap_rad_s` at most (the sampled design's cut below Nyquist, candidate.hpp), or stays
+// where it is when it is above already. Throws std::invalid_argument for a compensator without a
+// usable factorisation (a zero gain).
 RetuneSpace make_retune_space(const Zpk& current, std::pair<double, double> range,
                               const std::vector<AddedStage>& added = {}, double corner_decades = 1.5,
-                              double gain_decades = 2.0);
+                              double gain_decades = 2.0, double corner_cap_rad_s = INFINITY);
 
 Zpk retune_to_zpk(const RetuneSpace& rs, const std::vector<double>& x);
 
