@@ -3,6 +3,8 @@
 // with k = 10^U(-1,1), z = 10^U(0,1.3), p = 10^U(1.3,2.5), wn = 60*10^U(-0.05,0.05), zz = U(0.01,0.1),
 // zp = U(0.3,1). One evaluation: closed-loop poles, region test, 1000-sample step of y and u over 3 s
 // (overshoot, settling, rise, peak effort) and margins from the loop frequency response.
+// --disturbance adds load-step peak, recovery and IAE, output-step IAE and the |C S| noise peak
+// requirements (issue 13); the disturbance steps are screened like the reference step.
 #include <chrono>
 #include <cmath>
 #include <cstdio>
@@ -26,8 +28,11 @@ int bench_evaluate(int argc, char** argv) {
   unsigned seed = 2026;
   long long count = 0;  // with --count N: exactly N evaluations (for instruction counts under callgrind)
   bool full = false;    // --full: the check path (full accuracy, every figure) instead of screening
-  for (int i = 1; i < argc; ++i)
+  bool disturbance = false;
+  for (int i = 1; i < argc; ++i) {
     if (!std::strcmp(argv[i], "--full")) full = true;
+    if (!std::strcmp(argv[i], "--disturbance")) disturbance = true;
+  }
   for (int i = 1; i + 1 < argc; i += 2) {
     if (!std::strcmp(argv[i], "--seconds")) seconds = std::atof(argv[i + 1]);
     if (!std::strcmp(argv[i], "--count")) count = std::atoll(argv[i + 1]);
@@ -44,6 +49,10 @@ int bench_evaluate(int argc, char** argv) {
                {MetricId::RiseTime, Sense::AtMost, 0.2},   {MetricId::PeakEffort, Sense::AtMost, 50},
                {MetricId::PhaseMargin, Sense::AtLeast, 45}, {MetricId::GainMargin, Sense::AtLeast, 8},
                {MetricId::DampingRatio, Sense::AtLeast, 0.5}};
+  if (disturbance)
+    req.items.insert(req.items.end(), {{MetricId::LoadPeak, Sense::AtMost, 2e-4}, {MetricId::LoadRecovery, Sense::AtMost, 1.0},
+                                       {MetricId::LoadIae, Sense::AtMost, 1e-4}, {MetricId::OutputIae, Sense::AtMost, 0.1},
+                                       {MetricId::NoiseEffortPeak, Sense::AtMost, 30}});
   const Region region = region_from_requirements(req);
   AnalysisOptions opt = AnalysisOptions::Screening(AnalysisOptions{});
   opt.step.horizon_s = 3.0;
@@ -67,7 +76,7 @@ int bench_evaluate(int argc, char** argv) {
     c.poles = {Complex(-p, 0), pair_root(wn, zp), std::conj(pair_root(wn, zp))};
   }
 
-  long long n = 0, stable = 0, met = 0;
+  long long n = 0, stable = 0, met = 0, simulated = 0;
   double checksum = 0.0;
   const auto t0 = std::chrono::steady_clock::now();
   double elapsed = 0.0;
@@ -78,14 +87,17 @@ int bench_evaluate(int argc, char** argv) {
       bool all = e.stable;
       for (const Requirement& r : req.items) all = all && requirement_met(r, e.values[static_cast<size_t>(r.metric)]);
       met += all;
+      simulated += e.load.has_value();
       if (e.values[0].value) checksum += *e.values[0].value;
     }
     elapsed = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
   }
   std::printf("workload: 180000/(s(s+8)(s^2+2.4s+3600)) with random lead + notch compensators (seed %u), %s path\n",
               seed, full ? "full-accuracy (check)" : "screening");
+  if (disturbance) std::printf("with the disturbance and noise requirements\n");
   std::printf("evaluations: %lld in %.2f s on one thread; stable %lld, meeting all %lld (checksum %.6g)\n", n, elapsed,
               stable, met, checksum);
+  if (disturbance) std::printf("disturbance steps simulated for %lld evaluations (the rest screened out)\n", simulated);
   std::printf("evaluations per second: %.0f\n", n / elapsed);
   return 0;
 }
