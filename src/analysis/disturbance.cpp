@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <vector>
 
 namespace pw {
 
@@ -58,25 +59,20 @@ double modal_iae(const ModalStep& m, const std::vector<double>& y, double dt) {
     }
     return acc.real();
   };
-  // Past the samples, the scan goes on with modal values until the residue envelope is below
-  // 1e-12 of the first sample's scale (an oscillating tail keeps changing sign).
-  double total = 0.0, slowest = INFINITY;
-  for (int i = 0; i < m.lambda.size(); ++i) {
+  // Past the samples, the scan goes on with modal values (one complex multiply per mode and step)
+  // until the residue envelope is below 1e-12 of its start (an oscillating tail keeps changing
+  // sign), for at most three times the sampled span.
+  const int n = static_cast<int>(m.lambda.size());
+  std::vector<Complex> pw_(static_cast<size_t>(n)), z(static_cast<size_t>(n));
+  double total = 0.0;
+  const double t_end = dt * static_cast<double>(y.size() - 1);
+  for (int i = 0; i < n; ++i) {
     total += std::abs(m.cy(i));
-    slowest = std::min(slowest, -m.lambda(i).real());
+    pw_[static_cast<size_t>(i)] = m.cy(i) * std::exp(m.lambda(i) * t_end);
+    z[static_cast<size_t>(i)] = std::exp(m.lambda(i) * dt);
   }
-  const size_t extra = slowest > 0.0 && total > 0.0
-                           ? static_cast<size_t>(std::min(2e5, std::ceil(std::log(1e12) / slowest / dt)))
-                           : 0;
-  auto sample = [&](size_t k) { return k < y.size() ? y[k] : value(dt * static_cast<double>(k), false); };
   double iae = 0.0, prev = value(0.0, true);
-  double cur = sample(0);
-  for (size_t k = 0; k + 1 < y.size() + extra; ++k) {
-    const double next = sample(k + 1);
-    const bool change = (cur >= 0.0) != (next >= 0.0);
-    cur = next;
-    if (!change) continue;
-    double a = dt * static_cast<double>(k), b = a + dt;
+  auto add_root = [&](double a, double b) {
     const bool up = value(a, false) < 0.0;
     for (int it = 0; it < 60 && b - a > 1e-15 * b; ++it) {
       const double c = 0.5 * (a + b);
@@ -85,6 +81,21 @@ double modal_iae(const ModalStep& m, const std::vector<double>& y, double dt) {
     const double here = value(0.5 * (a + b), true);
     iae += std::abs(here - prev);
     prev = here;
+  };
+  for (size_t k = 0; k + 1 < y.size(); ++k)
+    if ((y[k] >= 0.0) != (y[k + 1] >= 0.0)) add_root(dt * static_cast<double>(k), dt * static_cast<double>(k + 1));
+  double cur = y.empty() ? 0.0 : y.back();
+  const size_t extra = 3 * y.size();
+  for (size_t k = 0; k < extra; ++k) {
+    double next = 0.0, env = 0.0;
+    for (size_t i = 0; i < pw_.size(); ++i) {
+      pw_[i] *= z[i];
+      next += pw_[i].real();
+      env += std::abs(pw_[i]);
+    }
+    if ((cur >= 0.0) != (next >= 0.0)) add_root(t_end + dt * static_cast<double>(k), t_end + dt * static_cast<double>(k + 1));
+    cur = next;
+    if (env <= 1e-12 * total) break;
   }
   return iae + std::abs(prev);
 }
