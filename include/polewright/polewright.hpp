@@ -22,6 +22,7 @@
 #include "polewright/analysis/analysis_options.hpp"
 #include "polewright/analysis/closed_loop.hpp"
 #include "polewright/analysis/discrete_loop.hpp"
+#include "polewright/analysis/disturbance.hpp"
 #include "polewright/analysis/frequency.hpp"
 #include "polewright/analysis/locus.hpp"
 #include "polewright/analysis/measured_frequency.hpp"

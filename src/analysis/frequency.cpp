@@ -234,6 +234,27 @@ std::pair<double, double> maximise_log(const F& f, double a, double b) {
   return {w, f(w)};
 }
 
+// The largest f near grid point `is` of the ascending grid w: a sharp peak (a loop passing close
+// to -1) can sit between grid points, so the two neighbouring intervals are rescanned densely
+// before the golden-section refinement. (w, f) of the larger of the refined and the grid value.
+template <class F>
+std::pair<double, double> grid_peak(const F& f, const std::vector<double>& w, size_t is, bool dense_scan) {
+  if (!(is > 0 && is + 1 < w.size())) return {w[is], f(w[is])};
+  double a = w[is - 1], b = w[is + 1], best_w = w[is], best_v = f(w[is]);
+  const int dense = dense_scan ? 64 : 1;
+  for (int k = 1; k < dense; ++k) {
+    const double x = a * std::pow(b / a, static_cast<double>(k) / dense);
+    const double v = f(x);
+    if (v > best_v) { best_v = v; best_w = x; }
+  }
+  const double step = std::pow(b / a, 1.0 / dense);
+  a = std::max(a, best_w / step);
+  b = std::min(b, best_w * step);
+  const auto pk = maximise_log(f, a, b);
+  const double at_grid = f(w[is]);
+  return pk.second >= at_grid ? pk : std::make_pair(w[is], at_grid);
+}
+
 // The margins, crossovers, bandwidth and peaks of any loop response Lw over the grid w; `lim`
 // carries what the grid cannot show (the loop type, L(0), a crossing at the upper end).
 template <class F>
@@ -341,25 +362,10 @@ FrequencyMetrics metrics_core(const F& Lw, const std::vector<double>& w, const R
     const Complex Lx = Lw(x);
     return std::sqrt(std::norm(Lx) / std::norm(1.0 + Lx));
   };
-  if (is > 0 && is + 1 < w.size()) {
-    // A sharp peak (a loop passing close to -1) can sit between grid points: rescan the two
-    // neighbouring intervals densely before the golden-section refinement.
-    double a = w[is - 1], b = w[is + 1], best_w = w[is], best_v = smag(w[is]);
-    const int dense = opt.dense_peak_scan ? 64 : 1;
-    for (int k = 1; k < dense; ++k) {
-      const double x = a * std::pow(b / a, static_cast<double>(k) / dense);
-      const double v = smag(x);
-      if (v > best_v) { best_v = v; best_w = x; }
-    }
-    const double step = std::pow(b / a, 1.0 / dense);
-    a = std::max(a, best_w / step);
-    b = std::min(b, best_w * step);
-    const auto pk = maximise_log(smag, a, b);
-    m.peak_sensitivity = std::max(pk.second, smag(w[is]));
-    m.peak_sensitivity_at_rad_s = pk.second >= smag(w[is]) ? pk.first : w[is];
-  } else {
-    m.peak_sensitivity = smag(w[is]);
-    m.peak_sensitivity_at_rad_s = w[is];
+  {
+    const auto pk = grid_peak(smag, w, is, opt.dense_peak_scan);
+    m.peak_sensitivity = pk.second;
+    m.peak_sensitivity_at_rad_s = pk.first;
   }
   if (it > 0 && it + 1 < w.size()) m.peak_complementary = std::max(maximise_log(tpk, w[it - 1], w[it + 1]).second, tpk(w[it]));
   else m.peak_complementary = tpk(w[it]);
@@ -369,6 +375,18 @@ FrequencyMetrics metrics_core(const F& Lw, const std::vector<double>& w, const R
 }
 
 }  // namespace
+
+std::pair<double, double> refined_grid_peak(const std::function<double(double)>& f, const std::vector<double>& grid,
+                                            bool dense_scan) {
+  if (grid.empty()) throw std::invalid_argument("refined_grid_peak: empty grid");
+  size_t is = 0;
+  double best = -INFINITY;
+  for (size_t i = 0; i < grid.size(); ++i) {
+    const double v = f(grid[i]);
+    if (v > best) { best = v; is = i; }
+  }
+  return grid_peak(f, grid, is, dense_scan);
+}
 
 FrequencyMetrics frequency_metrics(const Zpk& loop, double delay_s, const FrequencyOptions& opt) {
   ResponseLimits lim;

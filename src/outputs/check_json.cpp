@@ -57,6 +57,7 @@ nlohmann::json loop_evaluation_json(const LoopEvaluation& e) {
   nlohmann::json unbounded = nlohmann::json::array();
   for (const MetricInfo& info : metric_table()) {
     const MetricValue& v = e.values[static_cast<size_t>(info.id)];
+    if (!metric_shown(info, v.known())) continue;
     metrics[info.key] = json_number(v);
     if (v.infinite) unbounded.push_back(info.key);
   }

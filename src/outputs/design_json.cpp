@@ -18,6 +18,12 @@ nlohmann::json requirements_json(const RequirementSet& req) {
     const char* names[] = {"step", "ramp", "parabola"};
     j["steady_state_error"]["input"] = names[static_cast<int>(req.error_signal)];
   }
+  for (const char* k : {"load_peak", "load_recovery_s", "load_iae", "output_peak", "output_recovery_s", "output_iae"})
+    if (j.contains(k)) {
+      j["disturbance_step"] = req.disturbance_step;
+      j["recovery_band_pct"] = 100.0 * req.recovery_band;
+      break;
+    }
   return j;
 }
 
@@ -30,6 +36,7 @@ void add_metrics(nlohmann::json& j, const std::vector<MetricValue>& worst) {
   nlohmann::json m = nlohmann::json::object(), unbounded = nlohmann::json::array();
   for (const MetricInfo& info : metric_table()) {
     const MetricValue& v = worst[static_cast<size_t>(info.id)];
+    if (!metric_shown(info, v.known())) continue;
     m[info.key] = json_number(v);
     if (v.infinite) unbounded.push_back(info.key);
   }

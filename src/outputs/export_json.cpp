@@ -14,7 +14,10 @@ json metric_value_json(const MetricValue& v) { return v.infinite ? json("unbound
 
 json metrics_json(const std::array<MetricValue, kMetricCount>& vals) {
   json j = json::object();
-  for (const MetricInfo& info : metric_table()) j[info.key] = metric_value_json(vals[static_cast<size_t>(info.id)]);
+  for (const MetricInfo& info : metric_table()) {
+    const MetricValue& v = vals[static_cast<size_t>(info.id)];
+    if (metric_shown(info, v.known())) j[info.key] = metric_value_json(v);
+  }
   return j;
 }
 

@@ -208,11 +208,22 @@ PointsScan scan_points_file(const std::string& path) {
   return s;
 }
 
+// The metric columns: every metric, the on-request ones (disturbance, noise) only when the base
+// spec's requirements name them.
+static std::vector<const MetricInfo*> summary_metrics(const SweepFile& f) {
+  std::vector<const MetricInfo*> out;
+  const nlohmann::json& b = f.base;
+  const bool has_req = b.is_object() && b.contains("requirements") && b["requirements"].is_object();
+  for (const MetricInfo& info : metric_table())
+    if (!info.on_request || (has_req && b["requirements"].contains(info.key))) out.push_back(&info);
+  return out;
+}
+
 std::string summary_header(const SweepFile& f) {
   std::string out = "index";
   for (const SweepParameter& p : f.parameters) out += "," + csv_field(p.name);
   out += ",status,structure";
-  for (const MetricInfo& info : metric_table()) out += std::string(",") + info.key;
+  for (const MetricInfo* info : summary_metrics(f)) out += std::string(",") + info->key;
   return out + ",change_decades,message\n";
 }
 
@@ -224,7 +235,8 @@ std::string summary_row(const SweepFile& f, const nlohmann::json& p) {
   // Lines are read back from disk: a value of the wrong type is left empty, never an exception.
   auto text = [&](const char* key) { return p.contains(key) && p[key].is_string() ? p[key].get<std::string>() : std::string(); };
   out += "," + csv_field(text("status")) + "," + csv_field(text("structure"));
-  for (const MetricInfo& info : metric_table()) {
+  for (const MetricInfo* mi : summary_metrics(f)) {
+    const MetricInfo& info = *mi;
     const nlohmann::json v = p.contains("metrics") && p["metrics"].is_object() ? p["metrics"].value(info.key, none) : none;
     const bool unbounded = p.contains("unbounded") && p["unbounded"].is_array() &&
                            std::find(p["unbounded"].begin(), p["unbounded"].end(), info.key) != p["unbounded"].end();

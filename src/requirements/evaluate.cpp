@@ -27,6 +27,16 @@ bool needs_any(const RequirementSet& req, std::initializer_list<MetricId> ids) {
   return false;
 }
 
+// Screening: the step and the disturbance steps only for loops whose figures other than the time-domain ones
+// violate by at most `gate` in total (as the reference step).
+bool time_domain_gate(const RequirementSet& req, const MetricValues& v, double gate) {
+  double fv = 0.0;
+  for (const Requirement& r : req.items)
+    if (!metric_info(r.metric).time_domain && r.metric != MetricId::GainTolerance)
+      fv += requirement_violation(r, v[static_cast<size_t>(r.metric)]);
+  return fv <= gate;
+}
+
 }  // namespace
 
 MetricValue delay_margin_value(const FrequencyMetrics& f) {
@@ -73,6 +83,26 @@ void set_step_metrics(MetricValues& v, const StepMetrics& s) {
 
 void set_gain_tolerance_metric(MetricValues& v, double tolerance_pct) {
   v[static_cast<size_t>(MetricId::GainTolerance)].value = tolerance_pct;
+}
+
+void set_disturbance_metrics(MetricValues& v, DisturbanceInput where, const DisturbanceMetrics& d, double step) {
+  auto at = [&](MetricId id) -> MetricValue& { return v[static_cast<size_t>(id)]; };
+  const bool load = where == DisturbanceInput::Load;
+  at(load ? MetricId::LoadPeak : MetricId::OutputPeak) = number(step * d.peak);
+  MetricValue& rec = at(load ? MetricId::LoadRecovery : MetricId::OutputRecovery);
+  MetricValue& iae = at(load ? MetricId::LoadIae : MetricId::OutputIae);
+  if (!d.rejected) {
+    rec = infinite();
+    iae = infinite();
+  } else {
+    rec = number(d.recovery_time_s);
+    iae = d.iae ? number(step * *d.iae) : MetricValue{};
+  }
+}
+
+void set_noise_metrics(MetricValues& v, const NoiseMetrics& n) {
+  v[static_cast<size_t>(MetricId::NoiseEffortPeak)] = number(n.effort_peak);
+  v[static_cast<size_t>(MetricId::ControllerHighFrequencyGain)] = number(n.high_frequency_gain);
 }
 
 double plant_violation(const Requirement& r, const PlantValue& p) {
@@ -122,6 +152,10 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
     e.frequency = frequency_metrics(parts.loop_exact, parts.delay_s, opt.frequency);
     set_frequency_metrics(v, e.frequency);
   }
+  if (needs_any(req, {MetricId::NoiseEffortPeak, MetricId::ControllerHighFrequencyGain})) {
+    e.noise = noise_metrics(parts.compensator_tf, parts.loop_exact, parts.delay_s, opt.frequency);
+    set_noise_metrics(v, *e.noise);
+  }
   if (!e.stable) return e;
 
   e.steady_state = steady_state_error(parts.loop_exact, req.error_signal);
@@ -129,19 +163,26 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
 
   bool step = all || needs.step ||
               needs_any(req, {MetricId::Overshoot, MetricId::SettlingTime, MetricId::RiseTime, MetricId::PeakEffort});
-  if (!all && step) {
-    double fv = 0.0;
-    for (const Requirement& r : req.items)
-      if (!metric_info(r.metric).time_domain && r.metric != MetricId::GainTolerance)
-        fv += requirement_violation(r, v[static_cast<size_t>(r.metric)]);
-    step = fv <= needs.step_gate;
-  }
+  if (!all && step) step = time_domain_gate(req, v, needs.step_gate);
   if (step) {
     StepOptions so = opt.step;
     so.band = req.settling_band;
     const double min_h = req.limit(MetricId::SettlingTime, Sense::AtMost).value_or(0.0);
     e.step = step_response(cl, e.poles, so, min_h);
     set_step_metrics(v, *e.step);
+  }
+  // Disturbance steps: only when a requirement names them, behind the same gate as the step.
+  const bool load = needs_any(req, {MetricId::LoadPeak, MetricId::LoadRecovery, MetricId::LoadIae});
+  const bool output = needs_any(req, {MetricId::OutputPeak, MetricId::OutputRecovery, MetricId::OutputIae});
+  if ((load || output) && (all || step || time_domain_gate(req, v, needs.step_gate))) {
+    StepOptions so = opt.step;
+    so.keep_trace = false;
+    for (const DisturbanceInput where : {DisturbanceInput::Load, DisturbanceInput::Output}) {
+      if (!(where == DisturbanceInput::Load ? load : output)) continue;
+      std::optional<DisturbanceMetrics>& d = where == DisturbanceInput::Load ? e.load : e.output;
+      d = disturbance_response(disturbance_loop(parts, where), so, req.recovery_band, opt.residue_share);
+      set_disturbance_metrics(v, where, *d, req.disturbance_step);
+    }
   }
   bool tolerance = all || req.has(MetricId::GainTolerance);
   if (!all && tolerance) {

@@ -19,6 +19,14 @@ const std::array<MetricInfo, kMetricCount>& metric_table() {
       {MetricId::NaturalFrequency, "natural_frequency_rad_s", "dominant natural frequency", "rad/s",
        BoundKind::MinOrMax, false},
       {MetricId::DelayMargin, "delay_margin_s", "delay margin", "s", BoundKind::MinOnly, false},
+      {MetricId::LoadPeak, "load_peak", "load-step peak |y|", "", BoundKind::MaxOnly, true, true},
+      {MetricId::LoadRecovery, "load_recovery_s", "load-step recovery", "s", BoundKind::MaxOnly, true, true},
+      {MetricId::LoadIae, "load_iae", "load-step IAE", "", BoundKind::MaxOnly, true, true},
+      {MetricId::OutputPeak, "output_peak", "output-step peak |y|", "", BoundKind::MaxOnly, true, true},
+      {MetricId::OutputRecovery, "output_recovery_s", "output-step recovery", "s", BoundKind::MaxOnly, true, true},
+      {MetricId::OutputIae, "output_iae", "output-step IAE", "", BoundKind::MaxOnly, true, true},
+      {MetricId::NoiseEffortPeak, "noise_effort_peak", "peak |C S|", "", BoundKind::MaxOnly, false, true},
+      {MetricId::ControllerHighFrequencyGain, "controller_hf_gain", "|C(j inf)|", "", BoundKind::MaxOnly, false, true},
   }};
   return table;
 }

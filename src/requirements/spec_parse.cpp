@@ -36,7 +36,9 @@ const std::vector<std::string>& known_keys(const std::string& kind) {
       {"requirements",
        {"overshoot_pct", "settling_time_s", "rise_time_s", "steady_state_error", "phase_margin_deg", "gain_margin_db",
         "crossover_rad_s", "bandwidth_rad_s", "peak_effort", "peak_sensitivity", "gain_tolerance_pct", "damping_ratio",
-        "natural_frequency_rad_s", "delay_margin_s"}},
+        "natural_frequency_rad_s", "delay_margin_s", "load_peak", "load_recovery_s", "load_iae", "output_peak",
+        "output_recovery_s", "output_iae", "noise_effort_peak", "controller_hf_gain", "disturbance_step",
+        "recovery_band_pct"}},
       {"stages", {"lead", "lag", "notch", "integrator", "frequency_range_rad_s"}},
       {"search", {"seed", "keep", "objective", "threads", "max_evaluations", "time_limit_s", "budget_s", "margin_pct"}},
       {"analysis", {"pade_order", "samples", "horizon_s", "residue_share_pct"}},
@@ -173,6 +175,18 @@ RequirementSet parse_requirements(const json& j, const std::string& path) {
         else throw SpecError(ip, "must be \"step\", \"ramp\" or \"parabola\" (got " + describe(*in) + ")");
       }
     }
+  }
+  if (const json* d = member(j, "disturbance_step")) {
+    const std::string dp = key_path(path, "disturbance_step");
+    const double v = read_number(*d, dp);
+    if (!(v > 0.0)) throw SpecError(dp, "must be > 0 (got " + describe(*d) + ")");
+    set.disturbance_step = v;
+  }
+  if (const json* b = member(j, "recovery_band_pct")) {
+    const std::string bp = key_path(path, "recovery_band_pct");
+    const double band = read_number(*b, bp);
+    if (!(band > 0.0 && band < 100.0)) throw SpecError(bp, "must be > 0 and < 100 (got " + describe(*b) + ")");
+    set.recovery_band = band / 100.0;
   }
   return set;
 }

@@ -62,7 +62,16 @@ TEST_CASE("metrics and unbounded lists; the search context block", "[outputs][de
   CHECK(j["metrics"]["gain_margin_db"].is_null());
   CHECK(j["metrics"]["settling_time_s"].is_null());
   CHECK(j["unbounded"] == nlohmann::json::array({"gain_margin_db"}));
-  CHECK(j["metrics"].size() == kMetricCount);
+  // Every metric except the on-request ones (disturbance, noise), which appear only with a value.
+  size_t shown = 0;
+  for (const MetricInfo& info : metric_table()) shown += !info.on_request;
+  CHECK(j["metrics"].size() == shown);
+  CHECK_FALSE(j["metrics"].contains("load_peak"));
+  worst[static_cast<size_t>(MetricId::LoadIae)].infinite = true;
+  nlohmann::json k;
+  add_metrics(k, worst);
+  CHECK(k["metrics"].contains("load_iae"));
+  CHECK(k["unbounded"] == nlohmann::json::array({"gain_margin_db", "load_iae"}));
   RequirementSet req;
   req.items.push_back({MetricId::Overshoot, Sense::AtMost, 10.0});
   Plant p;

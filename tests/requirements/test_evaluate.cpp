@@ -225,3 +225,41 @@ TEST_CASE("metric values are assigned from the analysis figures in one place", "
   set_gain_tolerance_metric(v, 20.0);
   CHECK(*at(MetricId::GainTolerance).value == 20.0);
 }
+
+TEST_CASE("disturbance metrics scale with the step size; an offset makes recovery and IAE unbounded",
+          "[requirements][evaluate][disturbance]") {
+  // By hand (tests/analysis/test_disturbance.cpp): G = 1/(s + 1), C = 2 (s + 1)/s gives the load
+  // response d (e^-t - e^-2t): peak d/4, IAE d/2; the output response d e^-2t: peak d, IAE d/2.
+  Plant g;
+  g.tf.poles = {Complex(-1, 0)};
+  Zpk pi;
+  pi.gain = 2;
+  pi.zeros = {Complex(-1, 0)};
+  pi.poles = {Complex(0, 0)};
+  RequirementSet req;
+  req.items = {{MetricId::LoadPeak, Sense::AtMost, 1.0}, {MetricId::LoadIae, Sense::AtMost, 1.0},
+               {MetricId::OutputIae, Sense::AtMost, 1.0}, {MetricId::NoiseEffortPeak, Sense::AtMost, 3.0}};
+  req.disturbance_step = 3.0;
+  const Region region = region_from_requirements(req);
+  const LoopEvaluation e = evaluate_loop(pi, g, req, region, AnalysisOptions{});
+  auto val = [&](MetricId id) { return e.values[static_cast<size_t>(id)]; };
+  CHECK(*val(MetricId::LoadPeak).value == Approx(0.75).epsilon(1e-9));
+  CHECK(*val(MetricId::LoadIae).value == Approx(1.5).epsilon(1e-5));
+  CHECK(*val(MetricId::OutputPeak).value == Approx(3.0).epsilon(1e-12));
+  CHECK(*val(MetricId::OutputIae).value == Approx(1.5).epsilon(1e-5));
+  CHECK(*val(MetricId::NoiseEffortPeak).value == Approx(2.0).epsilon(1e-12));  // 2 (s+1)/(s+2) -> 2
+  CHECK(*val(MetricId::ControllerHighFrequencyGain).value == 2.0);            // computed with the noise peak
+  CHECK(e.output.has_value());  // output_iae asks for the output step
+  // Proportional control C = 3: the load step leaves the offset d/4; recovery and IAE unbounded.
+  Zpk p;
+  p.gain = 3;
+  const LoopEvaluation q = evaluate_loop(p, g, req, region, AnalysisOptions{});
+  CHECK(q.values[static_cast<size_t>(MetricId::LoadIae)].infinite);
+  CHECK(*q.values[static_cast<size_t>(MetricId::LoadPeak)].value == Approx(0.75).epsilon(1e-6));
+  // A spec without them computes none (results of existing specs stay as they were).
+  RequirementSet plain;
+  plain.items = {{MetricId::PhaseMargin, Sense::AtLeast, 30.0}};
+  const LoopEvaluation r = evaluate_loop(pi, g, plain, region_from_requirements(plain), AnalysisOptions{});
+  CHECK_FALSE(r.load);
+  CHECK_FALSE(r.values[static_cast<size_t>(MetricId::LoadPeak)].known());
+}

@@ -20,3 +20,17 @@ TEST_CASE("metric table is indexed by id and keys are unique", "[requirements][m
   CHECK(metric_info(MetricId::SettlingTime).time_domain);
   CHECK_FALSE(metric_info(MetricId::PhaseMargin).time_domain);
 }
+
+TEST_CASE("disturbance and noise metrics are computed and shown on request only", "[requirements][metric][disturbance]") {
+  for (MetricId id : {MetricId::LoadPeak, MetricId::LoadRecovery, MetricId::LoadIae, MetricId::OutputPeak,
+                      MetricId::OutputRecovery, MetricId::OutputIae}) {
+    CHECK(metric_info(id).on_request);
+    CHECK(metric_info(id).time_domain);  // screened like the reference step
+  }
+  CHECK_FALSE(metric_info(MetricId::NoiseEffortPeak).time_domain);
+  CHECK(metric_info(MetricId::ControllerHighFrequencyGain).on_request);
+  CHECK_FALSE(metric_info(MetricId::Overshoot).on_request);
+  CHECK(metric_shown(metric_info(MetricId::Overshoot), false));
+  CHECK_FALSE(metric_shown(metric_info(MetricId::LoadPeak), false));
+  CHECK(metric_shown(metric_info(MetricId::LoadPeak), true));
+}

@@ -153,3 +153,29 @@ TEST_CASE("the design margin is read in percent and range-checked", "[requiremen
   CHECK(error_after([](json& k) { k["search"]["margin_pct"] = 51; }).find("$.search.margin_pct") == 0);
   CHECK(error_after([](json& k) { k["search"]["margin_pct"] = "3"; }).find("$.search.margin_pct") == 0);
 }
+
+TEST_CASE("disturbance and noise requirements with their step size and recovery band", "[requirements][spec_parse][disturbance]") {
+  json j = json::parse(kBase);
+  j["requirements"]["load_peak"] = {{"max", 0.3}};
+  j["requirements"]["output_recovery_s"] = {{"max", 2}};
+  j["requirements"]["noise_effort_peak"] = {{"max", 10}};
+  j["requirements"]["disturbance_step"] = 0.5;
+  j["requirements"]["recovery_band_pct"] = 5;
+  const Spec s = parse_spec(j);
+  CHECK(s.requirements.limit(MetricId::LoadPeak, Sense::AtMost) == 0.3);
+  CHECK(s.requirements.limit(MetricId::OutputRecovery, Sense::AtMost) == 2.0);
+  CHECK(s.requirements.has(MetricId::NoiseEffortPeak));
+  CHECK(s.requirements.disturbance_step == 0.5);
+  CHECK(s.requirements.recovery_band == Approx(0.05));
+  // Defaults when not given.
+  const Spec d = parse_spec(json::parse(kBase));
+  CHECK(d.requirements.disturbance_step == 1.0);
+  CHECK(d.requirements.recovery_band == 0.02);
+  CHECK(error_after([](json& k) { k["requirements"]["disturbance_step"] = 0; }) ==
+        "$.requirements.disturbance_step: must be > 0 (got 0)");
+  CHECK(error_after([](json& k) { k["requirements"]["recovery_band_pct"] = 100; }).find("$.requirements.recovery_band_pct: must be > 0 and < 100") == 0);
+  CHECK(error_after([](json& k) { k["requirements"]["load_peak"] = {{"min", 1}}; }).find("$.requirements.load_peak.min: unknown key") == 0);
+  CHECK(error_after([](json& k) { k["requirements"]["load_iea"] = {{"max", 1}}; }) ==
+        "$.requirements.load_iea: unknown key (did you mean \"load_iae\"?)");
+  CHECK(error_after([](json& k) { k["requirements"]["controller_hf_gain"] = {{"max", -1}}; }).find("$.requirements.controller_hf_gain.max: must be > 0") == 0);
+}

@@ -86,6 +86,12 @@ struct ResponseLimits {
 FrequencyMetrics frequency_metrics_of(const std::function<Complex(double)>& response, const std::vector<double>& grid,
                                       const ResponseLimits& limits, const FrequencyOptions& options);
 
+// The largest value of f over an ascending grid, refined like the |S| peak of frequency_metrics: the
+// best grid point's two neighbouring intervals rescanned with 64 points (dense_scan) and a golden
+// section in log w. Returns (w, f(w)).
+std::pair<double, double> refined_grid_peak(const std::function<double(double)>& f, const std::vector<double>& grid,
+                                            bool dense_scan);
+
 // 180 + angle wrapped into (-180, 180].
 double wrap_degrees(double deg);
 

@@ -11,6 +11,7 @@
 
 #include "polewright/analysis/analysis_options.hpp"
 #include "polewright/analysis/closed_loop.hpp"
+#include "polewright/analysis/disturbance.hpp"
 #include "polewright/analysis/frequency.hpp"
 #include "polewright/analysis/steady_state.hpp"
 #include "polewright/analysis/step.hpp"
@@ -60,6 +61,10 @@ void set_frequency_metrics(MetricValues& v, const FrequencyMetrics& f);
 void set_steady_state_metrics(MetricValues& v, const SteadyState& s);
 void set_step_metrics(MetricValues& v, const StepMetrics& s);
 void set_gain_tolerance_metric(MetricValues& v, double tolerance_pct);
+//   disturbance: peak |y|, recovery time and IAE of the load (or output) step of size `step`
+//   (recovery and IAE infinite when the disturbance is not rejected); noise: peak |C S| and |C(j inf)|.
+void set_disturbance_metrics(MetricValues& v, DisturbanceInput where, const DisturbanceMetrics& d, double step);
+void set_noise_metrics(MetricValues& v, const NoiseMetrics& n);
 
 struct LoopEvaluation {
   std::string plant_name;
@@ -70,6 +75,8 @@ struct LoopEvaluation {
   FrequencyMetrics frequency;
   SteadyState steady_state;
   GainToleranceResult gain;
+  std::optional<DisturbanceMetrics> load, output;  // per unit step, when a requirement asks
+  std::optional<NoiseMetrics> noise;
   bool region_ok = false;                          // every pole that matters inside the region
   std::optional<Complex> dominant_pole;            // slowest-decaying pole that matters
   MetricValues values{};                           // indexed by MetricId

@@ -21,8 +21,16 @@ enum class MetricId {
   DampingRatio,
   NaturalFrequency,
   DelayMargin,
+  LoadPeak,
+  LoadRecovery,
+  LoadIae,
+  OutputPeak,
+  OutputRecovery,
+  OutputIae,
+  NoiseEffortPeak,
+  ControllerHighFrequencyGain,
 };
-constexpr int kMetricCount = 14;
+constexpr int kMetricCount = 22;
 
 enum class BoundKind { MaxOnly, MinOnly, MinOrMax };
 
@@ -33,7 +41,13 @@ struct MetricInfo {
   const char* unit;    // "" for dimensionless
   BoundKind bounds;
   bool time_domain;    // needs the step simulation
+  // Computed only when a requirement names it (the disturbance and noise figures): outputs leave
+  // its key out while it has no value, so results of specs that do not ask stay as they were.
+  bool on_request = false;
 };
+
+// True when outputs show the metric: always, or for an on-request one when it has a value.
+inline bool metric_shown(const MetricInfo& info, bool known) { return !info.on_request || known; }
 
 const std::array<MetricInfo, kMetricCount>& metric_table();
 const MetricInfo& metric_info(MetricId id);

@@ -21,6 +21,10 @@ struct RequirementSet {
   std::vector<Requirement> items;     // in table order, min before max
   double settling_band = 0.02;        // fraction of the final value
   TestSignal error_signal = TestSignal::Step;
+  // Size of the load and output disturbance steps (in the units of u and y), and the recovery band
+  // as a fraction of the peak deviation |y| of the disturbance response.
+  double disturbance_step = 1.0;
+  double recovery_band = 0.02;
 
   bool has(MetricId id) const;
   std::optional<double> limit(MetricId id, Sense sense) const;
