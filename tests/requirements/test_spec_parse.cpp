@@ -178,4 +178,10 @@ TEST_CASE("disturbance and noise requirements with their step size and recovery 
   CHECK(error_after([](json& k) { k["requirements"]["load_iea"] = {{"max", 1}}; }) ==
         "$.requirements.load_iea: unknown key (did you mean \"load_iae\"?)");
   CHECK(error_after([](json& k) { k["requirements"]["controller_hf_gain"] = {{"max", -1}}; }).find("$.requirements.controller_hf_gain.max: must be > 0") == 0);
+  // Not judged on a sampled loop yet: with an implementation block the spec is refused, naming the
+  // requirement, instead of failing it as missing.
+  CHECK(error_after([](json& k) {
+          k["requirements"]["load_iae"] = {{"max", 1}};
+          k["implementation"] = {{"sample_time_s", 0.01}};
+        }).find("$.requirements.load_iae: is not judged on the sampled loop yet") == 0);
 }
