@@ -84,7 +84,8 @@ ReportData prepare_report(const ResultInput& result) {
     } else {
       rd.evaluation = evaluate_all(rd.compensator, d.spec.plants, d.spec.requirements, d.region, analysis);
     }
-    const Fragility fr = settling_fragility(rd.compensator, d.spec.plants, d.spec.requirements, d.region, d.spec.analysis);
+    const Fragility fr =
+        settling_fragility(rd.compensator, d.spec.plants, d.spec.requirements, d.region, d.spec.analysis, d.spec.implementation);
     if (fr.assessed) rd.fragile = fr.fragile;
     if (d.job == JobKind::Check) {
       rd.label = "checked compensator";

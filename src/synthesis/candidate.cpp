@@ -83,7 +83,7 @@ void Verifier::add_fragility(Candidate& c) const {
   if (!c.verification.all_stable || c.fragility_checked) return;
   c.fragility_checked = true;
   const Fragility f = settling_fragility(c.compensator, context_.plants, context_.requirements, context_.region,
-                                         context_.analysis);
+                                         context_.analysis, context_.implementation);
   c.fragility_assessed = f.assessed;
   c.fragile = f.assessed && f.fragile;
   c.settling_jump_share = f.assessed ? f.jump_share : 0.0;

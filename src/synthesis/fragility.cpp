@@ -3,6 +3,8 @@
 #include <algorithm>
 #include <cmath>
 
+#include "polewright/requirements/sampled_evaluate.hpp"
+
 namespace pw {
 
 namespace {
@@ -10,11 +12,22 @@ namespace {
 // The settling time of one loop with the band and the compensator gain given; nullopt when the
 // loop is unstable or does not settle within the horizon.
 std::optional<double> settling_time(const Zpk& c, const Plant& p, const RequirementSet& step_only,
-                                    const Region& region, const AnalysisOptions& options, double band) {
+                                    const Region& region, const AnalysisOptions& options, double band,
+                                    const std::optional<Implementation>& im) {
   RequirementSet rs = step_only;
   rs.settling_band = band;
   AnalysisOptions a = options;
   a.step.band = band;
+  if (im) {
+    try {
+      const SampledEvaluation s = evaluate_sampled(c, {p}, rs, region, a, *im, Evaluation{});
+      const LoopEvaluation& e = s.evaluation.plants.front();
+      if (!e.well_posed || !e.stable || !e.step) return std::nullopt;
+      return e.step->settling_time_s;
+    } catch (const SpecError&) {
+      return std::nullopt;  // e.g. prewarp with no warp point to take: not assessed
+    }
+  }
   EvaluationNeeds n;
   n.everything = false;
   n.step = true;
@@ -27,7 +40,8 @@ std::optional<double> settling_time(const Zpk& c, const Plant& p, const Requirem
 }  // namespace
 
 Fragility settling_fragility(const Zpk& compensator, const std::vector<Plant>& plants, const RequirementSet& req,
-                             const Region& region, const AnalysisOptions& options) {
+                             const Region& region, const AnalysisOptions& options,
+                             const std::optional<Implementation>& im) {
   // Only the step, with no requirement: its horizon then comes from the poles and residues alone
   // (provably past the last band exit, step.hpp), not from the settling limit, which for a loose
   // limit would simulate many times longer than the loop takes to settle.
@@ -37,7 +51,7 @@ Fragility settling_fragility(const Zpk& compensator, const std::vector<Plant>& p
   Fragility f;
   f.assessed = !plants.empty();
   for (const Plant& p : plants) {
-    const std::optional<double> t0 = settling_time(compensator, p, only, region, options, band);
+    const std::optional<double> t0 = settling_time(compensator, p, only, region, options, band, im);
     if (!t0 || !(*t0 > 0.0)) {
       f.assessed = false;
       return f;
@@ -46,10 +60,10 @@ Fragility settling_fragility(const Zpk& compensator, const std::vector<Plant>& p
     up.gain *= 1.0 + kFragileGainShare;
     down.gain *= 1.0 - kFragileGainShare;
     const std::optional<double> near[] = {
-        settling_time(compensator, p, only, region, options, band * (1.0 - kFragileBandShare)),
-        settling_time(compensator, p, only, region, options, band * (1.0 + kFragileBandShare)),
-        settling_time(up, p, only, region, options, band),
-        settling_time(down, p, only, region, options, band)};
+        settling_time(compensator, p, only, region, options, band * (1.0 - kFragileBandShare), im),
+        settling_time(compensator, p, only, region, options, band * (1.0 + kFragileBandShare), im),
+        settling_time(up, p, only, region, options, band, im),
+        settling_time(down, p, only, region, options, band, im)};
     for (const std::optional<double>& t : near) {
       const double share = t && *t > 0.0 ? std::abs(*t - *t0) / std::min(*t, *t0) : 1e9;
       f.jump_share = std::max(f.jump_share, std::min(share, 1e9));

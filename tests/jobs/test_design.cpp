@@ -287,7 +287,7 @@ TEST_CASE("listed candidates are not degenerate and carry the settling-cliff fla
     const Candidate& c = r.candidates[i];
     CHECK(prune_negligible_stages(c.compensator, c.structure, c.parameters, ctx.frequency_range).dropped == 0);
     CHECK(static_cast<int>(c.compensator.poles.size()) == c.structure.order());
-    const Fragility f = settling_fragility(c.compensator, ctx.plants, ctx.requirements, ctx.region, ctx.analysis);
+    const Fragility f = settling_fragility(c.compensator, ctx.plants, ctx.requirements, ctx.region, ctx.analysis, ctx.implementation);
     CHECK(c.fragility_assessed == f.assessed);
     CHECK(c.fragile == (f.assessed && f.fragile));
     for (size_t k = 0; k < i; ++k)

@@ -8,6 +8,7 @@
 #include <vector>
 
 #include "polewright/requirements/evaluate.hpp"
+#include "polewright/requirements/implementation.hpp"
 #include "polewright/synthesis/structure.hpp"
 
 namespace pw {
@@ -30,8 +31,11 @@ struct Fragility {
   double jump_share = 0.0; // largest |t - t0| / min(t, t0) over the neighbours (1e9 when one does not settle)
 };
 
+// With `implementation`, the settling times are of the sampled loop as it runs (evaluate_sampled:
+// the output between the samples too); a compensator the implementation cannot map is not assessed.
 Fragility settling_fragility(const Zpk& compensator, const std::vector<Plant>& plants, const RequirementSet& req,
-                             const Region& region, const AnalysisOptions& options);
+                             const Region& region, const AnalysisOptions& options,
+                             const std::optional<Implementation>& implementation = std::nullopt);
 
 // Margins within numerical noise of zero: |phase margin| below kNoisePhaseMarginDeg or |gain
 // margin| below kNoiseGainMarginDb on any plant. Such a loop sits on the stability boundary and
