@@ -215,7 +215,7 @@ int bench_planted(int argc, char** argv) {
   std::mt19937_64 rng(seed);
   std::vector<double> times;
   std::vector<long long> evals;
-  int met = 0, escalated = 0;
+  int met = 0, escalated = 0, fragile_first = 0;
   std::vector<int> fam_total(8, 0), fam_met(8, 0);
   for (int n = 0; n < count; ++n) {
     const int f = n % 8;
@@ -248,6 +248,7 @@ int bench_planted(int argc, char** argv) {
     evals.push_back(rep.summary.evaluations);
     met += rep.met();
     escalated += rep.summary.escalation_budget > 0;
+    fragile_first += !rep.candidates.empty() && rep.candidates.front().meets && rep.candidates.front().fragile;
     fam_total[f] += 1;
     fam_met[f] += rep.met();
     if (verbose || !rep.met())
@@ -262,6 +263,7 @@ int bench_planted(int argc, char** argv) {
   std::sort(es.begin(), es.end());
   std::printf("planted problems: %zu (seed %llu, slack %.2f, %d thread(s)); met %d (%.1f %%), escalated %d\n", times.size(),
               seed, slack, threads, met, 100.0 * met / times.size(), escalated);
+  std::printf("rank 1 met but fragile (settling cliff): %d\n", fragile_first);
   std::printf("time: median %.3f s, worst %.3f s; evaluations: median %lld, worst %lld\n", ts[ts.size() / 2], ts.back(),
               es[es.size() / 2], es.back());
   for (int f = 0; f < 8; ++f)
