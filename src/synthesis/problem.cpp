@@ -35,7 +35,7 @@ Requirement tightened(Requirement r, double margin) {
 RequirementSet with_design_margin(const RequirementSet& req, double margin) {
   RequirementSet t = req;
   for (Requirement& r : t.items) r = tightened(r, margin);
-  t.settling_band = req.settling_band * (1.0 - margin);
+  t.settling_band = req.settling_band * (1.0 - (margin > 0.0 ? std::max(margin, kSearchBandNarrowing) : 0.0));
   return t;
 }
 
