@@ -78,8 +78,23 @@ SampleTimeSearch find_slowest_sample_time(const Zpk& c, const std::vector<Plant>
     s.trials.push_back(t);
     return t.met;
   };
-  const double t_fast = 2.0 * M_PI / (o.fastest_ratio * s.reference_rad_s);
-  const double t_slow = 2.0 * M_PI / (o.slowest_ratio * s.reference_rad_s);
+  // The fast end also covers the fastest root of the compensator and the plants (a notch on a
+  // mode far above the crossover needs that rate) and the spec's own sample time.
+  double w_fast = s.reference_rad_s;
+  auto take = [&](const Roots& rs) {
+    for (const Complex& r : rs)
+      if (std::isfinite(std::abs(r))) w_fast = std::max(w_fast, std::abs(r));
+  };
+  take(c.zeros);
+  take(c.poles);
+  for (const Plant& p : plants) {
+    take(p.tf.zeros);
+    take(p.tf.poles);
+  }
+  double t_fast = 2.0 * M_PI / (o.fastest_ratio * w_fast);
+  if (base.sample_time_s > 0.0) t_fast = std::min(t_fast, base.sample_time_s);
+  const double t_slow = std::max(t_fast, 2.0 * M_PI / (o.slowest_ratio * s.reference_rad_s));
+  s.continuous_met = continuous.all_met;
   double met = 0.0, failed = 0.0;
   for (int k = 0; k < o.grid_points; ++k) {
     const double T = t_fast * std::pow(t_slow / t_fast, k / (o.grid_points - 1.0));

@@ -220,6 +220,7 @@ nlohmann::json sample_time_search_json(const SampleTimeSearch& s) {
           {"reference", s.reference_is_crossover ? "crossover" : "fastest_pole"},
           {"slowest_met_s", s.slowest_met_s ? json_number(*s.slowest_met_s) : nlohmann::json(nullptr)},
           {"first_failed_s", s.first_failed_s ? json_number(*s.first_failed_s) : nlohmann::json(nullptr)},
+          {"continuous_met", s.continuous_met},
           {"trials", trials}};
 }
 

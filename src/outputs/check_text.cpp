@@ -158,7 +158,8 @@ std::string sample_time_search_text(const SampleTimeSearch& s) {
     out += "every sample time tried meets, up to " + fmt_number(*s.slowest_met_s, 4) + " s (" + how + ")\n";
   else
     out += "none meets, not even " + fmt_number(s.trials.empty() ? 0.0 : s.trials.front().sample_time_s, 4) + " s (" + how +
-           "): the loop fails for another reason than the rate\n";
+           (s.continuous_met ? "): a faster rate may still meet\n"
+                             : "): the continuous loop does not meet either, so the rate is not the cause\n");
   return out;
 }
 

@@ -26,8 +26,11 @@ struct RateGuidance {
 std::optional<RateGuidance> rate_guidance(const Implementation& im, const Evaluation& continuous);
 
 struct SampleTimeOptions {
-  // The sample times tried lie between the rates 2 pi / T = fastest_ratio wc and slowest_ratio wc
-  // (wc: the nominal continuous crossover; without one, the fastest closed-loop pole that matters).
+  // The sample times tried lie between the rates 2 pi / T = fastest_ratio w and slowest_ratio wc
+  // (wc: the nominal continuous crossover; without one, the fastest closed-loop pole that matters;
+  // w: the largest of wc and every compensator and plant root's magnitude, so that a notch on a
+  // mode far above the crossover is tried at a rate it needs). The fastest trial is never slower
+  // than the spec's own sample time.
   double fastest_ratio = 200.0;
   double slowest_ratio = 2.0;
   int grid_points = 13;               // log-spaced trials over that range, fastest first
@@ -51,6 +54,7 @@ struct SampleTimeSearch {
   bool reference_is_crossover = true;
   std::optional<double> slowest_met_s;    // nullopt: not even the fastest trial meets
   std::optional<double> first_failed_s;   // nullopt: every trial up to the slowest meets
+  bool continuous_met = false;            // the continuous loop meets (else the rate is not the cause)
   std::vector<SampleTimeTrial> trials;    // in the order tried
 };
 
