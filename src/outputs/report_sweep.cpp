@@ -54,8 +54,13 @@ std::string value_text(const std::optional<double>& v) {
   return format_number(*v, 3);
 }
 
-// The range of the map's axis over the cells: cell edges for a full grid, padded values otherwise.
-void set_axis(Axis& a, const std::vector<double>& nodes, bool log, bool grid) {
+}  // namespace
+
+std::vector<MapCategory> sweep_categories() {
+  return {{"met", colour::kMet}, {"not met", colour::kNotMet}, {"bad point or error", colour::kMuted}};
+}
+
+void set_sweep_axis(Axis& a, const std::vector<double>& nodes, bool log, bool grid) {
   a.log = log;
   if (nodes.empty()) return;
   if (grid) {
@@ -75,8 +80,6 @@ void set_axis(Axis& a, const std::vector<double>& nodes, bool log, bool grid) {
     a.hi = hi + pad;
   }
 }
-
-}  // namespace
 
 std::string report_sweep_summary_section(const ReportData& d) {
   if (!d.sweep) return "";
@@ -119,9 +122,10 @@ std::string report_sweep_summary_section(const ReportData& d) {
   std::string dirs;
   for (const std::string& s : r.dirs) dirs += (dirs.empty() ? "" : ", ") + s;
   h += "<span class=\"k\">read from</span><span>" + xml_escape(dirs) + "</span>";
-  h += "<span class=\"k\">map</span><span>" + xml_escape(f.parameters[static_cast<size_t>(r.x)].name) + " across, " +
-       xml_escape(f.parameters[static_cast<size_t>(r.y)].name) + " up; " + std::to_string(cells_met) + " of " +
-       std::to_string(cells.size()) + " map positions met</span>";
+  const std::string up = r.strip() ? metric_info(r.metric).label : f.parameters[static_cast<size_t>(r.y)].name;
+  h += "<span class=\"k\">" + std::string(r.strip() ? "strip" : "map") + "</span><span>" +
+       xml_escape(f.parameters[static_cast<size_t>(r.x)].name) + " across, " + xml_escape(up) + " up; " +
+       std::to_string(cells_met) + " of " + std::to_string(cells.size()) + (r.strip() ? " values" : " map positions") + " met</span>";
   h += "</div>\n</div>\n</div>\n";
   return h;
 }
@@ -131,6 +135,7 @@ std::string report_sweep_map_section(const ReportData& d) {
   const SweepReport& r = *d.sweep;
   const std::vector<SweepCell> cells = sweep_cells(r);
   if (cells.empty()) return "<p>No point of the sweep has run yet.</p>\n";
+  if (r.strip()) return report_sweep_strip_section(r, cells);
   const std::vector<MapPoint> pts = sweep_map_points(cells);
   const MapGrid g = map_grid(pts);
   const SweepParameter& px = r.file.parameters[static_cast<size_t>(r.x)];
@@ -152,15 +157,15 @@ std::string report_sweep_map_section(const ReportData& d) {
   Plot pc(540, 420, "Verdict over " + px.name + " and " + py.name);
   Plot pm(540, 420, std::string(r.worst_is_max ? "Largest " : "Smallest ") + mi.label + " over " + px.name + " and " + py.name);
   for (Plot* p : {&pc, &pm}) {
-    set_axis(p->x, xs, log_x, grid);
-    set_axis(p->y, ys, log_y, grid);
+    set_sweep_axis(p->x, xs, log_x, grid);
+    set_sweep_axis(p->y, ys, log_y, grid);
     // Ticks at the swept values (a "50" tick between 10, 20, 40 would suggest a point there).
     if (xs.size() <= 24) p->x.fixed_ticks = xs;
     if (ys.size() <= 24) p->y.fixed_ticks = ys;
     p->x.label = "sweep parameter " + px.name + " (units of the sweep file)";
     p->y.label = "sweep parameter " + py.name + " (units of the sweep file)";
   }
-  add_category_map(pc, pts, {{"met", colour::kMet}, {"not met", colour::kNotMet}, {"bad point or error", colour::kMuted}});
+  add_category_map(pc, pts, sweep_categories());
   double vmin = 0.0, vmax = 0.0;
   bool any = false;
   for (const MapPoint& p : pts)

@@ -148,18 +148,25 @@ SweepReport read_sweep_report(const std::vector<std::string>& dirs, const SweepR
   const SweepFile& f = r.file;
 
   // Axes and metric.
-  if (f.parameters.size() < 2) throw SpecError("x", "the sweep has one parameter; the map needs two");
+  if (f.parameters.size() == 1) {  // a strip: the parameter across, the metric up; no y parameter
+    if (!o.y.empty())
+      throw SpecError("y", "the sweep has one parameter (" + f.parameters[0].name + "); its report is a strip (the metric up) and takes no y parameter");
+    r.x = 0;
+    r.y = -1;
+  }
   std::vector<int> varying;
-  for (size_t i = 0; i < f.parameters.size(); ++i)
+  for (size_t i = 0; i < f.parameters.size() && r.y >= 0; ++i)
     if (varies(f, f.parameters[i])) varying.push_back(static_cast<int>(i));
-  for (size_t i = 0; i < f.parameters.size() && varying.size() < 2; ++i)
+  for (size_t i = 0; i < f.parameters.size() && varying.size() < 2 && r.y >= 0; ++i)
     if (std::find(varying.begin(), varying.end(), static_cast<int>(i)) == varying.end()) varying.push_back(static_cast<int>(i));
   // An axis left to its default takes the first varying parameter the other axis does not use.
   const int given_x = o.x.empty() ? -1 : parameter_index(f, o.x, "x");
   const int given_y = o.y.empty() ? -1 : parameter_index(f, o.y, "y");
   auto first_other = [&](int used) { return varying[0] == used ? varying[1] : varying[0]; };
-  r.x = given_x >= 0 ? given_x : first_other(given_y);
-  r.y = given_y >= 0 ? given_y : first_other(r.x);
+  if (r.y >= 0) {
+    r.x = given_x >= 0 ? given_x : first_other(given_y);
+    r.y = given_y >= 0 ? given_y : first_other(r.x);
+  }
   if (r.x == r.y) throw SpecError(o.y.empty() ? "x" : "y", "\"" + f.parameters[static_cast<size_t>(r.x)].name + "\" is on both axes: choose two different parameters");
   const nlohmann::json req = f.base.contains("requirements") && f.base["requirements"].is_object() ? f.base["requirements"] : nlohmann::json::object();
   if (!o.metric.empty()) {
@@ -211,7 +218,7 @@ std::vector<SweepCell> sweep_cells(const SweepReport& r) {
   std::map<std::pair<double, double>, SweepCell> cells;
   const size_t m = static_cast<size_t>(r.metric);
   for (const SweepReportPoint& p : r.points) {
-    const double x = p.values[static_cast<size_t>(r.x)], y = p.values[static_cast<size_t>(r.y)];
+    const double x = p.values[static_cast<size_t>(r.x)], y = r.strip() ? 0.0 : p.values[static_cast<size_t>(r.y)];
     if (!std::isfinite(x) || !std::isfinite(y)) continue;
     SweepCell& c = cells[{x, y}];
     c.x = x;

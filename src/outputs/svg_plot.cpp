@@ -184,6 +184,11 @@ std::string Plot::svg() const {
   ay.p0 = b.y1;
   ay.p1 = b.y0;
   ax.target_ticks = std::max(3, static_cast<int>((b.x1 - b.x0) / 80.0));
+  if (!ax.fixed_ticks.empty()) {  // fixed ticks label up to 2 * target values: keep the labels apart
+    double w = 0.0;
+    for (double v : ax.fixed_ticks) w = std::max(w, text_width(format_number(v, 4), kTickFont));
+    ax.target_ticks = std::max(1, std::min(ax.target_ticks, static_cast<int>((b.x1 - b.x0) / (2.0 * (w + 10.0)))));
+  }
   ay.target_ticks = std::max(3, static_cast<int>((b.y1 - b.y0) / 45.0));
 
   // Legend layout: rows below the x-axis label.

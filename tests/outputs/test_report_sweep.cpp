@@ -301,3 +301,83 @@ TEST_CASE("sweep map defaults to the failing requirement, ticks at the swept val
   CHECK_FALSE(std::regex_search(maps[1], same));
   std::filesystem::remove_all(dir);
 }
+
+namespace {
+
+// One parameter: 1 / (s (s + 2)) under the gain g (0.5, 2, 8, 32 on a log scale), overshoot <= 25 %.
+const char* const kStripSweep = R"({
+  "name": "gain strip",
+  "base": { "plant": { "gain": 1, "poles": [0, -2] },
+            "requirements": { "overshoot_pct": { "max": 25 } },
+            "current": { "gain": "g" } },
+  "parameters": { "g": { "from": 0.5, "to": 32, "count": 4, "scale": "log" } },
+  "sample": { "method": "grid" }, "job": "check", "seed": 1 })";
+
+// Square markers (one "M" each) in the marker path filled with `colour`.
+size_t markers_filled(const std::string& svg, const std::string& colour) {
+  size_t n = 0;
+  for (size_t pos = svg.find("pw-data pw-markers\" fill=\"" + colour + "\""); pos != std::string::npos;
+       pos = svg.find("pw-data pw-markers\" fill=\"" + colour + "\"", pos + 1)) {
+    const size_t d = svg.find(" d=\"", pos), q = svg.find('"', d + 4);
+    for (size_t i = d + 4; i < q; ++i) n += svg[i] == 'M';
+  }
+  return n;
+}
+
+}  // namespace
+
+TEST_CASE("sweep report: a one-parameter sweep is drawn as a strip with the limit and the verdicts", "[outputs][report][sweep]") {
+  // The closed loop s^2 + 2 s + g has damping z = 1 / sqrt(g) and overshoot exp(-pi z / sqrt(1 - z^2))
+  // (standard second-order results, worked by hand): g = 0.5 overdamped (0 %), g = 2 4.3 %, g = 8
+  // 30.5 %, g = 32 57 %. Met for g <= 2, not met for g >= 8 against the 25 % limit.
+  const std::string dir = run_sweep_into(kStripSweep, "strip");
+  const ReportData d = prepare_sweep_report({dir});
+  const SweepReport& r = *d.sweep;
+  CHECK(r.strip());
+  CHECK(r.metric == MetricId::Overshoot);
+  const std::vector<SweepCell> cells = sweep_cells(r);
+  REQUIRE(cells.size() == 4);
+  for (const SweepCell& c : cells) {
+    const double z = 1.0 / std::sqrt(c.x);
+    const double os = z < 1.0 ? 100.0 * std::exp(-3.14159265358979323846 * z / std::sqrt(1.0 - z * z)) : 0.0;
+    INFO("g = " << c.x << ", overshoot by hand " << os << " %");
+    CHECK(c.category == (os <= 25.0 ? 0 : 1));
+    REQUIRE(c.worst);
+    CHECK(*c.worst == Approx(os).margin(1.0));
+  }
+  const std::string html = report_html(d);
+  check_page(html, 1);
+  const std::vector<std::string> svgs = outer_svgs(report_sweep_map_section(d));
+  REQUIRE(svgs.size() == 1);
+  const std::string& s = svgs[0];
+  CHECK(s.find("requirement limit") != std::string::npos);
+  CHECK(s.find("at most 25 %") != std::string::npos);
+  CHECK(markers_filled(s, "#2f7d55") == 2);  // met (colour::kMet)
+  CHECK(markers_filled(s, "#b3261e") == 2);  // not met (colour::kNotMet)
+  CHECK(s.find("bad point or error") == std::string::npos);  // no legend entry for a verdict absent
+  CHECK(s.find("boundary of the feasible values") != std::string::npos);
+  for (const char* v : {">0.5<", ">2<", ">8<", ">32<"}) CHECK(s.find(v) != std::string::npos);  // ticks at the swept values
+  CHECK(report_sweep_summary_section(d).find("g across, overshoot") != std::string::npos);
+  CHECK(report_html(prepare_sweep_report({dir})) == html);  // deterministic
+  std::filesystem::remove_all(dir);
+}
+
+TEST_CASE("sweep report: a y option for a one-parameter sweep is an error naming y", "[outputs][report][sweep]") {
+  const std::string dir = run_sweep_into(kStripSweep, "strip-y");
+  auto path_of = [&](const SweepReportOptions& o) {
+    try {
+      prepare_sweep_report({dir}, o);
+    } catch (const SpecError& e) {
+      return e.path();
+    }
+    return std::string("no error");
+  };
+  CHECK(path_of({"", "g", ""}) == "y");
+  CHECK(path_of({"g", "g", ""}) == "y");
+  CHECK(path_of({"Q", "", ""}) == "x");
+  CHECK(path_of({"g", "", ""}) == "no error");
+  CHECK(path_of({"", "", "phase_margin_deg"}) == "no error");  // a metric with no requirement: no limit line
+  const ReportData d = prepare_sweep_report({dir}, {"", "", "phase_margin_deg"});
+  CHECK(report_sweep_map_section(d).find("requirement limit") == std::string::npos);
+  std::filesystem::remove_all(dir);
+}

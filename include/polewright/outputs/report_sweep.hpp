@@ -44,12 +44,13 @@ struct SweepReport {
   SweepFile file;
   std::vector<SweepReportPoint> points;  // ascending index, each once (shards merged by index)
   long long expected = 0;                // points of the whole sweep
-  int x = 0, y = 1;                      // parameter indices of the map axes
+  int x = 0, y = 1;                      // parameter indices of the map axes; y = -1: a one-parameter sweep (a strip)
   MetricId metric = MetricId::Overshoot;
   bool worst_is_max = true;              // how the metric is aggregated
   std::vector<std::string> torn;         // directories whose points file ended in a torn line (skipped)
   long long count(PointStatus status) const;
   bool all_met() const { return expected > 0 && count(PointStatus::Met) == expected; }
+  bool strip() const { return y < 0; }
 };
 
 struct SweepReportOptions {
@@ -59,11 +60,13 @@ struct SweepReportOptions {
 // Reads the directories (one sweep; points merged by index, a point found twice must agree).
 // Defaults: the first two parameters with more than one value, and the metric of the base spec's
 // requirement that fails at the most points that missed (ties and all-met sweeps: the first
-// requirement in metric table order). Throws SpecError naming the directory, `dirs` (none given)
-// or the SweepReportOptions field (x, y, metric) on bad input.
+// requirement in metric table order). A sweep of one parameter has no y axis (y = -1, strip()):
+// the report draws the metric over the parameter instead of a map, and a y option is an error.
+// Throws SpecError naming the directory, `dirs` (none given) or the SweepReportOptions field
+// (x, y, metric) on bad input.
 SweepReport read_sweep_report(const std::vector<std::string>& dirs, const SweepReportOptions& options = {});
 
-// The points gathered onto (x, y), in ascending (x, y).
+// The points gathered onto (x, y), in ascending (x, y); y = 0 for every cell of a strip.
 std::vector<SweepCell> sweep_cells(const SweepReport& r);
 
 // The report data of a sweep (job "sweep") and its page.
