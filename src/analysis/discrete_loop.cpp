@@ -588,6 +588,50 @@ DiscretePoles discrete_closed_loop_poles(const Zpk& cd, const SampledPlant& sp, 
   return out;
 }
 
+namespace {
+
+// Frequency response of the sampled loop on (0, pi / T]: frequency_grid placed by the plant's roots
+// and the s-plane equivalents ln(z) / T of the compensator's roots, limited below Nyquist, plus a
+// dense last decade; the upper end is the phase crossing at Nyquist where L(-1) < 0.
+FrequencyMetrics sampled_frequency_metrics(const Zpk& cd, const Plant& plant, const SampledPlant& sp,
+                                           const DiscreteLoopOptions& o, double nyquist_rad_s) {
+  const double T = o.sample_time_s;
+  Zpk placement = plant.tf;
+  placement.gain = 1.0;
+  for (const Complex& z : cd.zeros)
+    if (std::abs(z) > 0.0 && std::abs(z + 1.0) > 1e-9) placement.zeros.push_back(std::log(z) / T);
+  for (const Complex& p : cd.poles)
+    if (std::abs(p) > 0.0) placement.poles.push_back(std::log(p) / T);
+  const double top = nyquist_rad_s * (1.0 - 1e-9);
+  auto Lw = [&](double w) { return sampled_loop_response(cd, sp, w); };
+  ResponseLimits lim;
+  lim.type = roots_at_one(cd.poles) - roots_at_one(cd.zeros) + zpk_integrators(plant.tf);
+  if (lim.type == 0) lim.low_frequency_gain = (cd.evaluate(1.0) * sampled_plant_response(sp, 1.0)).real();
+  const Complex Lnyq = cd.evaluate(-1.0) * sampled_plant_response(sp, -1.0);
+  if (Lnyq.real() < 0.0 && std::abs(Lnyq) > 0.0) lim.upper_crossing = std::make_pair(nyquist_rad_s, 1.0 / std::abs(Lnyq));
+  double lo = INFINITY;
+  for (const Roots* set : {&placement.zeros, &placement.poles})
+    for (const Complex& r : *set)
+      if (std::abs(r) > 0.0) lo = std::min(lo, std::abs(r));
+  lo = std::min(std::isfinite(lo) ? lo / 100.0 : top / 1000.0, top / 1000.0);
+  for (int i = 0; i < 6 && lim.type > 0 && std::abs(Lw(lo)) < 1.0; ++i) lo /= 10.0;
+  FrequencyOptions fo = o.frequency;
+  fo.w_min = lo;
+  fo.w_max = top;
+  std::vector<double> grid;
+  for (double w : frequency_grid(placement, plant.delay_s + o.compute_delay * T, fo))
+    if (w > 0.0 && w <= top) grid.push_back(w);
+  const int dense = 4 * fo.points_per_decade;
+  for (int i = 0; i <= dense; ++i) grid.push_back(top * std::pow(10.0, -1.0 + static_cast<double>(i) / dense));
+  grid.push_back(top);
+  std::sort(grid.begin(), grid.end());
+  grid.erase(std::unique(grid.begin(), grid.end()), grid.end());
+  while (!grid.empty() && grid.back() > top) grid.pop_back();
+  return frequency_metrics_of(Lw, grid, lim, fo);
+}
+
+}  // namespace
+
 DiscreteLoopAnalysis analyze_discrete_loop(const Zpk& cd, const Plant& plant, const DiscreteLoopOptions& o) {
   std::string err;
   if (!o.IsValid(&err)) throw std::invalid_argument(err);
@@ -620,7 +664,12 @@ DiscreteLoopAnalysis analyze_discrete_loop(const Zpk& cd, const Plant& plant, co
       a.dominant = p;
       break;
     }
-  if (a.stable) a.step = sampled_step(cl, y_final, a.poles, T, o, a.step_truncated);
+  if (!a.stable && o.stop_if_unstable) return a;
+
+  if (o.frequency_response) a.frequency = sampled_frequency_metrics(cd, plant, sp, o, a.nyquist_rad_s);
+  a.steady_state = discrete_steady_state(cd, plant, T, o.error_signal);
+
+  if (a.stable && (!o.step_gate || o.step_gate(a))) a.step = sampled_step(cl, y_final, a.poles, T, o, a.step_truncated);
   if (a.step && o.between_samples) {
     a.step_at_samples = a.step;
     a.step_at_samples->trace = StepTrace{};
@@ -628,43 +677,6 @@ DiscreteLoopAnalysis analyze_discrete_loop(const Zpk& cd, const Plant& plant, co
     const int nc = cl.states() - plant_system(sp).states();
     between_samples(cl, nc, g, sp, y_final, o, *a.step);
   }
-
-  // Frequency response on (0, pi / T): frequency_grid placed by the plant's roots and the
-  // s-plane equivalents ln(z) / T of the compensator's roots, limited below Nyquist, plus a dense
-  // last decade; the upper end is the phase crossing at Nyquist where L(-1) < 0.
-  Zpk placement = plant.tf;
-  placement.gain = 1.0;
-  for (const Complex& z : cd.zeros)
-    if (std::abs(z) > 0.0 && std::abs(z + 1.0) > 1e-9) placement.zeros.push_back(std::log(z) / T);
-  for (const Complex& p : cd.poles)
-    if (std::abs(p) > 0.0) placement.poles.push_back(std::log(p) / T);
-  const double top = a.nyquist_rad_s * (1.0 - 1e-9);
-  auto Lw = [&](double w) { return sampled_loop_response(cd, sp, w); };
-  ResponseLimits lim;
-  lim.type = roots_at_one(cd.poles) - roots_at_one(cd.zeros) + zpk_integrators(plant.tf);
-  if (lim.type == 0) lim.low_frequency_gain = (cd.evaluate(1.0) * sampled_plant_response(sp, 1.0)).real();
-  const Complex Lnyq = cd.evaluate(-1.0) * sampled_plant_response(sp, -1.0);
-  if (Lnyq.real() < 0.0 && std::abs(Lnyq) > 0.0) lim.upper_crossing = std::make_pair(a.nyquist_rad_s, 1.0 / std::abs(Lnyq));
-  double lo = INFINITY;
-  for (const Roots* set : {&placement.zeros, &placement.poles})
-    for (const Complex& r : *set)
-      if (std::abs(r) > 0.0) lo = std::min(lo, std::abs(r));
-  lo = std::min(std::isfinite(lo) ? lo / 100.0 : top / 1000.0, top / 1000.0);
-  for (int i = 0; i < 6 && lim.type > 0 && std::abs(Lw(lo)) < 1.0; ++i) lo /= 10.0;
-  FrequencyOptions fo = o.frequency;
-  fo.w_min = lo;
-  fo.w_max = top;
-  std::vector<double> grid;
-  for (double w : frequency_grid(placement, plant.delay_s + o.compute_delay * T, fo))
-    if (w > 0.0 && w <= top) grid.push_back(w);
-  const int dense = 4 * fo.points_per_decade;
-  for (int i = 0; i <= dense; ++i) grid.push_back(top * std::pow(10.0, -1.0 + static_cast<double>(i) / dense));
-  grid.push_back(top);
-  std::sort(grid.begin(), grid.end());
-  grid.erase(std::unique(grid.begin(), grid.end()), grid.end());
-  while (!grid.empty() && grid.back() > top) grid.pop_back();
-  a.frequency = frequency_metrics_of(Lw, grid, lim, fo);
-  a.steady_state = discrete_steady_state(cd, plant, T, o.error_signal);
   return a;
 }
 

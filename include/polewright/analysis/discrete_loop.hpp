@@ -3,6 +3,7 @@
 // exponential), including a dead time that is not a whole number of samples (the modified ZOH).
 #pragma once
 
+#include <functional>
 #include <optional>
 #include <string>
 #include <vector>
@@ -37,6 +38,8 @@ StateSpace sampled_plant_state_space(const SampledPlant& p);
 // Gd(z) = z^-n (C (zI - Phi)^-1 (Gamma0 + Gamma1 z^-1) + D z^-f).
 Complex sampled_plant_response(const SampledPlant& p, Complex z);
 
+struct DiscreteLoopAnalysis;
+
 struct DiscreteLoopOptions {
   double sample_time_s = 0.0;  // T > 0 (required)
   int compute_delay = 0;       // d >= 0 samples between sampling y and applying u
@@ -56,6 +59,13 @@ struct DiscreteLoopOptions {
   int points_per_sample = 16;  // at most; fewer on very long horizons (at least 4)
   TestSignal error_signal = TestSignal::Step;
   FrequencyOptions frequency;
+  // Screening (the defaults compute everything): `frequency_response` false leaves the frequency
+  // figures empty; `stop_if_unstable` ends the analysis of an unstable loop after its poles; a set
+  // `step_gate` is asked after the poles, the frequency response and the steady state, and the step
+  // is simulated only when it answers true.
+  bool frequency_response = true;
+  bool stop_if_unstable = false;
+  std::function<bool(const DiscreteLoopAnalysis&)> step_gate;
 
   bool IsValid(std::string* error) const;
 };
