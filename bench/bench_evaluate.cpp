@@ -103,7 +103,7 @@ int bench_evaluate(int argc, char** argv) {
         const Zpk& c = pool[static_cast<size_t>(r.n % 4096)];
         const LoopEvaluation e =
             sampled ? evaluate_sampled_loop(implement_compensator(c, im, std::nullopt).discrete, plant, im, req, region, opt, 0,
-                                        screening_instants)
+                                        screening_instants, needs)
                       .loop
                     : evaluate_loop(c, plant, req, region, opt, needs);
         r.stable += e.stable;

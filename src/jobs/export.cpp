@@ -200,7 +200,7 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
   for (size_t i = 0; i < spec.plants.size(); ++i) {
     ExportLoop& L = r.loops[i];
     const auto& cs = L.continuous_eval.step;
-    const int min_samples = cs ? static_cast<int>(std::min(2e5, std::ceil(cs->horizon_s / T) + 1.0)) : 0;
+    const int min_samples = cs ? static_cast<int>(std::min<double>(DiscreteLoopOptions{}.max_samples, std::ceil(cs->horizon_s / T) + 1.0)) : 0;
     SampledLoopEvaluation s;
     try {
       s = evaluate_sampled_loop(as_run, spec.plants[i], im, spec.requirements, region, spec.analysis, min_samples);
@@ -210,11 +210,7 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
     L.discrete_eval = std::move(s.analysis);
     L.discrete = s.loop.values;
     if (L.discrete_eval.step_truncated)
-      r.warnings.push_back(L.plant_name + ": " +
-                           fmt("the sampled step stops at %.0f samples (%.4g s) before its slowest pole has decayed: "
-                               "no step figure is given (use a longer sample time)",
-                               static_cast<double>(DiscreteLoopOptions{}.max_samples),
-                               (DiscreteLoopOptions{}.max_samples - 1) * T));
+      r.warnings.push_back(sampled_step_truncated_warning(L.plant_name, DiscreteLoopOptions{}.max_samples, T));
     r.discrete_stable = r.discrete_stable && s.loop.stable;
   }
   r.all_met = r.discrete_stable;

@@ -27,8 +27,17 @@ bool needs_any(const RequirementSet& req, std::initializer_list<MetricId> ids) {
   return false;
 }
 
-// Screening: the step and the disturbance steps only for loops whose figures other than the time-domain ones
-// violate by at most `gate` in total (as the reference step).
+}  // namespace
+
+bool needs_frequency_response(const RequirementSet& req) {
+  return needs_any(req, {MetricId::PhaseMargin, MetricId::GainMargin, MetricId::Crossover, MetricId::Bandwidth,
+                         MetricId::PeakSensitivity, MetricId::DelayMargin});
+}
+
+bool needs_step_response(const RequirementSet& req) {
+  return needs_any(req, {MetricId::Overshoot, MetricId::SettlingTime, MetricId::RiseTime, MetricId::PeakEffort});
+}
+
 bool time_domain_gate(const RequirementSet& req, const MetricValues& v, double gate) {
   double fv = 0.0;
   for (const Requirement& r : req.items)
@@ -36,8 +45,6 @@ bool time_domain_gate(const RequirementSet& req, const MetricValues& v, double g
       fv += requirement_violation(r, v[static_cast<size_t>(r.metric)]);
   return fv <= gate;
 }
-
-}  // namespace
 
 MetricValue delay_margin_value(const FrequencyMetrics& f) {
   if (f.gain_crossovers_rad_s.empty()) return infinite();
@@ -145,9 +152,7 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
   const bool all = needs.everything;
   if (!all && !e.stable) return e;  // screening: nothing more to learn from an unstable loop
   // Frequency response with the exact delay: robustness figures, computed for unstable loops too.
-  const bool freq = all || needs.frequency ||
-                    needs_any(req, {MetricId::PhaseMargin, MetricId::GainMargin, MetricId::Crossover,
-                                    MetricId::Bandwidth, MetricId::PeakSensitivity, MetricId::DelayMargin});
+  const bool freq = all || needs.frequency || needs_frequency_response(req);
   if (freq) {
     e.frequency = frequency_metrics(parts.loop_exact, parts.delay_s, opt.frequency);
     set_frequency_metrics(v, e.frequency);
@@ -161,8 +166,7 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
   e.steady_state = steady_state_error(parts.loop_exact, req.error_signal);
   set_steady_state_metrics(v, e.steady_state);
 
-  bool step = all || needs.step ||
-              needs_any(req, {MetricId::Overshoot, MetricId::SettlingTime, MetricId::RiseTime, MetricId::PeakEffort});
+  bool step = all || needs.step || needs_step_response(req);
   if (!all && step) step = time_domain_gate(req, v, needs.step_gate);
   if (step) {
     StepOptions so = opt.step;

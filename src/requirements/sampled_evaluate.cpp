@@ -131,7 +131,8 @@ Plant plant_with_compute_delay(const Plant& plant, const Implementation& im) {
 
 SampledLoopEvaluation evaluate_sampled_loop(const Zpk& cd, const Plant& plant, const Implementation& im,
                                             const RequirementSet& req, const Region& region,
-                                            const AnalysisOptions& options, int min_samples, bool screening) {
+                                            const AnalysisOptions& options, int min_samples, bool screening,
+                                            const EvaluationNeeds& needs) {
   DiscreteLoopOptions lo;
   lo.sample_time_s = im.sample_time_s;
   lo.compute_delay = 0;  // folded into the plant's dead time (exact for a fraction too)
@@ -143,6 +144,16 @@ SampledLoopEvaluation evaluate_sampled_loop(const Zpk& cd, const Plant& plant, c
   lo.between_samples = !screening;
   if (screening) lo.window_samples = screening_window_samples(req, im.sample_time_s);
   lo.min_samples = std::min(std::max(min_samples, 0), lo.max_samples);
+  const bool all = needs.everything;
+  if (!all) {
+    // The continuous screening's economy (evaluate_loop), on the sampled loop.
+    lo.stop_if_unstable = true;
+    lo.frequency_response = needs.frequency || needs_frequency_response(req);
+    const bool step = needs.step || needs_step_response(req);
+    lo.step_gate = [&req, &needs, step](const DiscreteLoopAnalysis& a) {
+      return step && time_domain_gate(req, discrete_metric_values(a), needs.step_gate);
+    };
+  }
   const Plant p = plant_with_compute_delay(plant, im);
   SampledLoopEvaluation s;
   try {
@@ -171,7 +182,15 @@ SampledLoopEvaluation evaluate_sampled_loop(const Zpk& cd, const Plant& plant, c
       if (info.time_domain) e.values[static_cast<size_t>(info.id)] = MetricValue{};
     e.step.reset();
   }
-  if (req.has(MetricId::GainTolerance) && e.stable) {
+  bool tolerance = req.has(MetricId::GainTolerance) && e.stable;
+  if (tolerance && !all) {
+    // Screening: the gain scan only for loops that are near meeting everything else.
+    double other = 0.0;
+    for (const Requirement& r : req.items)
+      if (r.metric != MetricId::GainTolerance) other += requirement_violation(r, e.values[static_cast<size_t>(r.metric)]);
+    tolerance = other <= needs.step_gate;
+  }
+  if (tolerance) {
     const SampledPlant sp = sample_plant(p, im.sample_time_s, 0);
     e.gain = discrete_gain_tolerance(cd, sp, region, options.residue_share);
     set_gain_tolerance_metric(e.values, e.gain.tolerance_pct);
@@ -186,7 +205,8 @@ int screening_window_samples(const RequirementSet& req, double T) {
         (r.metric == MetricId::SettlingTime || r.metric == MetricId::RiseTime))
       longest = std::max(longest, r.limit);
   if (!(longest > 0.0) || !(T > 0.0)) return 0;
-  return static_cast<int>(std::min(2e5, std::max(200.0, std::ceil(4.0 * longest / T))));
+  const double cap = DiscreteLoopOptions{}.max_samples;
+  return static_cast<int>(std::min(cap, std::max(200.0, std::ceil(4.0 * longest / T))));
 }
 
 SampledEvaluation evaluate_sampled(const Zpk& c, const std::vector<Plant>& plants, const RequirementSet& req,
@@ -198,17 +218,14 @@ SampledEvaluation evaluate_sampled(const Zpk& c, const std::vector<Plant>& plant
   if (!continuous.plants.empty()) wc = continuous.plants.front().frequency.crossover_rad_s;
   r.compensator = implement_compensator(c, im, wc);
   const double T = im.sample_time_s;
+  const int cap = DiscreteLoopOptions{}.max_samples;
   std::vector<LoopEvaluation> loops;
   for (size_t i = 0; i < plants.size(); ++i) {
     int min_samples = 0;
     if (i < continuous.plants.size() && continuous.plants[i].step)
-      min_samples = static_cast<int>(std::min(200000.0, std::ceil(continuous.plants[i].step->horizon_s / T) + 1.0));
+      min_samples = static_cast<int>(std::min<double>(cap, std::ceil(continuous.plants[i].step->horizon_s / T) + 1.0));
     r.loops.push_back(evaluate_sampled_loop(r.compensator.discrete, plants[i], im, req, region, options, min_samples));
-    if (r.loops.back().analysis.step_truncated)
-      r.warnings.push_back(plants[i].name + ": " +
-                           fmt("the sampled step stops at %.0f samples before its slowest pole has decayed: no step "
-                               "figure is given (use a longer sample time)",
-                               200000.0));
+    if (r.loops.back().analysis.step_truncated) r.warnings.push_back(sampled_step_truncated_warning(plants[i].name, cap, T));
     loops.push_back(r.loops.back().loop);
   }
   r.evaluation = evaluation_of(std::move(loops), req);
@@ -222,10 +239,18 @@ SampledEvaluation evaluate_sampled(const Zpk& c, const std::vector<Plant>& plant
   return r;
 }
 
+std::string sampled_step_truncated_warning(const std::string& plant_name, int max_samples, double sample_time_s) {
+  return plant_name + ": " +
+         fmt("the sampled step stops at %.0f samples (%.4g s) before its slowest pole has decayed: no step figure is "
+             "given (use a longer sample time)",
+             static_cast<double>(max_samples), (max_samples - 1) * sample_time_s);
+}
+
 std::string sampled_label(const Implementation& im) {
   char buf[200];
-  std::snprintf(buf, sizeof buf, "sampled at T = %.6g s (%s, delay %.6g samples%s)", im.sample_time_s,
+  std::snprintf(buf, sizeof buf, "sampled at T = %.6g s (%s, delay %.6g %s%s)", im.sample_time_s,
                 discrete_method_name(im.method), im.compute_delay_samples,
+                im.compute_delay_samples == 1.0 ? "sample" : "samples",
                 im.word_length == WordLength::Float ? ", float coefficients" : "");
   return buf;
 }

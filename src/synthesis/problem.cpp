@@ -108,7 +108,7 @@ std::vector<LoopEvaluation> CompensatorScorer::loops(const Zpk& c, const Evaluat
     // The sampled screening: step figures at the instants only, from a window of four times the
     // longest time limit (the verification looks between the samples over the whole horizon, and
     // the design margin keeps the search inside the limits).
-    for (const Plant& p : plants_) evals.push_back(evaluate_sampled_loop(cd, p, im, req_, region_, opt_, 0, true).loop);
+    for (const Plant& p : plants_) evals.push_back(evaluate_sampled_loop(cd, p, im, req_, region_, opt_, 0, true, needs).loop);
   } catch (const SpecError&) {
     evals.clear();
   }

@@ -95,6 +95,15 @@ struct EvaluationNeeds {
 LoopEvaluation evaluate_loop(const Zpk& compensator, const Plant& plant, const RequirementSet& req,
                              const Region& region, const AnalysisOptions& options, const EvaluationNeeds& needs = {});
 
+// Whether `req` names a figure of the loop frequency response (margins, crossover, bandwidth, peak
+// sensitivity, delay margin), or of the reference step (overshoot, settling, rise, peak effort).
+bool needs_frequency_response(const RequirementSet& req);
+bool needs_step_response(const RequirementSet& req);
+
+// The screening gate of the step and the disturbance steps: true when the figures other than the
+// time-domain ones (and the gain tolerance) violate `req` by at most `gate` in total.
+bool time_domain_gate(const RequirementSet& req, const MetricValues& v, double gate);
+
 // Delay margin: the smallest extra dead time that brings a gain crossover's phase to -180 deg,
 // min over crossovers w_i of PM_i / w_i with PM_i in radians taken in [0, 2 pi); infinite without
 // a crossover. For any loop's frequency figures (continuous or sampled).

@@ -49,10 +49,17 @@ struct SampledLoopEvaluation {
 // `min_samples`: simulate at least this many samples (the continuous step's horizon over T).
 // `screening` (the search's cheap path; verification and check leave it off): step figures at the
 // sample instants only, from a window of screening_window_samples(req, T) samples at most.
+// `needs` with everything = false skips what the continuous screening skips (evaluate_loop): an
+// unstable loop stops after its poles, the frequency response only when a requirement or
+// needs.frequency asks, the step only past the time_domain_gate at needs.step_gate (or when
+// needs.step asks), the gain-tolerance scan only when everything else is that close.
 SampledLoopEvaluation evaluate_sampled_loop(const Zpk& discrete, const Plant& plant, const Implementation& im,
                                             const RequirementSet& req, const Region& region,
                                             const AnalysisOptions& options, int min_samples = 0,
-                                            bool screening = false);
+                                            bool screening = false, const EvaluationNeeds& needs = {});
+
+// The warning when a sampled step stops at `max_samples` samples of T before its slowest pole has decayed.
+std::string sampled_step_truncated_warning(const std::string& plant_name, int max_samples, double sample_time_s);
 
 // The screening's step window: four times the largest upper time limit of `req` (settling, rise)
 // in samples of T, at least 200; 0 (no window) when `req` bounds no time.
@@ -71,7 +78,7 @@ SampledEvaluation evaluate_sampled(const Zpk& continuous_compensator, const std:
                                    const RequirementSet& req, const Region& region, const AnalysisOptions& options,
                                    const Implementation& im, const Evaluation& continuous);
 
-// "sampled at T = 0.002 s (tustin, delay 0 samples)".
+// "sampled at T = 0.002 s (tustin, delay 1 sample)"; "delay 0.5 samples" for a fraction.
 std::string sampled_label(const Implementation& im);
 
 }  // namespace pw
