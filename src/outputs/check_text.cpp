@@ -2,6 +2,7 @@
 
 #include "polewright/outputs/check_output.hpp"
 #include "polewright/outputs/json_values.hpp"
+#include "polewright/requirements/sampled_evaluate.hpp"
 #include "text_table.hpp"
 
 namespace pw {
@@ -148,8 +149,7 @@ std::string check_report_text(const CheckReport& r) {
 
 std::string sample_time_search_text(const SampleTimeSearch& s) {
   const Implementation& im = s.implementation;
-  std::string how = std::string(discrete_method_name(im.method)) + ", delay " + fmt_number(im.compute_delay_samples, 3) +
-                    " samples" + (im.word_length == WordLength::Float ? ", float coefficients" : "");
+  const std::string how = implementation_words(im);
   std::string out = "slowest T    ";
   if (s.slowest_met_s && s.first_failed_s)
     out += fmt_number(*s.slowest_met_s, 4) + " s meets, " + fmt_number(*s.first_failed_s, 4) + " s does not (" + how +

@@ -246,13 +246,18 @@ std::string sampled_step_truncated_warning(const std::string& plant_name, int ma
              static_cast<double>(max_samples), (max_samples - 1) * sample_time_s);
 }
 
-std::string sampled_label(const Implementation& im) {
-  char buf[200];
-  std::snprintf(buf, sizeof buf, "sampled at T = %.6g s (%s, delay %.6g %s%s)", im.sample_time_s,
-                discrete_method_name(im.method), im.compute_delay_samples,
+std::string implementation_words(const Implementation& im) {
+  char buf[160];
+  std::snprintf(buf, sizeof buf, "%s, delay %.6g %s%s", discrete_method_name(im.method), im.compute_delay_samples,
                 im.compute_delay_samples == 1.0 ? "sample" : "samples",
                 im.word_length == WordLength::Float ? ", float coefficients" : "");
   return buf;
+}
+
+std::string sampled_label(const Implementation& im) {
+  char buf[80];
+  std::snprintf(buf, sizeof buf, "sampled at T = %.6g s (", im.sample_time_s);
+  return buf + implementation_words(im) + ")";
 }
 
 }  // namespace pw

@@ -56,9 +56,9 @@ TEST_CASE("check text of a spec with an implementation says sampled at T and sho
     "implementation": {"sample_time_s": 0.5, "method": "zoh", "compute_delay_samples": 1}
   })"));
   const std::string t = check_report_text(run_check(spec, *spec.current));
-  CHECK(t.find("sampled at T = 0.5 s (zoh, delay 1 samples)") != std::string::npos);
+  CHECK(t.find("sampled at T = 0.5 s (zoh, delay 1 sample)") != std::string::npos);
   CHECK(t.find("worst value (sampled)") != std::string::npos);
   CHECK(t.find("continuous") != std::string::npos);
-  CHECK(t.find("verdict (sampled at T = 0.5 s (zoh, delay 1 samples)): ") != std::string::npos);
+  CHECK(t.find("verdict (sampled at T = 0.5 s (zoh, delay 1 sample)): ") != std::string::npos);
   CHECK(t.find("closed-loop poles (sampled loop, s = ln(z) / T)") != std::string::npos);
 }

@@ -121,6 +121,17 @@ TEST_CASE("sampled_label names T, the method and the delay", "[implementation][s
   CHECK(sampled_label(im) == "sampled at T = 0.002 s (zoh, delay 0.5 samples, float coefficients)");
 }
 
+TEST_CASE("implementation_words: one sample, not one samples", "[implementation][sampled_evaluate]") {
+  Implementation im = impl(0.01, 1.0);
+  CHECK(implementation_words(im) == "tustin, delay 1 sample");
+  CHECK(sampled_label(im) == "sampled at T = 0.01 s (tustin, delay 1 sample)");
+  im.compute_delay_samples = 0.0;
+  CHECK(implementation_words(im) == "tustin, delay 0 samples");
+  im.compute_delay_samples = 2.0;
+  im.word_length = WordLength::Float;
+  CHECK(implementation_words(im) == "tustin, delay 2 samples, float coefficients");
+}
+
 TEST_CASE("the screening window is four times the longest time limit, in samples", "[implementation][sampled_evaluate]") {
   RequirementSet r = overshoot_max(10);
   CHECK(screening_window_samples(r, 0.002) == 0);  // no time limit: no window

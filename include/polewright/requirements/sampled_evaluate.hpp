@@ -78,6 +78,10 @@ SampledEvaluation evaluate_sampled(const Zpk& continuous_compensator, const std:
                                    const RequirementSet& req, const Region& region, const AnalysisOptions& options,
                                    const Implementation& im, const Evaluation& continuous);
 
+// "tustin, delay 1 sample" ("delay 0.5 samples" for a fraction; ", float coefficients" after it
+// with word_length float): the words the sampled label and the sample-time search use.
+std::string implementation_words(const Implementation& im);
+
 // "sampled at T = 0.002 s (tustin, delay 1 sample)"; "delay 0.5 samples" for a fraction.
 std::string sampled_label(const Implementation& im);
 
