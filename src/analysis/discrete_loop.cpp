@@ -4,6 +4,7 @@
 #include <cmath>
 #include <functional>
 #include <stdexcept>
+#include <vector>
 
 #include <Eigen/Sparse>
 
@@ -58,6 +59,28 @@ SampledPlant sample_plant(const Plant& plant, double T, int compute_delay) {
   if (frac > 0.0) {
     const Mat E1 = zoh_block(g, delta);
     p.gamma1 = E0.topLeftCorner(n, n) * E1.topRightCorner(n, 1);
+  }
+  const Eigen::HessenbergDecomposition<Eigen::MatrixXd> hd(Eigen::MatrixXd(p.core.A));
+  const Eigen::MatrixXd Q = hd.matrixQ();
+  p.hess = hd.matrixH();
+  p.hb = Q.transpose() * Eigen::VectorXd(p.core.B);
+  if (p.gamma1.size() > 0) p.hg = Q.transpose() * Eigen::VectorXd(p.gamma1);
+  p.hc = Eigen::RowVectorXd(p.core.C) * Q;
+  const EigenDecomposition ed = eigen_decompose(p.core.A);
+  if (ed.ok) {
+    const Eigen::PartialPivLU<CMat> lu(ed.vectors);
+    const CMat Vi = lu.inverse();
+    const double cond = ed.vectors.cwiseAbs().colwise().sum().maxCoeff() * Vi.cwiseAbs().colwise().sum().maxCoeff();
+    if (std::isfinite(cond) && cond <= 1e4) {
+      const CVec cv = (p.core.C.cast<Complex>() * ed.vectors).transpose();
+      const CVec wb = Vi * p.core.B.cast<Complex>();
+      const CVec wg = p.gamma1.size() > 0 ? CVec(Vi * p.gamma1.cast<Complex>()) : CVec(CVec::Zero(n));
+      for (int i = 0; i < n; ++i) {
+        p.lambda.push_back(ed.values(i));
+        p.rb.push_back(cv(i) * wb(i));
+        p.rg.push_back(cv(i) * wg(i));
+      }
+    }
   }
   return p;
 }
@@ -151,11 +174,78 @@ StateSpace sampled_plant_state_space(const SampledPlant& p) {
   return with_matrices_of<StateSpace>(d);
 }
 
+namespace {
+
+// a / b in plain real arithmetic (std::complex division goes through the slow C99 Annex G
+// helper); |b|^2 stays far inside double range for the values of a frequency response.
+inline Complex quotient(Complex a, Complex b) {
+  const double d = std::norm(b);
+  return Complex((a.real() * b.real() + a.imag() * b.imag()) / d, (a.imag() * b.real() - a.real() * b.imag()) / d);
+}
+
+// z^n for n >= 0 by repeated squaring (std::pow(complex, int) goes through exp and log).
+inline Complex integer_power(Complex z, int n) {
+  Complex r(1.0, 0.0);
+  while (n > 0) {
+    if (n & 1) r *= z;
+    z *= z;
+    n >>= 1;
+  }
+  return r;
+}
+
+// C (zI - H)^-1 (b + zi g) for upper Hessenberg H: Gaussian elimination with the pivot chosen
+// between the two rows that hold column k (stable as partial pivoting), then back substitution.
+// NaN when zI - H is singular.
+Complex hessenberg_response(const SampledPlant& p, Complex z, Complex zi) {
+  const int n = static_cast<int>(p.hess.rows());
+  thread_local std::vector<Complex> work;  // n x n row-major, reused: no allocation per point
+  thread_local std::vector<Complex> rhs;
+  work.resize(static_cast<size_t>(n) * static_cast<size_t>(n));
+  rhs.resize(static_cast<size_t>(n));
+  auto M = [&](int i, int j) -> Complex& { return work[static_cast<size_t>(i) * static_cast<size_t>(n) + static_cast<size_t>(j)]; };
+  for (int i = 0; i < n; ++i) {
+    for (int j = 0; j < n; ++j) M(i, j) = Complex(j >= i - 1 ? -p.hess(i, j) : 0.0, 0.0);
+    M(i, i) += z;
+    rhs[static_cast<size_t>(i)] = p.hb(i) + (p.hg.size() > 0 ? zi * p.hg(i) : Complex(0.0, 0.0));
+  }
+  for (int k = 0; k + 1 < n; ++k) {
+    if (std::norm(M(k + 1, k)) > std::norm(M(k, k))) {
+      for (int j = k; j < n; ++j) std::swap(M(k, j), M(k + 1, j));
+      std::swap(rhs[static_cast<size_t>(k)], rhs[static_cast<size_t>(k + 1)]);
+    }
+    if (M(k + 1, k) == 0.0) continue;
+    if (M(k, k) == 0.0) return Complex(NAN, NAN);
+    const Complex l = quotient(M(k + 1, k), M(k, k));
+    for (int j = k + 1; j < n; ++j) M(k + 1, j) -= l * M(k, j);
+    rhs[static_cast<size_t>(k + 1)] -= l * rhs[static_cast<size_t>(k)];
+  }
+  Complex v(0.0, 0.0);
+  for (int i = n - 1; i >= 0; --i) {
+    Complex s = rhs[static_cast<size_t>(i)];
+    for (int j = i + 1; j < n; ++j) s -= M(i, j) * rhs[static_cast<size_t>(j)];
+    if (M(i, i) == 0.0) return Complex(NAN, NAN);
+    rhs[static_cast<size_t>(i)] = quotient(s, M(i, i));
+    v += p.hc(i) * rhs[static_cast<size_t>(i)];
+  }
+  return v;
+}
+
+}  // namespace
+
 Complex sampled_plant_response(const SampledPlant& p, Complex z) {
   const int nx = p.core.states();
   Complex v(0.0, 0.0);
-  const Complex zi = 1.0 / z;
-  if (nx > 0) {
+  const Complex zi = quotient(Complex(1.0, 0.0), z);
+  const bool hessenberg = nx > 0 && p.hess.rows() == nx && p.hess.cols() == nx && p.hb.size() == nx &&
+                          p.hc.size() == nx && p.hg.size() == p.gamma1.size();
+  const bool modal = nx > 0 && p.lambda.size() == static_cast<size_t>(nx) && p.rb.size() == p.lambda.size() &&
+                     p.rg.size() == p.lambda.size();
+  if (modal) {
+    for (size_t i = 0; i < p.lambda.size(); ++i) v += quotient(p.rb[i] + p.rg[i] * zi, z - p.lambda[i]);
+  } else if (hessenberg) {
+    v = hessenberg_response(p, z, zi);
+  } else if (nx > 0) {
     CMat M = -p.core.A.cast<Complex>();
     for (int i = 0; i < nx; ++i) M(i, i) += z;
     CVec b = p.core.B.cast<Complex>();
@@ -164,7 +254,7 @@ Complex sampled_plant_response(const SampledPlant& p, Complex z) {
     v = p.core.C.cast<Complex>() * x;
   }
   v += p.core.D * (p.fraction > 0.0 ? zi : Complex(1.0, 0.0));
-  return v * std::pow(zi, p.delay_samples);
+  return v * integer_power(zi, p.delay_samples);
 }
 
 Complex sampled_loop_response(const Zpk& cd, const SampledPlant& p, double w) {
@@ -189,34 +279,57 @@ DiscretePole make_pole(Complex z, double T) {
   return d;
 }
 
-// Poles with their shares of the sampled step response y[k] = y_f + sum c_i z_i^k, where
-// c_i = -(Cy v_i)(w_i B) / (1 - z_i) (v_i, w_i right and left eigenvectors). When y[0] = Dy does
-// not hold for the expansion (a nearly defective basis) every pole counts as one that matters.
-std::vector<DiscretePole> poles_with_shares(const DLoop& cl, double y_final, double T, double threshold) {
-  const EigenDecomposition ed = eigen_decompose(cl.A);
+// The modal expansion of the sampled step: y[k] = y_f + sum c_i z_i^k, u[k] = u_f + sum d_i z_i^k,
+// c_i = -(Cy v_i)(w_i B) / (1 - z_i) and d_i the same with Cu (v_i, w_i right and left
+// eigenvectors). `reliable` when y[0] = Dy holds for the expansion (not for a nearly defective
+// basis); `reliable_u` when u[0] = Du holds too, to 1e-9 of the coefficients.
+struct Modal {
+  CVec z, c, d;
+  double total = 0.0;  // sum |c_i|
+  bool reliable = false, reliable_u = false;
+};
+
+Modal modal_expansion(const DLoop& cl, const EigenDecomposition& ed, double y_final, double u_final) {
+  Modal m;
   const int n = static_cast<int>(ed.values.size());
-  bool reliable = ed.ok;
-  CVec c = CVec::Zero(n);
-  double total = 0.0;
-  if (reliable && n > 0) {
-    Eigen::PartialPivLU<CMat> lu(ed.vectors);
-    const CVec wb = lu.solve(cl.B.cast<Complex>());
-    const CVec cv = (cl.Cy.cast<Complex>() * ed.vectors).transpose();
-    Complex sum(0.0, 0.0);
-    for (int i = 0; i < n; ++i) {
-      c(i) = -cv(i) * wb(i) / (1.0 - ed.values(i));
-      sum += c(i);
-      total += std::abs(c(i));
-    }
-    const double err = std::abs(y_final + sum - cl.Dy);
-    reliable = std::isfinite(total) && err <= 1e-6 * std::max({total, std::abs(y_final), 1e-300});
+  m.z = ed.values;
+  m.c = CVec::Zero(n);
+  m.d = CVec::Zero(n);
+  m.reliable = ed.ok;
+  if (!ed.ok || n == 0) return m;
+  Eigen::PartialPivLU<CMat> lu(ed.vectors);
+  const CVec wb = lu.solve(cl.B.cast<Complex>());
+  const CVec cy = (cl.Cy.cast<Complex>() * ed.vectors).transpose();
+  const CVec cu = (cl.Cu.cast<Complex>() * ed.vectors).transpose();
+  Complex sum(0.0, 0.0), sum_u(0.0, 0.0);
+  double total_u = 0.0;
+  for (int i = 0; i < n; ++i) {
+    const Complex x = wb(i) / (1.0 - ed.values(i));
+    m.c(i) = -cy(i) * x;
+    m.d(i) = -cu(i) * x;
+    sum += m.c(i);
+    sum_u += m.d(i);
+    m.total += std::abs(m.c(i));
+    total_u += std::abs(m.d(i));
   }
+  const double err = std::abs(y_final + sum - cl.Dy), err_u = std::abs(u_final + sum_u - cl.Du);
+  const double scale = std::max({m.total, std::abs(y_final), 1e-300});
+  const double scale_u = std::max({total_u, std::abs(u_final), 1e-300});
+  m.reliable = std::isfinite(m.total) && err <= 1e-6 * scale;
+  m.reliable_u = m.reliable && err <= 1e-9 * scale && std::isfinite(total_u) && err_u <= 1e-9 * scale_u;
+  return m;
+}
+
+// Poles with their shares of the sampled step response (see Modal). When the expansion is not
+// reliable every pole counts as one that matters.
+std::vector<DiscretePole> poles_with_shares(const Modal& m, double T, double threshold) {
+  const int n = static_cast<int>(m.z.size());
   std::vector<DiscretePole> out;
   for (int i = 0; i < n; ++i) {
-    DiscretePole p = make_pole(ed.values(i), T);
-    if (reliable) p.residue = std::abs(c(i));
-    if (reliable && total > 0.0) {
-      p.share = std::abs(c(i)) / total;
+    DiscretePole p = make_pole(m.z(i), T);
+    if (m.reliable) p.residue = std::abs(m.c(i));
+    if (m.reliable && m.total > 0.0) {
+      p.share = std::abs(m.c(i)) / m.total;
       p.matters = p.share >= threshold;
     }
     out.push_back(p);
@@ -228,10 +341,25 @@ std::vector<DiscretePole> poles_with_shares(const DLoop& cl, double y_final, dou
   return out;
 }
 
+bool all_inside_unit_circle(const CVec& z) {
+  for (int i = 0; i < z.size(); ++i)
+    if (!(std::abs(z(i)) < 1.0)) return false;
+  return true;
+}
+
+// The steady state of the step: y_f and u_f from (I - A) x_f = B.
+std::pair<double, double> final_values(const DLoop& cl) {
+  const int n = cl.states();
+  if (n == 0) return {cl.Dy, cl.Du};
+  const Eigen::MatrixXd I = Eigen::MatrixXd::Identity(n, n);
+  const Eigen::VectorXd xf = (I - cl.A).partialPivLu().solve(cl.B);
+  return {cl.Cy.dot(xf) + cl.Dy, cl.Cu.dot(xf) + cl.Du};
+}
+
 // The sampled unit-step response and its figures at the sample instants (rise and settling
 // interpolated linearly between samples, as the continuous figures are between their samples).
-StepMetrics sampled_step(const DLoop& cl, double y_final, const std::vector<DiscretePole>& poles, double T,
-                         const DiscreteLoopOptions& o, bool& truncated) {
+StepMetrics sampled_step(const DLoop& cl, double y_final, double u_final, const std::vector<DiscretePole>& poles,
+                         const Modal* modal, double T, const DiscreteLoopOptions& o, bool& truncated) {
   // Horizon, as in continuous time: the first k with sum |c_i| |z_i|^k below a tenth of the band
   // (the remaining transient is then provably inside it), found by bisection below the bound where
   // every term is under a tenth of the band over the pole count. Without reliable residues each
@@ -268,16 +396,69 @@ StepMetrics sampled_step(const DLoop& cl, double y_final, const std::vector<Disc
   m.horizon_s = (n - 1) * T;
   m.final_value = y_final;
   std::vector<double> y(static_cast<size_t>(n)), u(static_cast<size_t>(n));
-  // The delayed samples make A mostly a shift: a sparse copy keeps long dead times cheap.
-  // Two state buffers swapped each step: no allocation inside the loop.
-  Eigen::VectorXd x = Eigen::VectorXd::Zero(cl.states()), next(cl.states());
-  const Eigen::SparseMatrix<double> A = cl.A.sparseView();
-  for (int k = 0; k < n; ++k) {
-    y[static_cast<size_t>(k)] = cl.Cy.dot(x) + cl.Dy;
-    u[static_cast<size_t>(k)] = cl.Cu.dot(x) + cl.Du;
-    next.noalias() = A * x;
-    next += cl.B;
-    x.swap(next);
+  // Two state buffers swapped each step: no allocation inside the loop. A small loop runs on a
+  // plain row-major copy of A; a long dead time makes A mostly a shift, kept sparse.
+  const int ns = cl.states();
+  if (modal && modal->reliable_u) {
+    // One complex power per real pole or conjugate pair (the pair's sum is twice the real part).
+    struct Term {
+      Complex z, c, d;
+      double weight;
+    };
+    std::vector<Term> terms;
+    for (int i = 0; i < modal->z.size(); ++i) {
+      const Complex z = modal->z(i);
+      if (z.imag() < 0.0 || std::abs(z) == 0.0) continue;  // the pair's partner; z = 0 only at k = 0
+      terms.push_back({z, modal->c(i), modal->d(i), z.imag() > 0.0 ? 2.0 : 1.0});
+    }
+    std::vector<Complex> w(terms.size(), Complex(1.0, 0.0));
+    y[0] = cl.Dy;
+    u[0] = cl.Du;
+    for (int k = 1; k < n; ++k) {
+      double yk = y_final, uk = u_final;
+      for (size_t i = 0; i < terms.size(); ++i) {
+        w[i] *= terms[i].z;
+        yk += terms[i].weight * (terms[i].c.real() * w[i].real() - terms[i].c.imag() * w[i].imag());
+        uk += terms[i].weight * (terms[i].d.real() * w[i].real() - terms[i].d.imag() * w[i].imag());
+      }
+      y[static_cast<size_t>(k)] = yk;
+      u[static_cast<size_t>(k)] = uk;
+    }
+  } else if (ns <= 48) {
+    const size_t w = static_cast<size_t>(ns);
+    std::vector<double> A(w * w), x(w, 0.0), next(w), B(w), Cy(w), Cu(w);
+    for (int i = 0; i < ns; ++i) {
+      for (int j = 0; j < ns; ++j) A[static_cast<size_t>(i) * w + static_cast<size_t>(j)] = cl.A(i, j);
+      B[static_cast<size_t>(i)] = cl.B(i);
+      Cy[static_cast<size_t>(i)] = cl.Cy(i);
+      Cu[static_cast<size_t>(i)] = cl.Cu(i);
+    }
+    for (int k = 0; k < n; ++k) {
+      double yk = cl.Dy, uk = cl.Du;
+      for (size_t j = 0; j < w; ++j) {
+        yk += Cy[j] * x[j];
+        uk += Cu[j] * x[j];
+      }
+      y[static_cast<size_t>(k)] = yk;
+      u[static_cast<size_t>(k)] = uk;
+      for (size_t i = 0; i < w; ++i) {
+        const double* row = &A[i * w];
+        double v = B[i];
+        for (size_t j = 0; j < w; ++j) v += row[j] * x[j];
+        next[i] = v;
+      }
+      x.swap(next);
+    }
+  } else {
+    Eigen::VectorXd x = Eigen::VectorXd::Zero(ns), next(ns);
+    const Eigen::SparseMatrix<double> A = cl.A.sparseView();
+    for (int k = 0; k < n; ++k) {
+      y[static_cast<size_t>(k)] = cl.Cy.dot(x) + cl.Dy;
+      u[static_cast<size_t>(k)] = cl.Cu.dot(x) + cl.Du;
+      next.noalias() = A * x;
+      next += cl.B;
+      x.swap(next);
+    }
   }
   const double yf = y_final, ay = std::abs(yf), sg = yf >= 0.0 ? 1.0 : -1.0;
   double peak = -INFINITY, effort = 0.0, under = 0.0;
@@ -574,17 +755,10 @@ DiscretePoles discrete_closed_loop_poles(const Zpk& cd, const SampledPlant& sp, 
   DiscretePoles out;
   out.well_posed = cl.well_posed;
   if (!cl.well_posed) return out;
-  const CVec ev = eigenvalues_balanced(cl.A);
-  out.stable = true;
-  for (int i = 0; i < ev.size(); ++i) out.stable = out.stable && std::abs(ev(i)) < 1.0;
-  double y_final = 0.0;
-  const int n = cl.states();
-  if (out.stable && n > 0) {
-    const Eigen::MatrixXd I = Eigen::MatrixXd::Identity(n, n);
-    const Eigen::VectorXd xf = (I - cl.A).partialPivLu().solve(cl.B);
-    y_final = cl.Cy.dot(xf) + cl.Dy;
-  }
-  out.poles = poles_with_shares(cl, y_final, sp.sample_time_s, share);
+  const EigenDecomposition ed = eigen_decompose(cl.A);
+  out.stable = ed.ok && all_inside_unit_circle(ed.values);
+  const auto [y_final, u_final] = out.stable ? final_values(cl) : std::make_pair(0.0, 0.0);
+  out.poles = poles_with_shares(modal_expansion(cl, ed, y_final, u_final), sp.sample_time_s, share);
   return out;
 }
 
@@ -644,21 +818,12 @@ DiscreteLoopAnalysis analyze_discrete_loop(const Zpk& cd, const Plant& plant, co
   a.well_posed = cl.well_posed;
   if (!a.well_posed) return a;
 
-  // Closed-loop poles; stable iff every |z| < 1.
-  const int n = cl.states();
-  double y_final = NAN;
-  {
-    const CVec ev = eigenvalues_balanced(cl.A);
-    a.stable = true;
-    for (int i = 0; i < ev.size(); ++i) a.stable = a.stable && std::abs(ev(i)) < 1.0;
-    if (a.stable && n == 0) y_final = cl.Dy;
-    if (a.stable && n > 0) {
-      const Eigen::MatrixXd I = Eigen::MatrixXd::Identity(n, n);
-      const Eigen::VectorXd xf = (I - cl.A).partialPivLu().solve(cl.B);
-      y_final = cl.Cy.dot(xf) + cl.Dy;
-    }
-  }
-  a.poles = poles_with_shares(cl, a.stable ? y_final : 0.0, T, o.residue_share);
+  // Closed-loop poles; stable iff every |z| < 1 (an unconverged eigen-solve counts as unstable).
+  const EigenDecomposition ed = eigen_decompose(cl.A);
+  a.stable = ed.ok && all_inside_unit_circle(ed.values);
+  const auto [y_final, u_final] = a.stable ? final_values(cl) : std::make_pair(0.0, 0.0);
+  const Modal modal = modal_expansion(cl, ed, y_final, u_final);
+  a.poles = poles_with_shares(modal, T, o.residue_share);
   for (const DiscretePole& p : a.poles)
     if (p.matters) {
       a.dominant = p;
@@ -669,7 +834,9 @@ DiscreteLoopAnalysis analyze_discrete_loop(const Zpk& cd, const Plant& plant, co
   if (o.frequency_response) a.frequency = sampled_frequency_metrics(cd, plant, sp, o, a.nyquist_rad_s);
   a.steady_state = discrete_steady_state(cd, plant, T, o.error_signal);
 
-  if (a.stable && (!o.step_gate || o.step_gate(a))) a.step = sampled_step(cl, y_final, a.poles, T, o, a.step_truncated);
+  const bool modal_step = o.modal_step && !o.between_samples;
+  if (a.stable && (!o.step_gate || o.step_gate(a)))
+    a.step = sampled_step(cl, y_final, u_final, a.poles, modal_step ? &modal : nullptr, T, o, a.step_truncated);
   if (a.step && o.between_samples) {
     a.step_at_samples = a.step;
     a.step_at_samples->trace = StepTrace{};

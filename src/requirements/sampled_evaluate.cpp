@@ -143,6 +143,7 @@ SampledLoopEvaluation evaluate_sampled_loop(const Zpk& cd, const Plant& plant, c
   lo.keep_trace = options.step.keep_trace;
   lo.between_samples = !screening;
   if (screening) lo.window_samples = screening_window_samples(req, im.sample_time_s);
+  lo.modal_step = screening;  // the instants from the modal expansion when it is reliable
   lo.min_samples = std::min(std::max(min_samples, 0), lo.max_samples);
   const bool all = needs.everything;
   if (!all) {

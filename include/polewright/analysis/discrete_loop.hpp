@@ -26,6 +26,15 @@ struct SampledPlant {
   int delay_samples = 0; // n
   double fraction = 0.0; // delta / T
   double sample_time_s = 0.0;
+  // The same plant in upper Hessenberg form (Phi = Q H Q^T; hb = Q^T Gamma0, hg = Q^T Gamma1,
+  // hc = C Q), set by sample_plant: each point of the frequency response is then an O(n^2) solve.
+  // Left empty (or out of step with core) the response falls back to a dense LU solve.
+  Mat hess;
+  Vec hb, hg;
+  RowVec hc;
+  // And in modal form when Phi's eigenvectors are well conditioned (cond_1 <= 1e4): Gd(z) z^n -
+  // D z^-f = sum_i (rb_i + rg_i / z) / (z - lambda_i), n divisions per point. Empty otherwise.
+  std::vector<Complex> lambda, rb, rg;
 };
 
 // Throws std::invalid_argument for T <= 0 or compute_delay < 0.
@@ -66,6 +75,11 @@ struct DiscreteLoopOptions {
   bool frequency_response = true;
   bool stop_if_unstable = false;
   std::function<bool(const DiscreteLoopAnalysis&)> step_gate;
+  // Screening: the step at the instants from the modal expansion y[k] = y_f + sum c_i z_i^k (and
+  // the same for u), one complex product per mode pair and sample, when the expansion reproduces
+  // y[0] and u[0] to 1e-9 of its coefficients; otherwise, and by default, the state recurrence.
+  // Not with between_samples.
+  bool modal_step = false;
 
   bool IsValid(std::string* error) const;
 };
