@@ -280,3 +280,68 @@ TEST_CASE("between samples: off by default, the step figures are those at the in
   CHECK(!o.IsValid(&err));
   CHECK(err.find("points_per_sample") != std::string::npos);
 }
+
+TEST_CASE("sampled plant response: modal, Hessenberg and dense forms agree with the state space", "[discrete_loop]") {
+  // Reference: ss_evaluate of sampled_plant_state_space (C (zI - A)^-1 B + D of the plant with its
+  // delay registers), independent of the forms kept for speed. A resonant plant with a fractional
+  // dead time has well-conditioned modes (modal form); a double integrator is defective (Phi has
+  // a Jordan block: Hessenberg form); with both cleared the dense LU solve answers.
+  const double T = 0.01;
+  const Complex mode = std::polar(45.0, M_PI - std::acos(0.03));
+  const Plant resonant = plant_of(make(6.0e4, {-20.0}, {-5.0, mode, std::conj(mode)}), 0.0137);
+  const Plant double_integrator = plant_of(make(3.0, {}, {0.0, 0.0}));
+  for (const Plant* g : {&resonant, &double_integrator}) {
+    SampledPlant sp = sample_plant(*g, T, 1);
+    const bool modal = !sp.lambda.empty();
+    CHECK(modal == (g == &resonant));
+    CHECK(sp.hess.rows() == sp.core.states());
+    const StateSpace ss = sampled_plant_state_space(sp);
+    SampledPlant hess_only = sp, dense = sp;
+    hess_only.lambda.clear();
+    dense.lambda.clear();
+    dense.hess.resize(0, 0);
+    for (double w : {0.5, 7.0, 44.0, 45.0, 150.0, 310.0}) {
+      const Complex z = std::polar(1.0, w * T);
+      const Complex want = ss_evaluate(ss, z);
+      INFO("w = " << w);
+      CHECK(std::abs(sampled_plant_response(sp, z) - want) <= 1e-11 * std::abs(want));
+      CHECK(std::abs(sampled_plant_response(hess_only, z) - want) <= 1e-11 * std::abs(want));
+      CHECK(std::abs(sampled_plant_response(dense, z) - want) <= 1e-11 * std::abs(want));
+    }
+  }
+}
+
+TEST_CASE("modal step at the instants agrees with the state recurrence", "[discrete_loop]") {
+  // The screening's modal expansion against the recurrence x[k+1] = A x[k] + B (the default): a
+  // lead + notch on a resonant plant with one sample of delay, and with three samples of delay
+  // (a Jordan chain at z = 0: the expansion is refused and the recurrence answers, same figures).
+  const double T = 0.002;
+  const Complex mode = std::polar(45.0, M_PI - std::acos(0.03));
+  const Plant g = plant_of(make(6.0e4, {}, {0.0, -5.0, mode, std::conj(mode)}));
+  const Complex nz = std::polar(45.0, M_PI - std::acos(0.03)), np = std::polar(45.0, M_PI - std::acos(0.7));
+  const Zpk c = make(0.6, {-6.0, nz, std::conj(nz)}, {-15.0, np, std::conj(np)});
+  DiscretizeOptions d;
+  d.sample_time_s = T;
+  const Zpk cd = discretize(c, d);
+  for (int delay : {1, 3}) {
+    DiscreteLoopOptions o = loop_opts(T, delay);
+    const DiscreteLoopAnalysis rec = analyze_discrete_loop(cd, g, o);
+    o.modal_step = true;
+    const DiscreteLoopAnalysis mod = analyze_discrete_loop(cd, g, o);
+    INFO("delay " << delay);
+    REQUIRE(rec.step);
+    REQUIRE(mod.step);
+    CHECK(mod.step->samples == rec.step->samples);
+    REQUIRE(rec.step->overshoot_pct);
+    REQUIRE(mod.step->overshoot_pct);
+    CHECK(*mod.step->overshoot_pct == Approx(*rec.step->overshoot_pct).epsilon(1e-9).margin(1e-9));
+    REQUIRE(rec.step->peak_effort);
+    REQUIRE(mod.step->peak_effort);
+    CHECK(*mod.step->peak_effort == Approx(*rec.step->peak_effort).epsilon(1e-9));
+    REQUIRE(rec.step->settling_time_s);
+    REQUIRE(mod.step->settling_time_s);
+    CHECK(*mod.step->settling_time_s == Approx(*rec.step->settling_time_s).epsilon(1e-9));
+    REQUIRE(rec.step->rise_time_s);
+    CHECK(*mod.step->rise_time_s == Approx(*rec.step->rise_time_s).epsilon(1e-9));
+  }
+}
