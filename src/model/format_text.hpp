@@ -13,4 +13,10 @@ inline std::string fmt(const char* pattern, double a, double b = 0.0, double c =
   return buf;
 }
 
+// "no integrator", "1 integrator", "2 integrators".
+inline std::string integrators_words(int n) {
+  if (n == 0) return "no integrator";
+  return std::to_string(n) + (n == 1 ? " integrator" : " integrators");
+}
+
 }  // namespace pw::detail

@@ -4,6 +4,7 @@
 #include "polewright/outputs/json_values.hpp"
 #include "polewright/requirements/sampled_evaluate.hpp"
 #include "text_table.hpp"
+#include "../model/format_text.hpp"
 
 namespace pw {
 
@@ -25,8 +26,7 @@ std::string check_report_text(const CheckReport& r) {
   std::string out;
   out += "polewright check" + (r.spec_name.empty() ? std::string() : ": " + r.spec_name) + "\n";
   out += "compensator  C(s) = " + zpk_to_string(r.compensator) + "\n";
-  out += "gains        " + gains_text(r.compensator) + " (" + std::to_string(zpk_integrators(r.compensator)) +
-         " integrator(s))\n";
+  out += "gains        " + gains_text(r.compensator) + " (" + detail::integrators_words(zpk_integrators(r.compensator)) + ")\n";
   if (const std::string pid = pid_form_text(r.compensator); !pid.empty())
     out += "as PID       " + pid + "\n";
   out += "plants       " + std::to_string(r.plants.size()) + " (nominal";
@@ -107,6 +107,14 @@ std::string check_report_text(const CheckReport& r) {
              fmt_number(*e.gain.hi) + (e.gain.hi_at_limit ? " (scan limit)" : "") + "\n";
     else
       out += "  gain interval: none (the nominal loop already has a pole that matters outside the region)\n";
+    bool outside = false;
+    for (const PoleInfo& pi : e.poles.poles) {
+      const bool dominant = e.dominant_pole && *e.dominant_pole == pi.pole;
+      outside = outside || (pi.matters && !(dominant ? r.region.contains(pi.pole) : r.region.contains_shape(pi.pole)));
+    }
+    if (e.stable && outside)
+      out += "  note: the region is a second-order estimate drawn from the step requirements; it guides the design, and "
+             "the verdict rests on the simulated step and the other requirements below\n";
   }
 
   const Locus& l = r.locus;

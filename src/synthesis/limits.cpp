@@ -1,5 +1,7 @@
 #include "polewright/synthesis/limits.hpp"
 
+#include "../model/format_text.hpp"
+
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
@@ -76,8 +78,8 @@ std::vector<PlantLimit> plant_limits(const std::vector<Plant>& plants, const Req
         PlantLimit l{"integrators", p.name, static_cast<double>(needed), std::nullopt, std::nullopt, have < needed,
                      have < needed ? "steady_state_error" : "", ""};
         const int plant_has = zpk_integrators(p.tf);
-        l.message = "the steady-state error bound needs " + std::to_string(needed) + " integrator(s) in the loop; the plant has " +
-                    std::to_string(plant_has);
+        l.message = "the steady-state error bound needs " + detail::integrators_words(needed) + " in the loop; the plant has " +
+                    (plant_has == 0 ? std::string("none") : std::to_string(plant_has));
         if (plant_has < needed)
           l.message += stages.integrator != IntegratorChoice::Off ? " and the stages allow one more" : " and the stages allow none";
         out.push_back(l);
