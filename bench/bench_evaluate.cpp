@@ -127,8 +127,8 @@ int bench_evaluate(int argc, char** argv) {
   std::printf("evaluations per second: %.0f\n", c.n / c.elapsed);
   if (sample_time > 0.0) {
     const Run d = run(true);
-    std::printf("sampled at T = %g s (tustin, 1 sample delay): %lld in %.2f s; stable %lld, meeting all %lld (checksum %.6g)\n",
-                sample_time, d.n, d.elapsed, d.stable, d.met, d.checksum);
+    std::printf("%s: %lld in %.2f s; stable %lld, meeting all %lld (checksum %.6g)\n", sampled_label(im).c_str(), d.n,
+                d.elapsed, d.stable, d.met, d.checksum);
     std::printf("sampled evaluations per second: %.0f (cost %.2f times the continuous evaluation)\n", d.n / d.elapsed,
                 (c.n / c.elapsed) / (d.n / d.elapsed));
   }
