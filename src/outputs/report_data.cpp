@@ -41,6 +41,20 @@ bool ReportData::met() const {
   return !designs.empty() && designs.front().evaluation.all_met;
 }
 
+namespace {
+
+// A candidate's figures as check gives them: of the sampled loop when the spec has an
+// implementation block (the verdicts of design, retune and check are of that loop), else of the
+// continuous loop.
+Evaluation evaluation_for_report(const Spec& spec, const Zpk& c, const Region& region, const AnalysisOptions& analysis) {
+  if (!spec.implementation) return evaluate_all(c, spec.plants, spec.requirements, region, analysis);
+  CheckOptions o;
+  o.trace_step = true;
+  return run_check(spec, c, o).evaluation;
+}
+
+}  // namespace
+
 ReportData prepare_report(const ResultInput& result) {
   if (result.job != JobKind::Check && result.job != JobKind::Design && result.job != JobKind::Retune)
     throw SpecError("$.tool.job", result.job == JobKind::Compensator
@@ -67,7 +81,7 @@ ReportData prepare_report(const ResultInput& result) {
       old.label = "in service (old)";
       old.compensator = current;
       old.colour = -1;
-      old.evaluation = evaluate_all(current, d.spec.plants, d.spec.requirements, d.region, analysis);
+      old.evaluation = evaluation_for_report(d.spec, current, d.region, analysis);
       d.previous = std::move(old);
     }
   }
@@ -82,7 +96,7 @@ ReportData prepare_report(const ResultInput& result) {
       rd.evaluation = std::move(cr.evaluation);
       d.locus = std::move(cr.locus);
     } else {
-      rd.evaluation = evaluate_all(rd.compensator, d.spec.plants, d.spec.requirements, d.region, analysis);
+      rd.evaluation = evaluation_for_report(d.spec, rd.compensator, d.region, analysis);
     }
     const Fragility fr =
         settling_fragility(rd.compensator, d.spec.plants, d.spec.requirements, d.region, d.spec.analysis, d.spec.implementation);
