@@ -401,28 +401,52 @@ StepMetrics sampled_step(const DLoop& cl, double y_final, double u_final, const 
   const int ns = cl.states();
   if (modal && modal->reliable_u) {
     // One complex power per real pole or conjugate pair (the pair's sum is twice the real part).
-    struct Term {
-      Complex z, c, d;
-      double weight;
-    };
-    std::vector<Term> terms;
+    // Structure of arrays (the weight folded into c and d), so the inner loop vectorises; every
+    // 32 samples a term whose remaining size |c_i| |z_i|^k and |d_i| |z_i|^k is below 1e-16 of the
+    // signals' scale is dropped (it no longer changes a double).
+    std::vector<double> zr, zi, cr, ci, dr, di, wr, wi;
+    double scale_y = std::abs(y_final), scale_u = std::abs(u_final);
     for (int i = 0; i < modal->z.size(); ++i) {
       const Complex z = modal->z(i);
       if (z.imag() < 0.0 || std::abs(z) == 0.0) continue;  // the pair's partner; z = 0 only at k = 0
-      terms.push_back({z, modal->c(i), modal->d(i), z.imag() > 0.0 ? 2.0 : 1.0});
+      const double weight = z.imag() > 0.0 ? 2.0 : 1.0;
+      zr.push_back(z.real());
+      zi.push_back(z.imag());
+      cr.push_back(weight * modal->c(i).real());
+      ci.push_back(weight * modal->c(i).imag());
+      dr.push_back(weight * modal->d(i).real());
+      di.push_back(weight * modal->d(i).imag());
+      wr.push_back(1.0);
+      wi.push_back(0.0);
+      scale_y += weight * std::abs(modal->c(i));
+      scale_u += weight * std::abs(modal->d(i));
     }
-    std::vector<Complex> w(terms.size(), Complex(1.0, 0.0));
     y[0] = cl.Dy;
     u[0] = cl.Du;
+    size_t nt = zr.size();
     for (int k = 1; k < n; ++k) {
       double yk = y_final, uk = u_final;
-      for (size_t i = 0; i < terms.size(); ++i) {
-        w[i] *= terms[i].z;
-        yk += terms[i].weight * (terms[i].c.real() * w[i].real() - terms[i].c.imag() * w[i].imag());
-        uk += terms[i].weight * (terms[i].d.real() * w[i].real() - terms[i].d.imag() * w[i].imag());
+      for (size_t i = 0; i < nt; ++i) {
+        const double a = wr[i] * zr[i] - wi[i] * zi[i], b = wr[i] * zi[i] + wi[i] * zr[i];
+        wr[i] = a;
+        wi[i] = b;
+        yk += cr[i] * a - ci[i] * b;
+        uk += dr[i] * a - di[i] * b;
       }
       y[static_cast<size_t>(k)] = yk;
       u[static_cast<size_t>(k)] = uk;
+      if ((k & 31) == 0) {
+        size_t j = 0;
+        for (size_t i = 0; i < nt; ++i) {
+          // Squared sizes: no square root in the loop.
+          const double w2 = wr[i] * wr[i] + wi[i] * wi[i], ty = 1e-16 * scale_y, tu = 1e-16 * scale_u;
+          const bool gone = w2 * (cr[i] * cr[i] + ci[i] * ci[i]) <= ty * ty && w2 * (dr[i] * dr[i] + di[i] * di[i]) <= tu * tu;
+          if (gone) continue;
+          zr[j] = zr[i]; zi[j] = zi[i]; cr[j] = cr[i]; ci[j] = ci[i]; dr[j] = dr[i]; di[j] = di[i]; wr[j] = wr[i]; wi[j] = wi[i];
+          ++j;
+        }
+        nt = j;
+      }
     }
   } else if (ns <= 48) {
     const size_t w = static_cast<size_t>(ns);
@@ -796,12 +820,44 @@ FrequencyMetrics sampled_frequency_metrics(const Zpk& cd, const Plant& plant, co
   for (double w : frequency_grid(placement, plant.delay_s + o.compute_delay * T, fo))
     if (w > 0.0 && w <= top) grid.push_back(w);
   const int dense = 4 * fo.points_per_decade;
-  for (int i = 0; i <= dense; ++i) grid.push_back(top * std::pow(10.0, -1.0 + static_cast<double>(i) / dense));
+  const double ratio = std::pow(10.0, 1.0 / dense);  // one pow, then products
+  double w = top / 10.0;
+  for (int i = 0; i < dense; ++i, w *= ratio) grid.push_back(w);
   grid.push_back(top);
   std::sort(grid.begin(), grid.end());
   grid.erase(std::unique(grid.begin(), grid.end()), grid.end());
   while (!grid.empty() && grid.back() > top) grid.pop_back();
   return frequency_metrics_of(Lw, grid, lim, fo);
+}
+
+}  // namespace
+
+namespace {
+
+// sample_plant of the last plant this thread sampled: a search evaluates thousands of compensators
+// on the same plant, and the exponentials and decompositions depend on the plant alone. Exact
+// comparison of what sample_plant reads, so the result is the same with or without the cache.
+const SampledPlant& sample_plant_cached(const Plant& plant, double T, int compute_delay) {
+  struct Entry {
+    bool set = false;
+    Zpk tf;
+    double delay_s = 0.0, T = 0.0;
+    int compute_delay = 0;
+    SampledPlant sp;
+  };
+  thread_local Entry e;
+  const bool same = e.set && e.T == T && e.compute_delay == compute_delay && e.delay_s == plant.delay_s &&
+                    e.tf.gain == plant.tf.gain && e.tf.zeros == plant.tf.zeros && e.tf.poles == plant.tf.poles;
+  if (!same) {
+    e.set = false;
+    e.sp = sample_plant(plant, T, compute_delay);  // may throw: the entry stays unset
+    e.tf = plant.tf;
+    e.delay_s = plant.delay_s;
+    e.T = T;
+    e.compute_delay = compute_delay;
+    e.set = true;
+  }
+  return e.sp;
 }
 
 }  // namespace
@@ -812,7 +868,7 @@ DiscreteLoopAnalysis analyze_discrete_loop(const Zpk& cd, const Plant& plant, co
   const double T = o.sample_time_s;
   DiscreteLoopAnalysis a;
   a.nyquist_rad_s = M_PI / T;
-  const SampledPlant sp = sample_plant(plant, T, o.compute_delay);
+  const SampledPlant sp = sample_plant_cached(plant, T, o.compute_delay);
   const DLoop cl = sampled_closed_loop(cd, sp, 1.0);
   a.states = cl.states();
   a.well_posed = cl.well_posed;

@@ -345,3 +345,31 @@ TEST_CASE("modal step at the instants agrees with the state recurrence", "[discr
     CHECK(*mod.step->rise_time_s == Approx(*rec.step->rise_time_s).epsilon(1e-9));
   }
 }
+
+TEST_CASE("analyze_discrete_loop never reuses another plant's sampling", "[discrete_loop]") {
+  // The sampled plant is kept per thread between calls on the same plant (a search evaluates many
+  // compensators on one plant). A plant that differs in its dead time only, or in its gain only,
+  // must get its own: the phase margins differ by the dead time's phase at crossover.
+  const double T = 0.01;
+  const Zpk cd = make(0.5, {}, {});
+  const Plant g1 = plant_of(make(2.0, {}, {0.0, -3.0}));
+  const Plant g2 = plant_of(make(2.0, {}, {0.0, -3.0}), 0.2);
+  Plant g3 = g1;
+  g3.tf.gain = 2.5;
+  const DiscreteLoopAnalysis a = analyze_discrete_loop(cd, g1, loop_opts(T));
+  const DiscreteLoopAnalysis b = analyze_discrete_loop(cd, g2, loop_opts(T));
+  const DiscreteLoopAnalysis c = analyze_discrete_loop(cd, g3, loop_opts(T));
+  const DiscreteLoopAnalysis a2 = analyze_discrete_loop(cd, g1, loop_opts(T));
+  REQUIRE(a.frequency.phase_margin_deg);
+  REQUIRE(b.frequency.phase_margin_deg);
+  REQUIRE(c.frequency.phase_margin_deg);
+  REQUIRE(a2.frequency.phase_margin_deg);
+  // L = 1 / (s (s + 3)) crosses near 0.32 rad/s: 0.2 s of dead time costs about 3.7 deg (w tau).
+  CHECK(*a.frequency.phase_margin_deg - *b.frequency.phase_margin_deg > 2.0);
+  CHECK(*a.frequency.phase_margin_deg - *c.frequency.phase_margin_deg > 1.0);
+  CHECK(*a2.frequency.phase_margin_deg == *a.frequency.phase_margin_deg);
+  // A different sample time on the same plant too: the hold costs about w T / 2, 2.8 deg at 0.3 s.
+  const DiscreteLoopAnalysis d = analyze_discrete_loop(cd, g1, loop_opts(0.3));
+  REQUIRE(d.frequency.phase_margin_deg);
+  CHECK(std::abs(*d.frequency.phase_margin_deg - *a.frequency.phase_margin_deg) > 1.0);
+}
