@@ -1,5 +1,7 @@
 #include "polewright/jobs/design.hpp"
 
+#include "polewright/model/pid_form.hpp"
+
 #include <algorithm>
 #include <chrono>
 #include <cmath>
@@ -118,6 +120,7 @@ StructureSetup prepare(const Structure& s, size_t index, const Spec& spec, const
   }
   if (!std::isfinite(glo)) glo = ghi = 0.0;
   ParamSpace ps = make_param_space(s, range, glo - 3.0, ghi + 3.0, sign);
+  ps.pid_shape = spec.stages.pid;
   StructureSetup st;
   st.structure = s;
   st.problem = std::make_shared<DesignProblem>(spec.plants, with_design_margin(spec.requirements, o.margin), region, screening,
@@ -518,6 +521,12 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
       }
     }
     cands = without_degenerate(std::move(cands), verifier, o.objective, threads);
+    // stages.pid: a listed candidate without a notch reads as a PID (the search scores the shape;
+    // this keeps a non-meeting one of another shape off the list too).
+    if (spec.stages.pid)
+      cands.erase(std::remove_if(cands.begin(), cands.end(),
+                                 [](const Candidate& c) { return c.structure.notch == 0 && !pid_form(c.compensator); }),
+                  cands.end());
     if (o.metric_objective)
       for (Candidate& c : cands) c.objective = metric_score(c, *o.metric_objective);
     order_candidates(cands, o.objective);

@@ -1,5 +1,7 @@
 #include "polewright/jobs/retune.hpp"
 
+#include "polewright/model/pid_form.hpp"
+
 #include <algorithm>
 #include <chrono>
 #include <cmath>
@@ -286,6 +288,23 @@ std::vector<RetuneCandidate> from_design(const Spec& spec, const RetuneOptions& 
 
 }  // namespace
 
+namespace {
+
+// stages.pid with a PID in service: a retuned PID stays a PID. Candidates without a notch that do not read as one (an
+// added lag, or a PI corner moved above the derivative filter, gives terms of both signs) are
+// dropped; a level that keeps none goes on to the next.
+void keep_pid_shaped(const Spec& spec, std::vector<RetuneCandidate>& cands) {
+  if (!spec.stages.pid || !spec.current || !pid_form(*spec.current)) return;  // only a PID in service
+  cands.erase(std::remove_if(cands.begin(), cands.end(),
+                             [](const RetuneCandidate& c) {
+                               const bool notch = std::any_of(c.added.begin(), c.added.end(), [](AddedStage a) { return a == AddedStage::Notch; });
+                               return !notch && !pid_form(c.candidate.compensator);
+                             }),
+              cands.end());
+}
+
+}  // namespace
+
 RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
   const auto t0 = Clock::now();
   std::string err;
@@ -403,12 +422,14 @@ RetuneReport run_retune(const Spec& spec, const RetuneOptions& o) {
       rc.changes = change_list(rs, results[i].x, spec, rep.context.region, rep.current);
       level_found[k] = rc;
     });
+    keep_pid_shaped(spec, level_found);
     found.insert(found.end(), level_found.begin(), level_found.end());
     bool any_meets = std::any_of(found.begin(), found.end(), [](const RetuneCandidate& c) { return c.candidate.meets; });
     // Escalation in the current structure (before any stage is added): design's verified
     // candidates of the same structure, each pulled back towards the current design.
     if (!any_meets && &level == &levels.front() && o.budget_s > 0.0 && !cancelled(o)) {
-      const std::vector<RetuneCandidate> more = from_design(spec, o, verifier, screen, rep);
+      std::vector<RetuneCandidate> more = from_design(spec, o, verifier, screen, rep);
+      keep_pid_shaped(spec, more);
       found.insert(found.end(), more.begin(), more.end());
       any_meets = std::any_of(found.begin(), found.end(), [](const RetuneCandidate& c) { return c.candidate.meets; });
     }

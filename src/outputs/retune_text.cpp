@@ -36,7 +36,9 @@ std::string retune_report_text(const RetuneReport& r) {
   for (const std::string& w : conditioning_warnings(r.spec_document)) out += "warning " + w + "\n";
   const Candidate& cur = r.current;
   out += "in service: " + zpk_to_string(cur.compensator) + "  (" + candidate_verdict(cur) + ")\n";
-  out += "            " + gains_text(cur.compensator) + "\n\n";
+  out += "            " + gains_text(cur.compensator) + "\n";
+  if (const std::string pid = pid_form_text(cur.compensator); !pid.empty()) out += "  as PID:   " + pid + "\n";
+  out += "\n";
   if (r.already_met) {
     out += "the current compensator already meets every requirement for every plant: nothing changed.\n";
   } else if (r.candidates.empty()) {
@@ -50,7 +52,10 @@ std::string retune_report_text(const RetuneReport& r) {
            candidate_verdict(rc.candidate) + "\n";
     out += change_table(rc);
     out += "  new compensator: " + zpk_to_string(rc.candidate.compensator) + "\n";
-    out += "                   " + gains_text(rc.candidate.compensator) + "\n\n";
+    out += "                   " + gains_text(rc.candidate.compensator) + "\n";
+    if (const std::string pid = pid_form_text(rc.candidate.compensator); !pid.empty())
+      out += "  as PID:          " + pid + "\n";
+    out += "\n";
   }
   // The figures, current first.
   std::vector<MetricId> shown;

@@ -39,7 +39,7 @@ const std::vector<std::string>& known_keys(const std::string& kind) {
         "natural_frequency_rad_s", "delay_margin_s", "load_peak", "load_recovery_s", "load_iae", "output_peak",
         "output_recovery_s", "output_iae", "noise_effort_peak", "controller_hf_gain", "disturbance_step",
         "recovery_band_pct"}},
-      {"stages", {"lead", "lag", "notch", "integrator", "frequency_range_rad_s"}},
+      {"stages", {"lead", "lag", "notch", "integrator", "pid", "frequency_range_rad_s"}},
       {"search", {"seed", "keep", "objective", "threads", "max_evaluations", "time_limit_s", "budget_s", "margin_pct"}},
       {"analysis", {"pade_order", "samples", "horizon_s", "residue_share_pct"}},
       {"implementation", implementation_keys()},
@@ -211,6 +211,19 @@ StageSettings parse_stages(const json& j, const std::string& path) {
     if (!(lo > 0.0)) throw SpecError(index_path(fp, 0), "must be > 0");
     if (!(hi > lo)) throw SpecError(index_path(fp, 1), "must be above lo (an empty or inverted range)");
     s.frequency_range_rad_s = std::make_pair(lo, hi);
+  }
+  if (const json* v = member(j, "pid")) {
+    const std::string pp = key_path(path, "pid");
+    if (!v->is_boolean()) throw SpecError(pp, "must be true or false (got " + describe(*v) + ")");
+    s.pid = v->get<bool>();
+    if (s.pid) {
+      for (const char* k : {"lead", "lag", "integrator"})
+        if (member(j, k))
+          throw SpecError(key_path(path, k), "cannot be given with \"pid\": true (a PID with its filter is exactly an integrator "
+                                             "and one lead; only notches may be added)");
+      s.integrator = IntegratorChoice::On;
+      s.lead = 1;
+    }
   }
   if (s.notch > 0 && !s.frequency_range_rad_s)
     throw SpecError(key_path(path, "frequency_range_rad_s"), "is needed: a notch needs a frequency range to go in");

@@ -42,6 +42,15 @@ ParamSpace make_param_space(const Structure& s, std::pair<double, double> range,
   return ps;
 }
 
+double pid_shape_violation(const ParamSpace& ps, const Zpk& c) {
+  // params_to_zpk lays the stages out in order: the integrator's zero and pole first, then the
+  // lead's zero and pole.
+  if (!ps.pid_shape || !ps.structure.integrator || ps.structure.lead < 1) return 0.0;
+  if (c.zeros.size() < 2 || c.poles.size() < 2) return 0.0;
+  const double wi = -c.zeros[0].real(), p = -c.poles[1].real();
+  return wi > p && p > 0.0 ? std::log(wi / p) : 0.0;
+}
+
 double lead_t(const ParamSpace& ps, double zero, double ratio) {
   const double span = std::log(ps.freq_hi / (ps.freq_lo * ratio));
   return span > 0.0 ? std::clamp(std::log(zero / ps.freq_lo) / span, 0.0, 1.0) : 0.0;

@@ -85,7 +85,16 @@ DesignProblem::DesignProblem(std::vector<Plant> plants, RequirementSet req, Regi
       scorer_(std::move(plants), std::move(req), region, screening, objective,
               std::sqrt(space_.freq_lo * space_.freq_hi), std::move(implementation)) {}
 
-DesignScore DesignProblem::score(const std::vector<double>& x) const { return scorer_.score(params_to_zpk(space_, x)); }
+DesignScore DesignProblem::score(const std::vector<double>& x) const {
+  const Zpk c = params_to_zpk(space_, x);
+  DesignScore s = scorer_.score(c);
+  // stages.pid: a shape that reads as no PID is infeasible, graded so the search can leave it.
+  if (const double v = pid_shape_violation(space_, c); v > 0.0) {
+    s.violation += v;
+    s.feasible = false;
+  }
+  return s;
+}
 
 std::vector<LoopEvaluation> CompensatorScorer::loops(const Zpk& c, const EvaluationNeeds& needs) const {
   std::vector<LoopEvaluation> evals;

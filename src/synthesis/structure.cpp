@@ -45,7 +45,8 @@ std::vector<Structure> enumerate_structures(const StageSettings& s) {
   for (bool i : integ)
     for (int a = 0; a <= s.lead; ++a)
       for (int b = 0; b <= s.lag; ++b)
-        for (int c = 0; c <= s.notch; ++c) out.push_back(Structure{i, a, b, c});
+        for (int c = 0; c <= s.notch; ++c)
+          if (!s.pid || (i && a == 1)) out.push_back(Structure{i, a, b, c});  // pid: integrator + one lead only
   std::stable_sort(out.begin(), out.end(), [](const Structure& x, const Structure& y) {
     return std::make_tuple(x.stage_count(), x.order(), x.integrator, -x.lead, -x.lag) <
            std::make_tuple(y.stage_count(), y.order(), y.integrator, -y.lead, -y.lag);

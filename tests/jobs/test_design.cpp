@@ -4,6 +4,7 @@
 
 #include "polewright/jobs/check.hpp"
 #include "polewright/jobs/design.hpp"
+#include "polewright/model/pid_form.hpp"
 #include "polewright/outputs/design_output.hpp"
 #include "polewright/requirements/spec_parse.hpp"
 #include "polewright/synthesis/fragility.hpp"
@@ -382,4 +383,36 @@ TEST_CASE("design with an implementation ranks and verifies on the sampled loop,
   const json jc = design_report_json(c, false);
   CHECK_FALSE(jc.contains("implementation"));
   CHECK_FALSE(jc["candidates"][0].contains("continuous"));
+}
+
+TEST_CASE("stages.pid: every candidate is a PID with its filter, and its parallel form is the same transfer function",
+          "[jobs][design][pid]") {
+  // A robot joint's velocity loop (demo data): 40 / ((s + 2)(s + 10)). A type-1 loop has no
+  // steady-state step error (final-value theorem). Reference for the form: the parallel PID
+  // Kp + Ki / s + Kd s / (Tf s + 1) evaluated directly, against the candidate's C(s) at three
+  // frequencies.
+  const Spec spec = spec_of(R"({"plant": {"gain": 40, "poles": [-2, -10]},
+    "requirements": {"overshoot_pct": {"max": 8}, "settling_time_s": {"max": 1.2},
+                     "steady_state_error": {"max": 0}, "phase_margin_deg": {"min": 50}},
+    "stages": {"pid": true, "frequency_range_rad_s": [0.1, 200]}})");
+  DesignOptions o = DesignOptions::FromSpec(spec);
+  o.threads = 1;
+  const DesignReport r = run_design(spec, o);
+  REQUIRE(r.met());
+  REQUIRE_FALSE(r.candidates.empty());
+  for (const Candidate& c : r.candidates) {
+    CHECK(c.structure.integrator);
+    CHECK(c.structure.lead == 1);
+    CHECK(c.structure.lag + c.structure.notch == 0);
+    if (!c.meets) continue;
+    const std::optional<PidForm> f = pid_form(c.compensator);
+    REQUIRE(f);
+    for (double w : {0.3, 3.0, 30.0}) {
+      const Complex s(0.0, w);
+      const Complex direct = f->parallel.kp + f->parallel.ki / s + f->parallel.kd * s / (f->parallel.tf * s + 1.0);
+      const Complex tf = c.compensator.evaluate(s);
+      CHECK(std::abs(direct - tf) <= 1e-9 * std::abs(tf));
+    }
+  }
+  CHECK(*r.candidates.front().worst[static_cast<size_t>(MetricId::SteadyStateError)].value == 0.0);
 }

@@ -1,5 +1,8 @@
 #include <catch2/catch.hpp>
 
+#include "polewright/model/pid_form.hpp"
+#include <algorithm>
+
 #include <iterator>
 
 #include "polewright/jobs/check.hpp"
@@ -194,4 +197,27 @@ TEST_CASE("retune with an implementation: a gain that meets in continuous time i
   CHECK(j["implementation"]["label"] == sampled_label(*spec.implementation));
   CHECK(j["current"].contains("continuous"));
   CHECK(retune_report_text(r).find(sampled_label(*spec.implementation)) != std::string::npos);
+}
+
+TEST_CASE("retune with stages.pid keeps a PID a PID", "[jobs][retune][pid]") {
+  // The case above (a P in service needs one more stage) with "pid": true: every listed candidate
+  // without a notch reads as a PID (a lag, or a PI corner above the filter pole, would not).
+  const char* text = R"({"plant": {"gain": 1, "poles": [0, -1]},
+    "requirements": {"overshoot_pct": {"max": 25}, "steady_state_error": {"max": 0.05, "input": "ramp"}},
+    "stages": {"pid": true, "frequency_range_rad_s": [0.005, 100]},
+    "current": {"gain": 0.8}, "search": {"seed": 2, "keep": 4}})";
+  const Spec spec = spec_with(text);
+  RetuneOptions o = RetuneOptions::FromSpec(spec);
+  o.threads = 1;
+  o.allow_new_stages = true;
+  const RetuneReport r = run_retune(spec, o);
+  REQUIRE(r.met());
+  for (const RetuneCandidate& c : r.candidates) {
+    INFO(c.candidate.origin);
+    CHECK(pid_form(c.candidate.compensator));
+  }
+  // The text gives each new compensator's PID reading (a pure gain in service needs none).
+  const std::string t = retune_report_text(r);
+  CHECK(t.find("  as PID:   P") == std::string::npos);
+  CHECK(t.find("  as PID:          PI form: Kp ") != std::string::npos);
 }

@@ -91,6 +91,9 @@ TEST_CASE("bad specs: one line naming the field", "[requirements][spec_parse]") 
   CHECK(error_after([](json& j) { j["stages"].erase("frequency_range_rad_s"); }).find("a notch needs a frequency range") != std::string::npos);
   CHECK(error_after([](json& j) { j["stages"]["frequency_range_rad_s"] = {10, 1}; }).find("$.stages.frequency_range_rad_s[1]") == 0);
   CHECK(error_after([](json& j) { j["search"]["objective"] = "quickest"; }).find("$.search.objective") == 0);
+  // "pid": true fixes the structure; the stages it replaces are refused by name.
+  CHECK(error_after([](json& j) { j["stages"]["pid"] = true; }).find("$.stages.lead: cannot be given with \"pid\": true") == 0);
+  CHECK(error_after([](json& j) { j["stages"]["pid"] = "yes"; }).find("$.stages.pid: must be true or false") == 0);
   CHECK(error_after([](json& j) { j["analysis"]["pade_order"] = 20; }).find("$.analysis.pade_order") == 0);
   CHECK(error_after([](json& j) { j["plant"]["variants"][0]["poles"] = {-1, -2}; }).find("$.plant.variants[0]") == 0);
   CHECK(error_after([](json& j) { j["plant"]["variants"][1]["variants"] = json::array(); }).find("$.plant.variants[1].variants: unknown key") == 0);
@@ -184,4 +187,19 @@ TEST_CASE("disturbance and noise requirements with their step size and recovery 
           k["requirements"]["load_iae"] = {{"max", 1}};
           k["implementation"] = {{"sample_time_s", 0.01}};
         }).find("$.requirements.load_iae: is not judged on the sampled loop yet") == 0);
+}
+
+TEST_CASE("stages.pid: true means an integrator and one lead, notches allowed", "[requirements][spec_parse]") {
+  const Spec s = parse_spec(json::parse(R"({"plant": {"gain": 1, "poles": [-1]},
+    "requirements": {"overshoot_pct": {"max": 10}},
+    "stages": {"pid": true, "notch": 1, "frequency_range_rad_s": [0.1, 100]}})"));
+  CHECK(s.stages.pid);
+  CHECK(s.stages.integrator == IntegratorChoice::On);
+  CHECK(s.stages.lead == 1);
+  CHECK(s.stages.lag == 0);
+  CHECK(s.stages.notch == 1);
+  const Spec off = parse_spec(json::parse(R"({"plant": {"gain": 1, "poles": [-1]},
+    "requirements": {"overshoot_pct": {"max": 10}}, "stages": {"pid": false, "lead": 2}})"));
+  CHECK_FALSE(off.stages.pid);
+  CHECK(off.stages.lead == 2);
 }

@@ -1,4 +1,5 @@
 #include <catch2/catch.hpp>
+#include <cmath>
 
 #include "polewright/synthesis/structure.hpp"
 #include "polewright/synthesis/parameters.hpp"
@@ -47,4 +48,40 @@ TEST_CASE("one stage table: parameter counts agree with both parametrisations", 
     const Zpk z = retune_to_zpk(rs, rs.current);
     CHECK(static_cast<int>(z.poles.size()) == added_stage_order(a));
   }
+}
+
+TEST_CASE("pid stages enumerate exactly the PID with its filter, then with notches", "[synthesis][structure]") {
+  StageSettings s;
+  s.pid = true;
+  s.integrator = IntegratorChoice::On;
+  s.lead = 1;
+  s.notch = 2;
+  const std::vector<Structure> all = enumerate_structures(s);
+  REQUIRE(all.size() == 3);
+  for (size_t i = 0; i < all.size(); ++i) {
+    CHECK(all[i].integrator);
+    CHECK(all[i].lead == 1);
+    CHECK(all[i].lag == 0);
+    CHECK(all[i].notch == static_cast<int>(i));
+  }
+  CHECK(all[0].names() == std::vector<std::string>{"integrator", "lead"});
+}
+
+TEST_CASE("pid_shape_violation: zero while the PI corner is below the filter pole, ln of the excess above", "[synthesis][structure][pid]") {
+  // C = k (s + wi)(s + zl) / (s (s + pl)) reads as a PID with all terms of one sign iff wi < pl
+  // (Kd = k (pl - wi)(pl - zl) / pl^3 >= 0, partial fractions).
+  Structure s;
+  s.integrator = true;
+  s.lead = 1;
+  ParamSpace ps = make_param_space(s, {0.1, 100.0}, -2, 2, 1.0);
+  ps.pid_shape = true;
+  Zpk c;
+  c.gain = 1.0;
+  c.zeros = {Complex(-2.0, 0), Complex(-1.0, 0)};  // integrator corner 2, lead zero 1
+  c.poles = {Complex(0, 0), Complex(-8.0, 0)};     // lead pole 8
+  CHECK(pid_shape_violation(ps, c) == 0.0);
+  c.zeros[0] = Complex(-20.0, 0);                  // corner above the filter pole
+  CHECK(pid_shape_violation(ps, c) == Approx(std::log(20.0 / 8.0)));
+  ps.pid_shape = false;
+  CHECK(pid_shape_violation(ps, c) == 0.0);        // not asked for
 }

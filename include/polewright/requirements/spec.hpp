@@ -41,6 +41,9 @@ struct StageSettings {
   int notch = 0;
   IntegratorChoice integrator = IntegratorChoice::Off;
   std::optional<std::pair<double, double>> frequency_range_rad_s;
+  // "pid": true: exactly a PID with its derivative filter (an integrator and one lead: two real
+  // zeros and a filter pole), with up to `notch` notches; parsing sets integrator On and lead 1.
+  bool pid = false;
 };
 
 struct SearchSettings {

@@ -36,8 +36,15 @@ struct ParamSpace {
   double freq_lo = 0.0, freq_hi = 0.0;  // rad/s
   double gain_sign = 1.0;
   StageLimits limits;
+  // stages.pid: the integrator's corner must stay below the lead's pole (the derivative filter),
+  // else the terms of the PID reading change sign (synthesis/problem.hpp scores the excess).
+  bool pid_shape = false;
   int dim() const { return static_cast<int>(lower.size()); }
 };
+
+// How far a point of a pid_shape space is from a PID with its filter: ln(wi / p_lead) when the
+// integrator's corner wi lies above the lead's pole, else 0 (also 0 for any other space).
+double pid_shape_violation(const ParamSpace& ps, const Zpk& c);
 
 // Gain bounds are [gain_log10_lo, gain_log10_hi]; stage bounds come from the range and limits.
 ParamSpace make_param_space(const Structure& s, std::pair<double, double> range, double gain_log10_lo,

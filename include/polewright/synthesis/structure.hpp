@@ -47,7 +47,8 @@ struct Structure {
 
 // Every combination the stage settings allow (up to the given counts; integrator on, off or both),
 // ordered simplest first: fewer stages, then lower order, then integrator off before on, then
-// lead before lag before notch. The pure gain comes first.
+// lead before lag before notch. The pure gain comes first. With `pid` only the PID with its filter
+// (integrator + one lead), with 0..notch notches.
 std::vector<Structure> enumerate_structures(const StageSettings& s);
 
 }  // namespace pw
