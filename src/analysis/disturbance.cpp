@@ -154,9 +154,11 @@ DisturbanceMetrics disturbance_response(const ClosedLoop& loop, const StepOption
   return m;
 }
 
-NoiseMetrics noise_metrics(const Zpk& comp, const Zpk& loop, double delay_s, const FrequencyOptions& opt) {
+NoiseMetrics noise_metrics(const Zpk& comp, const Zpk& loop, double delay_s, const FrequencyOptions& opt,
+                           std::optional<double> gain_at_rad_s) {
   NoiseMetrics n;
-  n.high_frequency_gain = comp.relative_degree() == 0 ? std::abs(comp.gain) : 0.0;
+  const double hf = comp.relative_degree() == 0 ? std::abs(comp.gain) : 0.0;  // |C(j inf)|
+  n.high_frequency_gain = gain_at_rad_s ? std::abs(comp.evaluate(Complex(0.0, *gain_at_rad_s))) : hf;
   const LoopResponse C(comp, 0.0), L(loop, delay_s);
   auto cs = [&](double w) {
     const Complex l = L(w);
@@ -167,8 +169,8 @@ NoiseMetrics noise_metrics(const Zpk& comp, const Zpk& loop, double delay_s, con
   // The limit w -> inf: |C(inf)| for a strictly proper loop, |C(inf) / (1 + L(inf))| for a
   // biproper one without dead time (with one, the grid's linear part sees the oscillation).
   double limit = 0.0;
-  if (loop.relative_degree() > 0) limit = n.high_frequency_gain;
-  else if (delay_s == 0.0) limit = n.high_frequency_gain / std::abs(1.0 + loop.gain);
+  if (loop.relative_degree() > 0) limit = hf;
+  else if (delay_s == 0.0) limit = hf / std::abs(1.0 + loop.gain);
   if (std::isfinite(pk.second)) {
     n.effort_peak = pk.second;
     n.effort_peak_at_rad_s = pk.first;

@@ -75,6 +75,8 @@ std::string check_report_text(const CheckReport& r) {
     t.add(row);
   }
   out += t.render();
+  if (r.requirements.controller_gain_at_rad_s)
+    out += "  controller_hf_gain is " + r.requirements.label(MetricId::ControllerHighFrequencyGain) + "\n";
 
   out += "\nallowed region for the poles that matter\n";
   if (r.region.derivations.empty()) out += "  (no requirement bounds the region)\n";

@@ -15,7 +15,7 @@ std::string report_candidates_section(const ReportData& d) {
   std::string h = "<table class=\"pw-table\"><thead><tr><th>candidate</th><th>verdict</th>";
   for (const Requirement& r : d.spec.requirements.items) {
     const MetricInfo& info = metric_info(r.metric);
-    h += "<th>" + xml_escape(info.label) + "<br/><span class=\"pw-note\">" + (r.sense == Sense::AtMost ? "&#8804; " : "&#8805; ") +
+    h += "<th>" + xml_escape(d.spec.requirements.label(r.metric)) + "<br/><span class=\"pw-note\">" + (r.sense == Sense::AtMost ? "&#8804; " : "&#8805; ") +
          xml_escape(format_number(r.limit, 4)) + (info.unit[0] ? " " + xml_escape(info.unit) : "") + "</span></th>";
   }
   h += "<th>settling</th><th>zero-pole gain</th><th>low-frequency gain</th><th>zeros</th><th>poles</th></tr></thead><tbody>\n";

@@ -158,7 +158,7 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
     set_frequency_metrics(v, e.frequency);
   }
   if (needs_any(req, {MetricId::NoiseEffortPeak, MetricId::ControllerHighFrequencyGain})) {
-    e.noise = noise_metrics(parts.compensator_tf, parts.loop_exact, parts.delay_s, opt.frequency);
+    e.noise = noise_metrics(parts.compensator_tf, parts.loop_exact, parts.delay_s, opt.frequency, req.controller_gain_at_rad_s);
     set_noise_metrics(v, *e.noise);
   }
   if (!e.stable) return e;

@@ -1,5 +1,7 @@
 #include "polewright/requirements/requirement_set.hpp"
 
+#include <cstdio>
+
 #include <algorithm>
 #include <cmath>
 #include <limits>
@@ -10,6 +12,15 @@ bool RequirementSet::has(MetricId id) const {
   for (const Requirement& r : items)
     if (r.metric == id) return true;
   return false;
+}
+
+std::string RequirementSet::label(MetricId id) const {
+  if (id == MetricId::ControllerHighFrequencyGain && controller_gain_at_rad_s) {
+    char b[80];
+    std::snprintf(b, sizeof b, "|C(jw)| at w = %.6g rad/s", *controller_gain_at_rad_s);
+    return b;
+  }
+  return metric_info(id).label;
 }
 
 std::optional<double> RequirementSet::limit(MetricId id, Sense sense) const {

@@ -45,6 +45,7 @@ const std::vector<std::string>& known_keys(const std::string& kind) {
       {"implementation", implementation_keys()},
       {"settling_time_s", {"max", "band_pct"}},
       {"steady_state_error", {"max", "input"}},
+      {"controller_hf_gain", {"max", "frequency_rad_s"}},
       {"max_only", {"max"}},
       {"min_only", {"min"}},
       {"min_or_max", {"min", "max"}},
@@ -145,6 +146,7 @@ RequirementSet parse_requirements(const json& j, const std::string& path) {
     const char* kind = info.bounds == BoundKind::MaxOnly ? "max_only" : (info.bounds == BoundKind::MinOnly ? "min_only" : "min_or_max");
     if (info.id == MetricId::SettlingTime) kind = "settling_time_s";
     if (info.id == MetricId::SteadyStateError) kind = "steady_state_error";
+    if (info.id == MetricId::ControllerHighFrequencyGain) kind = "controller_hf_gain";
     expect_known(*r, rp, kind);
     const json* mn = member(*r, "min");
     const json* mx = member(*r, "max");
@@ -162,6 +164,14 @@ RequirementSet parse_requirements(const json& j, const std::string& path) {
         if (!(band > 0.0 && band < 100.0))
           throw SpecError(key_path(rp, "band_pct"), "must be > 0 and < 100 (got " + describe(*b) + ")");
         set.settling_band = band / 100.0;
+      }
+    }
+    if (info.id == MetricId::ControllerHighFrequencyGain) {
+      if (const json* f = member(*r, "frequency_rad_s")) {
+        const std::string fp = key_path(rp, "frequency_rad_s");
+        const double w = read_number(*f, fp, 1e12);
+        if (!(w > 0.0)) throw SpecError(fp, "must be > 0 (got " + describe(*f) + ")");
+        set.controller_gain_at_rad_s = w;
       }
     }
     if (info.id == MetricId::SteadyStateError) {

@@ -128,3 +128,17 @@ TEST_CASE("noise gain peak of a lightly damped loop sits at the resonance", "[an
   CHECK(*n.effort_peak >= mag(1.001));
   CHECK(*n.effort_peak == Approx(std::sqrt(1.04) / 0.2).epsilon(1e-2));  // the peak is a little off w = 1
 }
+
+TEST_CASE("controller gain at a stated frequency: |C(jw)| of a lead by hand", "[analysis][disturbance][noise]") {
+  // By hand: C = 10 (s + 2)/(s + 20) has |C(j20)| = 10 sqrt(404) / sqrt(800) = 7.1063 and
+  // |C(j inf)| = 10; the noise peak |C S| is unchanged by the stated frequency.
+  const Zpk g = make(1, {}, {kOrigin, Complex(-1, 0)});
+  const Zpk c = make(10, {Complex(-2, 0)}, {Complex(-20, 0)});
+  const NoiseMetrics inf = noise_metrics(c, zpk_series(c, g), 0.0, FrequencyOptions{});
+  const NoiseMetrics at = noise_metrics(c, zpk_series(c, g), 0.0, FrequencyOptions{}, 20.0);
+  CHECK(inf.high_frequency_gain == Approx(10.0).epsilon(1e-15));
+  CHECK(at.high_frequency_gain == Approx(10.0 * std::sqrt(404.0 / 800.0)).epsilon(1e-14));
+  REQUIRE(inf.effort_peak);
+  REQUIRE(at.effort_peak);
+  CHECK(*at.effort_peak == *inf.effort_peak);
+}

@@ -1,4 +1,5 @@
 #include <catch2/catch.hpp>
+#include <cmath>
 
 #include <regex>
 
@@ -80,4 +81,19 @@ TEST_CASE("check text: a met loop with a pole outside the second-order region sa
     "current": {"gain": 2.0, "zeros": [-0.5], "poles": [0]}
   })"));
   CHECK_THAT(check_report_text(run_check(pi, *pi.current)), Catch::Contains("(1 integrator)"));
+}
+
+TEST_CASE("check judges |C(jw)| at the stated frequency and says so", "[outputs][check_output]") {
+  // By hand: C = 10 (s + 2)/(s + 20): |C(j20)| = 7.1063 meets 8 while |C(j inf)| = 10 would not.
+  const Spec spec = parse_spec(parse_json_text(R"({
+    "plant": {"gain": 1, "poles": [0, -1]},
+    "requirements": {"controller_hf_gain": {"max": 8, "frequency_rad_s": 20}},
+    "current": {"gain": 10, "zeros": [-2], "poles": [-20]}
+  })"));
+  const CheckReport r = run_check(spec, *spec.current);
+  const MetricValue& v = r.evaluation.plants.front().values[static_cast<size_t>(MetricId::ControllerHighFrequencyGain)];
+  REQUIRE(v.value);
+  CHECK(*v.value == Approx(10.0 * std::sqrt(404.0 / 800.0)).epsilon(1e-12));
+  CHECK(r.evaluation.all_met);
+  CHECK_THAT(check_report_text(r), Catch::Contains("controller_hf_gain is |C(jw)| at w = 20 rad/s"));
 }

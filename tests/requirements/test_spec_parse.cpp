@@ -141,6 +141,7 @@ TEST_CASE("parser keys agree with the JSON Schema's properties", "[requirements]
     std::string kind = m.bounds == BoundKind::MaxOnly ? "max_only" : (m.bounds == BoundKind::MinOnly ? "min_only" : "min_or_max");
     if (m.id == MetricId::SettlingTime) kind = "settling_time_s";
     if (m.id == MetricId::SteadyStateError) kind = "steady_state_error";
+    if (m.id == MetricId::ControllerHighFrequencyGain) kind = "controller_hf_gain";
     CHECK(keys_of(req.at(m.key)) == as_set(known_keys(kind)));
   }
 }
@@ -202,4 +203,23 @@ TEST_CASE("stages.pid: true means an integrator and one lead, notches allowed", 
     "requirements": {"overshoot_pct": {"max": 10}}, "stages": {"pid": false, "lead": 2}})"));
   CHECK_FALSE(off.stages.pid);
   CHECK(off.stages.lead == 2);
+}
+
+TEST_CASE("controller_hf_gain takes a stated frequency, named in its label", "[requirements][spec_parse]") {
+  const Spec s = parse_spec(json::parse(R"({"plant": {"gain": 1, "poles": [0, -1]},
+    "requirements": {"controller_hf_gain": {"max": 8, "frequency_rad_s": 20}}})"));
+  REQUIRE(s.requirements.controller_gain_at_rad_s);
+  CHECK(*s.requirements.controller_gain_at_rad_s == 20.0);
+  CHECK(s.requirements.label(MetricId::ControllerHighFrequencyGain) == "|C(jw)| at w = 20 rad/s");
+  CHECK(s.requirements.label(MetricId::Overshoot) == metric_info(MetricId::Overshoot).label);
+  const Spec plain = parse_spec(json::parse(R"({"plant": {"gain": 1, "poles": [0, -1]},
+    "requirements": {"controller_hf_gain": {"max": 8}}})"));
+  CHECK_FALSE(plain.requirements.controller_gain_at_rad_s);
+  CHECK(plain.requirements.label(MetricId::ControllerHighFrequencyGain) == "|C(j inf)|");
+  CHECK_THROWS_WITH(parse_spec(json::parse(R"({"plant": {"gain": 1, "poles": [0, -1]},
+    "requirements": {"controller_hf_gain": {"max": 8, "frequency_rad_s": 0}}})")),
+                    Catch::StartsWith("$.requirements.controller_hf_gain.frequency_rad_s: must be > 0"));
+  CHECK_THROWS_WITH(parse_spec(json::parse(R"({"plant": {"gain": 1, "poles": [0, -1]},
+    "requirements": {"controller_hf_gain": {"max": 8, "frequency": 20}}})")),
+                    Catch::StartsWith("$.requirements.controller_hf_gain.frequency: unknown key (did you mean \"frequency_rad_s\"?)"));
 }

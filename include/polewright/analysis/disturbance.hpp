@@ -55,6 +55,8 @@ struct NoiseMetrics {
   double high_frequency_gain = 0.0;
 };
 
-NoiseMetrics noise_metrics(const Zpk& compensator, const Zpk& loop, double delay_s, const FrequencyOptions& options);
+// With `gain_at_rad_s`, high_frequency_gain is |C(jw)| at that frequency instead of |C(j inf)|.
+NoiseMetrics noise_metrics(const Zpk& compensator, const Zpk& loop, double delay_s, const FrequencyOptions& options,
+                           std::optional<double> gain_at_rad_s = std::nullopt);
 
 }  // namespace pw

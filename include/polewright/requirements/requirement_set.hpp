@@ -2,6 +2,7 @@
 #pragma once
 
 #include <optional>
+#include <string>
 #include <vector>
 
 #include "polewright/analysis/steady_state.hpp"
@@ -25,9 +26,15 @@ struct RequirementSet {
   // as a fraction of the peak deviation |y| of the disturbance response.
   double disturbance_step = 1.0;
   double recovery_band = 0.02;
+  // controller_hf_gain's "frequency_rad_s": the compensator's gain |C(jw)| at this frequency
+  // stands for its high-frequency gain (unset: |C(j inf)|).
+  std::optional<double> controller_gain_at_rad_s;
 
   bool has(MetricId id) const;
   std::optional<double> limit(MetricId id, Sense sense) const;
+  // The metric's readable name as this set judges it: the table's label, except "|C(jw)| at
+  // w = ... rad/s" for controller_hf_gain with a stated frequency.
+  std::string label(MetricId id) const;
 };
 
 // A metric's value: a number, +infinity (an unbounded margin, an unbounded error) or missing (the
