@@ -372,7 +372,11 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
   const int threads = rep.summary.threads;
 
   const AnalysisOptions screening = AnalysisOptions::Screening(spec.analysis);
-  const std::vector<Structure> structures = enumerate_structures(spec.stages);
+  // A load-recovery or load-IAE bound needs the compensator's own integrator: "auto" tries only with.
+  StageSettings stage_settings = spec.stages;
+  if (stage_settings.integrator == IntegratorChoice::Auto && compensator_integrator_driver(spec.requirements))
+    stage_settings.integrator = IntegratorChoice::On;
+  const std::vector<Structure> structures = enumerate_structures(stage_settings);
   // Every structure is one job of the level scheduler (level = number of stages): prepare and score
   // its screening points, then polish its starts.
   struct Job {

@@ -85,8 +85,25 @@ std::vector<PlantLimit> plant_limits(const std::vector<Plant>& plants, const Req
         out.push_back(l);
       }
     }
+    if (const std::optional<MetricId> m = compensator_integrator_driver(req)) {
+      // A load step at the plant input leaves y = d / C(0) for a compensator without an
+      // integrator, whatever the plant's own integrators (final-value theorem on G S).
+      const std::string key = metric_info(*m).key;
+      const bool none = stages.integrator == IntegratorChoice::Off;
+      PlantLimit l{"integrators", p.name, 1.0, std::nullopt, std::nullopt, none, none ? key : "", ""};
+      l.message = key + " needs an integrator in the compensator (a plant integrator does not return the output to zero "
+                        "after a load step at the plant input); the stages allow " +
+                  std::string(none ? "none" : "one, so every structure carries it");
+      out.push_back(l);
+    }
   }
   return out;
+}
+
+std::optional<MetricId> compensator_integrator_driver(const RequirementSet& req) {
+  for (MetricId id : {MetricId::LoadRecovery, MetricId::LoadIae})
+    if (req.limit(id, Sense::AtMost)) return id;
+  return std::nullopt;
 }
 
 }  // namespace pw

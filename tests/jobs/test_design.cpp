@@ -416,3 +416,20 @@ TEST_CASE("stages.pid: every candidate is a PID with its filter, and its paralle
   }
   CHECK(*r.candidates.front().worst[static_cast<size_t>(MetricId::SteadyStateError)].value == 0.0);
 }
+
+TEST_CASE("a load-recovery bound with integrator auto searches only structures with an integrator", "[jobs][design][disturbance]") {
+  // Plant 20 / (s (s + 5)) (demo data) integrates, yet a load step at its input is rejected only
+  // by a compensator integrator (final-value theorem on G S): every candidate carries one, and the
+  // limits say why.
+  const Spec spec = spec_of(R"({"plant": {"gain": 20, "poles": [0, -5]},
+    "requirements": {"overshoot_pct": {"max": 20}, "load_recovery_s": {"max": 3}},
+    "stages": {"lead": 1, "integrator": "auto", "frequency_range_rad_s": [0.05, 100]}})");
+  DesignOptions o = DesignOptions::FromSpec(spec);
+  o.threads = 1;
+  const DesignReport r = run_design(spec, o);
+  REQUIRE(r.met());
+  for (const Candidate& c : r.candidates) CHECK(c.structure.integrator);
+  bool said = false;
+  for (const PlantLimit& l : r.limits) said = said || (l.kind == "integrators" && l.message.find("load_recovery_s") == 0);
+  CHECK(said);
+}

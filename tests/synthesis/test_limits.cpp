@@ -40,3 +40,32 @@ TEST_CASE("plant limits: right-half-plane zero, unstable pole, dead time, integr
   CHECK(*b[1].max_crossover_rad_s == Approx(100.0));
   CHECK_FALSE(b[1].binding);
 }
+
+TEST_CASE("a load-recovery bound needs the compensator's own integrator, even on an integrating plant", "[synthesis][limits]") {
+  // Final-value theorem on G S = G / (1 + C G) for a load step at the plant input: with G = 1/s
+  // and a constant C(0) the output settles at d / C(0), not 0; a compensator integrator takes it
+  // to 0. So the plant's integrator does not satisfy the bound.
+  Plant motor;
+  motor.name = "motor";
+  motor.tf.poles = {Complex(0, 0), Complex(-5, 0)};
+  RequirementSet req;
+  req.items = {{MetricId::LoadRecovery, Sense::AtMost, 2.0}};
+  CHECK(compensator_integrator_driver(req) == MetricId::LoadRecovery);
+  StageSettings none, some;
+  some.integrator = IntegratorChoice::Auto;
+  const Region region = region_from_requirements(req);
+  const std::vector<PlantLimit> off = plant_limits({motor}, req, region, none);
+  REQUIRE(off.size() == 1);
+  CHECK(off[0].kind == "integrators");
+  CHECK(off[0].binding);
+  CHECK(off[0].requirement == "load_recovery_s");
+  const std::vector<PlantLimit> on = plant_limits({motor}, req, region, some);
+  REQUIRE(on.size() == 1);
+  CHECK_FALSE(on[0].binding);
+  RequirementSet iae;
+  iae.items = {{MetricId::LoadIae, Sense::AtMost, 0.1}};
+  CHECK(compensator_integrator_driver(iae) == MetricId::LoadIae);
+  RequirementSet output;
+  output.items = {{MetricId::OutputRecovery, Sense::AtMost, 2.0}};  // any loop integrator rejects it
+  CHECK_FALSE(compensator_integrator_driver(output));
+}

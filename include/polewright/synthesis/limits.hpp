@@ -29,4 +29,9 @@ double required_crossover(const Region& region, const RequirementSet& req);
 std::vector<PlantLimit> plant_limits(const std::vector<Plant>& plants, const RequirementSet& req, const Region& region,
                                      const StageSettings& stages);
 
+// The requirement that needs an integrator in the compensator itself: a bound on load_recovery_s
+// or load_iae (a load step at the plant input is rejected only by a compensator integrator). With
+// "integrator": "auto" the design then searches the structures with one only.
+std::optional<MetricId> compensator_integrator_driver(const RequirementSet& req);
+
 }  // namespace pw
