@@ -77,6 +77,7 @@ std::vector<ReportSection> report_sections(JobKind job) {
       {"summary", "Verdict and compensator", report_summary_section},
       {"s-plane", "Closed-loop poles and root locus", report_splane_section},
       {"time", "Unit step: output and control effort", report_time_section},
+      {"disturbance", "Disturbance steps: output deviation", report_disturbance_section},
       {"frequency", "Loop frequency response", report_frequency_section},
       {"nyquist", "Nyquist plot and delay margin", report_nyquist_section},
   };

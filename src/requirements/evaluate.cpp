@@ -179,8 +179,7 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
   const bool load = needs_any(req, {MetricId::LoadPeak, MetricId::LoadRecovery, MetricId::LoadIae});
   const bool output = needs_any(req, {MetricId::OutputPeak, MetricId::OutputRecovery, MetricId::OutputIae});
   if ((load || output) && (all || step || time_domain_gate(req, v, needs.step_gate))) {
-    StepOptions so = opt.step;
-    so.keep_trace = false;
+    StepOptions so = opt.step;  // keep_trace as the step's: the report draws the responses
     for (const DisturbanceInput where : {DisturbanceInput::Load, DisturbanceInput::Output}) {
       if (!(where == DisturbanceInput::Load ? load : output)) continue;
       std::optional<DisturbanceMetrics>& d = where == DisturbanceInput::Load ? e.load : e.output;

@@ -46,6 +46,7 @@ TEST_CASE("check report: one svg per plot, all drawn, no nan, cautions present",
   const ResultInput r = check_result("wafer-stage.json");
   const std::string html = report_html(r);
   check_page(html, 8);  // s-plane, y, u, |L|, phase, |S| |T|, Nyquist, delay margin
+  CHECK(html.find("id=\"disturbance\"") == std::string::npos);  // no disturbance requirement
   for (const char* id : {"id=\"summary\"", "id=\"s-plane\"", "id=\"time\"", "id=\"frequency\"", "id=\"cautions\""})
     CHECK(html.find(id) != std::string::npos);
   CHECK(html.find("id=\"candidates\"") == std::string::npos);
@@ -115,10 +116,11 @@ TEST_CASE("prepare_report refuses results it cannot report, naming the field", "
   }
 }
 
-TEST_CASE("report_sections: check has five sections, design adds the candidates", "[outputs][report]") {
-  CHECK(report_sections(JobKind::Check).size() == 5);
+TEST_CASE("report_sections: check has six sections (one drawn only when asked), design adds the candidates", "[outputs][report]") {
+  CHECK(report_sections(JobKind::Check).size() == 6);
   const auto s = report_sections(JobKind::Design);
-  REQUIRE(s.size() == 6);
+  REQUIRE(s.size() == 7);
+  CHECK(s[3].id == "disturbance");
   CHECK(s.back().id == "candidates");
   CHECK(s.front().id == "summary");
 }
@@ -279,4 +281,34 @@ TEST_CASE("with an implementation block every candidate of the report is judged 
   REQUIRE(settling(d.designs[1].evaluation));
   CHECK(std::abs(*settling(sampled) - *settling(continuous)) > 1e-3);  // the two loops differ
   CHECK(*settling(d.designs[1].evaluation) == Approx(*settling(sampled)).epsilon(1e-12));
+}
+
+TEST_CASE("disturbance section: drawn only when a requirement asks, with the response and its limits", "[outputs][report][disturbance]") {
+  // A spec without disturbance requirements has no such section; one with a load-step bound gets
+  // the load response of every plant: its largest deviation is the load_peak figure of the check
+  // (the same simulation), and the limit lines are drawn.
+  CHECK(report_disturbance_section(prepare_report(check_result("wafer-stage.json"))).empty());
+  const Spec spec = parse_spec(parse_json_text(R"J({
+    "name": "hoist drum under a load step (demo data)",
+    "plant": {"gain": 20, "poles": [0, -5], "variants": [{"name": "heavy", "gain": 14, "poles": [0, -4]}]},
+    "requirements": {"overshoot_pct": {"max": 25}, "load_peak": {"max": 0.2}, "load_recovery_s": {"max": 4},
+                     "disturbance_step": 0.5},
+    "current": {"gain": 1.5, "zeros": [-1.2, -2.4], "poles": [0, -6]}
+  })J"));
+  const ReportData d = prepare_report(parse_result(check_report_json(run_check(spec, *spec.current))));
+  const LoopEvaluation& nominal = d.designs.front().evaluation.plants.front();
+  REQUIRE(nominal.load);
+  REQUIRE_FALSE(nominal.load->trace.y.empty());
+  double biggest = 0.0;
+  for (double y : nominal.load->trace.y) biggest = std::max(biggest, std::abs(0.5 * y));
+  const MetricValue& peak = nominal.values[static_cast<size_t>(MetricId::LoadPeak)];
+  REQUIRE(peak.value);
+  CHECK(biggest == Approx(*peak.value).epsilon(2e-3));  // the peak is refined between samples
+  const std::string h = report_disturbance_section(d);
+  CHECK_THAT(h, Catch::Contains("Output after a load step at the plant input"));
+  CHECK_THAT(h, Catch::Contains("peak limit 0.2"));
+  CHECK_THAT(h, Catch::Contains("recovery limit"));
+  CHECK_THAT(h, Catch::Contains("heavy"));
+  CHECK(h.find("Output after a step added at the output") == std::string::npos);
+  check_page(report_html(d), 9);  // the eight of a check and the load response
 }

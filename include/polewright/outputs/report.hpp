@@ -74,6 +74,8 @@ std::string report_frequency_section(const ReportData& d);
 std::string report_candidates_section(const ReportData& d);
 std::string report_retune_section(const ReportData& d);  // retune: changes and old against new
 std::string report_nyquist_section(const ReportData& d);  // Nyquist plot and the delay margin
+// The output after a load step and an output step, when a requirement names them (else empty).
+std::string report_disturbance_section(const ReportData& d);
 // The s-plane view before the equal-aspect widening: the plants' roots, the closed-loop poles that
 // matter (not those out where a dead time's Pade approximant lives), the region corner and the
 // compensator roots near them. Roots outside it are drawn as arrows at the edge with their values.
