@@ -97,7 +97,7 @@ TEST_CASE("measured CSV: bad files name the line and the column", "[model][measu
   CHECK(error_of("frequency_hz,magnitude_ratio,phase_deg\n1,0,0\n").find("magnitude ratio must be positive") != std::string::npos);
 }
 
-TEST_CASE("unwrap_phase_deg: steps folded into (-180, 180], the first too-large step reported", "[model][measured]") {
+TEST_CASE("unwrap_phase_deg: steps folded into -180 < step <= 180 deg, the first too-large step reported", "[model][measured]") {
   std::vector<double> p = {170, -170, -10, 160};  // true path 170, 190, 350, 520
   CHECK(unwrap_phase_deg(p, 155.0) == 2);  // 190 -> 350 is a 160 deg step
   CHECK(p[1] == 190.0);
