@@ -4,6 +4,7 @@
 #include <limits>
 
 #include "polewright/requirements/spec.hpp"
+#include "polewright/requirements/measured_parse.hpp"
 #include "polewright/requirements/spec_parse.hpp"
 #include "requirements/json_reader.hpp"
 
@@ -106,7 +107,7 @@ nlohmann::json document_argument(py::handle value, const char* what) {
   if (py::isinstance<py::str>(value) || py::isinstance(value, os.attr("PathLike"))) {
     const std::string path = py::str(os.attr("fsdecode")(value)).cast<std::string>();
     py::gil_scoped_release release;
-    return pw::read_json_file(path);
+    return pw::read_spec_file(path);  // a spec's measured data inlined, relative to its folder
   }
   throw py::type_error(std::string(what) + " must be a dict or a path (str or os.PathLike), not " +
                        py::str(py::type::of(value).attr("__name__")).cast<std::string>());

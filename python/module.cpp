@@ -24,6 +24,7 @@
 #include "polewright/outputs/report.hpp"
 #include "polewright/outputs/report_sweep.hpp"
 #include "polewright/outputs/retune_output.hpp"
+#include "polewright/requirements/measured_parse.hpp"
 #include "polewright/requirements/spec_parse.hpp"
 #include "traces.hpp"
 
@@ -58,8 +59,9 @@ std::optional<double> number_argument(const py::object& v, const char* name) {
 }
 
 pw::Spec parse_spec_argument(const py::object& spec) {
-  const nlohmann::json doc = document_argument(spec, "spec");
+  nlohmann::json doc = document_argument(spec, "spec");
   py::gil_scoped_release release;
+  pw::inline_measured_files(doc, ".");  // a dict's measured files are relative to the working folder
   return pw::parse_spec(doc);
 }
 
@@ -68,6 +70,7 @@ pw::ResultInput parse_result_argument(const py::object& result, const py::object
   std::optional<nlohmann::json> sdoc;
   if (!spec.is_none()) sdoc = document_argument(spec, "spec");
   py::gil_scoped_release release;
+  if (sdoc) pw::inline_measured_files(*sdoc, ".");
   pw::ResultInput in = pw::parse_result(doc);
   if (sdoc) in.spec = pw::parse_spec(*sdoc);
   return in;

@@ -51,4 +51,29 @@ MeasuredMetrics measured_loop_metrics(const MeasuredResponse& loop, const Freque
   return out;
 }
 
+NoiseMetrics measured_noise_metrics(const Zpk& comp, const MeasuredResponse& loop, const FrequencyOptions& options,
+                                    std::optional<double> gain_at_rad_s, std::vector<std::string>* notes) {
+  if (loop.size() < 2) throw MeasuredDataError(loop.source + ": a loop needs two measured points or more");
+  NoiseMetrics n;
+  const double hf = comp.relative_degree() == 0 ? std::abs(comp.gain) : 0.0;
+  n.high_frequency_gain = gain_at_rad_s ? std::abs(comp.evaluate(Complex(0.0, *gain_at_rad_s))) : hf;
+  auto cs = [&](double w) {
+    const Complex l = loop.at(w);
+    return std::abs(comp.evaluate(Complex(0.0, w))) / std::abs(1.0 + l);
+  };
+  const auto pk = refined_grid_peak(cs, loop.w_rad_s, options.dense_peak_scan);
+  if (std::isfinite(pk.second)) {
+    n.effort_peak = pk.second;
+    n.effort_peak_at_rad_s = pk.first;
+  }
+  if (hf > 0.0 && (!n.effort_peak || hf > *n.effort_peak)) {
+    n.effort_peak = hf;
+    n.effort_peak_at_rad_s.reset();
+  }
+  if (notes && n.effort_peak_at_rad_s && *n.effort_peak_at_rad_s >= loop.w_max() * (1.0 - 1e-12))
+    notes->push_back(fmt("the largest |C S| lies at the top of the measured range (%.4g rad/s): the true peak may lie beyond it",
+                         loop.w_max()));
+  return n;
+}
+
 }  // namespace pw

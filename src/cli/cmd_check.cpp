@@ -3,6 +3,7 @@
 #include <memory>
 
 #include "commands.hpp"
+#include "polewright/requirements/measured_parse.hpp"
 #include "polewright/outputs/report.hpp"
 #include "polewright/requirements/spec_parse.hpp"
 
@@ -15,7 +16,7 @@ void register_validate(CLI::App& app) {
   cmd->callback([spec] {
     select([spec] {
       return guarded(*spec, [&] {
-        const Spec s = parse_spec(read_json_file(*spec));
+        const Spec s = parse_spec(read_spec_file(*spec));
         std::printf("%s: valid spec, %zu plant(s), %zu requirement bound(s)\n", spec->c_str(), s.plants.size(),
                     s.requirements.items.size());
         return kExitMet;
@@ -42,7 +43,7 @@ void register_check(CLI::App& app) {
     select([a] {
       std::string file = a->spec;
       return guarded(file, [&] {
-        const Spec spec = parse_spec(read_json_file(a->spec));
+        const Spec spec = parse_spec(read_spec_file(a->spec));
         Zpk comp;
         if (!a->compensator.empty()) {
           file = a->compensator;

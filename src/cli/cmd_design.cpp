@@ -1,6 +1,7 @@
 #include <memory>
 
 #include "commands.hpp"
+#include "polewright/requirements/measured_parse.hpp"
 #include "polewright/outputs/design_output.hpp"
 #include "polewright/requirements/spec_parse.hpp"
 
@@ -22,7 +23,7 @@ void register_design(CLI::App& app) {
   cmd->callback([a] {
     select([a] {
       return guarded(a->spec, [&] {
-        Spec spec = parse_spec(read_json_file(a->spec));
+        Spec spec = parse_spec(read_spec_file(a->spec));
         DesignOptions o = DesignOptions::FromSpec(spec);
         apply_search_args(a->search, o);
         for (Objective ob : {Objective::LeastEffort, Objective::Fastest, Objective::MostRobust, Objective::Simplest})

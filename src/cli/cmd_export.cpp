@@ -7,6 +7,7 @@
 #include <vector>
 
 #include "commands.hpp"
+#include "polewright/requirements/measured_parse.hpp"
 #include "polewright/jobs/export.hpp"
 #include "polewright/outputs/export_output.hpp"
 #include "polewright/requirements/spec_parse.hpp"
@@ -84,7 +85,7 @@ void register_export(CLI::App& app) {
         ResultInput in = parse_result(read_json_file(a->result));
         if (!a->spec.empty()) {
           file = a->spec;
-          in.spec = parse_spec(read_json_file(a->spec));
+          in.spec = parse_spec(read_spec_file(a->spec));
           file = a->result;
         }
         const bool from_spec = in.spec && in.spec->implementation;

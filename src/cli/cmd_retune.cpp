@@ -1,6 +1,7 @@
 #include <memory>
 
 #include "commands.hpp"
+#include "polewright/requirements/measured_parse.hpp"
 #include "polewright/outputs/retune_output.hpp"
 #include "polewright/requirements/spec_parse.hpp"
 
@@ -23,7 +24,7 @@ void register_retune(CLI::App& app) {
   cmd->callback([a] {
     select([a] {
       return guarded(a->spec, [&] {
-        const Spec spec = parse_spec(read_json_file(a->spec));
+        const Spec spec = parse_spec(read_spec_file(a->spec));
         if (!spec.current) throw SpecError("$.current", "is missing: retune needs the compensator in service");
         RetuneOptions o = RetuneOptions::FromSpec(spec);
         o.allow_new_stages = a->allow_new;

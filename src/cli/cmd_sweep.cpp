@@ -9,6 +9,7 @@
 #include <thread>
 
 #include "commands.hpp"
+#include "polewright/requirements/measured_parse.hpp"
 #include "polewright/outputs/sweep_store.hpp"
 #include "polewright/requirements/spec_parse.hpp"
 #include "polewright/requirements/sweep_parse.hpp"
@@ -89,7 +90,7 @@ void register_sweep(CLI::App& app) {
   cmd->callback([a] {
     select([a] {
       return guarded(a->file, [&] {
-        const SweepFile f = parse_sweep(read_json_file(a->file));
+        const SweepFile f = parse_sweep(read_sweep_file(a->file));
         const Shard shard = resolve_shard(a->shard);
         SweepStore store = naming_options({{"dir", "--out"}, {"resume", "--resume"}},
                                           [&] { return SweepStore(a->out, f, shard, a->resume); });

@@ -268,6 +268,11 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
                            fmt(" (under %.3g; common practice is 10 to 20 times or more)", o.min_rate_ratio));
   }
   r.notes.push_back("step figures hold between the samples too: the plant output inside each sample interval is checked");
+  for (const Plant& p : r.plants)
+    if (p.measured)
+      r.warnings.push_back(p.name + ": a measured plant: the sampled loop is judged on its fitted model (the measured points "
+                                    "cannot give the response through the hold and the sampler); the continuous figures "
+                                    "of check come from the data");
   return r;
 }
 

@@ -1,6 +1,7 @@
 #include <cmath>
 
 #include "polewright/outputs/check_output.hpp"
+#include "polewright/outputs/measured_output.hpp"
 #include "polewright/outputs/json_values.hpp"
 
 namespace pw {
@@ -72,6 +73,10 @@ nlohmann::json loop_evaluation_json(const LoopEvaluation& e) {
   metrics["peak_complementary_sensitivity"] = json_number(f.peak_complementary);
   j["metrics"] = metrics;
   j["unbounded"] = unbounded;
+  if (e.frequency_from_data || !e.data_notes.empty()) {
+    j["frequency_figures_from"] = e.frequency_from_data ? "data" : "model";
+    j["data_notes"] = e.data_notes;
+  }
   j["closed_loop_poles"] = pole_list_json(e.poles);
   j["residues_reliable"] = e.poles.residues_reliable;
   j["frequency"] = {{"gain_crossovers_rad_s", number_list(f.gain_crossovers_rad_s)},
@@ -254,6 +259,10 @@ nlohmann::json check_report_json(const CheckReport& r) {
                    {"settling_band", json_number(r.requirements.settling_band)}};
   if (r.sample_time_search) j["sample_time_search"] = sample_time_search_json(*r.sample_time_search);
   j["warnings"] = r.warnings;
+  nlohmann::json measured = nlohmann::json::object();
+  for (const Plant& p : r.plants)
+    if (p.measured) measured[p.name] = measured_plant_json(*p.measured);
+  if (!measured.empty()) j["measured_plants"] = measured;
   j["spec"] = r.spec_document;
   j["cautions"] = kCautions;
   return j;

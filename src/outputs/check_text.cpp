@@ -1,6 +1,7 @@
 #include <cmath>
 
 #include "polewright/outputs/check_output.hpp"
+#include "polewright/outputs/measured_output.hpp"
 #include "polewright/outputs/json_values.hpp"
 #include "polewright/requirements/sampled_evaluate.hpp"
 #include "text_table.hpp"
@@ -44,6 +45,9 @@ std::string check_report_text(const CheckReport& r) {
            "\n";
   }
   for (const std::string& w : r.warnings) out += "warning      " + w + "\n";
+  out += measured_plants_text(r.plants, "data         ");
+  for (const LoopEvaluation& e : ev.plants)
+    for (const std::string& n : e.data_notes) out += "data note    " + e.plant_name + ": " + n + "\n";
   out += "\n";
 
   std::vector<std::string> cols = {"requirement", "limit", sampled ? "worst value (sampled)" : "worst value", "margin", "met",

@@ -2,6 +2,7 @@
 
 #include "polewright/outputs/check_output.hpp"
 #include "polewright/outputs/design_output.hpp"
+#include "polewright/outputs/measured_output.hpp"
 #include "polewright/outputs/json_values.hpp"
 #include "polewright/synthesis/problem.hpp"
 
@@ -29,7 +30,9 @@ nlohmann::json requirements_json(const RequirementSet& req) {
 
 nlohmann::json plant_json(const Plant& p) {
   nlohmann::json z = json_zpk(p.tf);
-  return {{"name", p.name}, {"gain", z["gain"]}, {"zeros", z["zeros"]}, {"poles", z["poles"]}, {"delay_s", json_number(p.delay_s)}};
+  nlohmann::json j = {{"name", p.name}, {"gain", z["gain"]}, {"zeros", z["zeros"]}, {"poles", z["poles"]}, {"delay_s", json_number(p.delay_s)}};
+  if (p.measured) j["measured"] = measured_plant_json(*p.measured);  // gain, zeros, poles and delay are the fit's
+  return j;
 }
 
 void add_metrics(nlohmann::json& j, const std::vector<MetricValue>& worst) {

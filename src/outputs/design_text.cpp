@@ -3,6 +3,7 @@
 
 #include "polewright/jobs/check.hpp"
 #include "polewright/outputs/design_output.hpp"
+#include "polewright/outputs/measured_output.hpp"
 #include "polewright/outputs/json_values.hpp"
 #include "polewright/synthesis/fragility.hpp"
 #include "text_table.hpp"
@@ -71,6 +72,7 @@ std::string design_report_text(const DesignReport& r) {
          " .. " + fmt_number(r.context.frequency_range.second) + " rad/s, " + std::to_string(r.context.plants.size()) + " plant(s)\n";
   out += implementation_text(r.context);
   for (const std::string& w : conditioning_warnings(r.spec_document)) out += "warning " + w + "\n";
+  out += measured_plants_text(r.context.plants, "data ");
   out += "\n";
   std::vector<std::string> header = {"rank", "structure", "zero-pole gain", "low-freq gain", "zeros", "poles"};
   std::vector<MetricId> shown;

@@ -2,6 +2,7 @@
 
 #include "polewright/jobs/check.hpp"
 #include "polewright/outputs/design_output.hpp"
+#include "polewright/outputs/measured_output.hpp"
 #include "polewright/outputs/json_values.hpp"
 #include "polewright/outputs/retune_output.hpp"
 #include "text_table.hpp"
@@ -34,6 +35,7 @@ std::string retune_report_text(const RetuneReport& r) {
   std::string out = "polewright retune" + (r.spec_name.empty() ? std::string() : ": " + r.spec_name) + "\n";
   out += implementation_text(r.context);
   for (const std::string& w : conditioning_warnings(r.spec_document)) out += "warning " + w + "\n";
+  out += measured_plants_text(r.context.plants, "data ");
   const Candidate& cur = r.current;
   out += "in service: " + zpk_to_string(cur.compensator) + "  (" + candidate_verdict(cur) + ")\n";
   out += "            " + gains_text(cur.compensator) + "\n";

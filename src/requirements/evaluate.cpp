@@ -1,5 +1,8 @@
 #include "polewright/requirements/evaluate.hpp"
 
+#include "polewright/analysis/measured_frequency.hpp"
+#include "polewright/model/measured_plant.hpp"
+
 #include <algorithm>
 #include <cmath>
 
@@ -153,13 +156,37 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
   if (!all && !e.stable) return e;  // screening: nothing more to learn from an unstable loop
   // Frequency response with the exact delay: robustness figures, computed for unstable loops too.
   const bool freq = all || needs.frequency || needs_frequency_response(req);
-  if (freq) {
-    e.frequency = frequency_metrics(parts.loop_exact, parts.delay_s, opt.frequency);
-    set_frequency_metrics(v, e.frequency);
+  const bool noise = needs_any(req, {MetricId::NoiseEffortPeak, MetricId::ControllerHighFrequencyGain});
+  std::optional<MeasuredResponse> loop;
+  if (plant.measured && (freq || noise)) {
+    try {
+      loop = measured_multiply(plant.measured->data, comp);
+    } catch (const MeasuredDataError&) {
+      e.data_notes.push_back("the compensator has a zero or a pole on the measured grid: the frequency figures come from the fitted model");
+    }
   }
-  if (needs_any(req, {MetricId::NoiseEffortPeak, MetricId::ControllerHighFrequencyGain})) {
-    e.noise = noise_metrics(parts.compensator_tf, parts.loop_exact, parts.delay_s, opt.frequency, req.controller_gain_at_rad_s);
-    set_noise_metrics(v, *e.noise);
+  if (loop) {
+    // The frequency figures from the measured points themselves, not from the fit.
+    e.frequency_from_data = true;
+    if (freq) {
+      MeasuredMetrics mm = measured_loop_metrics(*loop, opt.frequency);
+      e.frequency = std::move(mm.figures);
+      e.data_notes = std::move(mm.notes);
+      set_frequency_metrics(v, e.frequency);
+    }
+    if (noise) {
+      e.noise = measured_noise_metrics(comp, *loop, opt.frequency, req.controller_gain_at_rad_s, &e.data_notes);
+      set_noise_metrics(v, *e.noise);
+    }
+  } else {
+    if (freq) {
+      e.frequency = frequency_metrics(parts.loop_exact, parts.delay_s, opt.frequency);
+      set_frequency_metrics(v, e.frequency);
+    }
+    if (noise) {
+      e.noise = noise_metrics(parts.compensator_tf, parts.loop_exact, parts.delay_s, opt.frequency, req.controller_gain_at_rad_s);
+      set_noise_metrics(v, *e.noise);
+    }
   }
   if (!e.stable) return e;
 

@@ -29,9 +29,12 @@ const char* objective_name(Objective o) {
 const std::vector<std::string>& known_keys(const std::string& kind) {
   static const std::map<std::string, std::vector<std::string>> table = {
       {"spec", {"$schema", "name", "plant", "requirements", "stages", "current", "search", "analysis", "implementation"}},
-      {"plant", {"numerator", "denominator", "zeros", "poles", "gain", "delay_s", "variants"}},
-      {"plant_core", {"numerator", "denominator", "zeros", "poles", "gain", "delay_s"}},
-      {"variant", {"numerator", "denominator", "zeros", "poles", "gain", "delay_s", "name"}},
+      {"plant", {"numerator", "denominator", "zeros", "poles", "gain", "delay_s", "measured", "measured_loop", "variants"}},
+      {"plant_core", {"numerator", "denominator", "zeros", "poles", "gain", "delay_s", "measured", "measured_loop"}},
+      {"variant", {"numerator", "denominator", "zeros", "poles", "gain", "delay_s", "measured", "measured_loop", "name"}},
+      {"measured", {"file", "frequency_unit", "magnitude_unit", "data", "fit"}},
+      {"measured_data", {"frequency_rad_s", "magnitude_ratio", "phase_deg", "coherence"}},
+      {"measured_fit", {"max_poles", "penalty", "estimate_delay", "delay_s", "allow_unstable"}},
       {"compensator", {"numerator", "denominator", "zeros", "poles", "gain"}},
       {"requirements",
        {"overshoot_pct", "settling_time_s", "rise_time_s", "steady_state_error", "phase_margin_deg", "gain_margin_db",
@@ -289,11 +292,11 @@ AnalysisOptions parse_analysis(const json& j, const std::string& path) {
   return a;
 }
 
-std::vector<Plant> parse_plants(const json& j, const std::string& path) {
+std::vector<Plant> parse_plants(const json& j, const std::string& path, const Zpk* current) {
   expect_known(j, path, "plant");
   json core = j;
   core.erase("variants");
-  std::vector<Plant> plants = {parse_plant_object(core, path, false)};
+  std::vector<Plant> plants = {parse_plant_object(core, path, false, current)};
   if (const json* vs = member(j, "variants")) {
     const std::string vp = key_path(path, "variants");
     if (!vs->is_array()) throw SpecError(vp, "must be an array of plant objects");
@@ -302,8 +305,15 @@ std::vector<Plant> parse_plants(const json& j, const std::string& path) {
       const json& v = (*vs)[i];
       detail::expect_object(v, ip, known_keys("variant"));
       json merged = core;
+      // A variant that names its own kind of plant (a measurement, or a transfer function) takes
+      // nothing of the other kind from the nominal plant.
+      const bool own_tf = member(v, "numerator") || member(v, "denominator") || member(v, "zeros") || member(v, "poles");
+      if (member(v, "measured"))
+        for (const char* k : {"numerator", "denominator", "zeros", "poles", "gain", "delay_s"}) merged.erase(k);
+      else if (own_tf)
+        for (const char* k : {"measured", "measured_loop"}) merged.erase(k);
       for (auto it = v.begin(); it != v.end(); ++it) merged[it.key()] = it.value();
-      Plant p = parse_plant_object(merged, ip, true);
+      Plant p = parse_plant_object(merged, ip, true, current);
       if (!member(v, "name")) p.name = "variant " + std::to_string(i + 1);
       plants.push_back(p);
     }
@@ -324,12 +334,13 @@ Spec parse_spec(const json& doc) {
   }
   const json* plant = member(doc, "plant");
   if (!plant) throw SpecError("$.plant", "is missing: a spec needs a plant");
-  s.plants = parse_plants(*plant, "$.plant");
+  // The compensator in service first: a measured loop (measured_loop: true) is divided by it.
+  if (const json* v = member(doc, "current")) s.current = parse_compensator(*v, "$.current");
+  s.plants = parse_plants(*plant, "$.plant", s.current ? &*s.current : nullptr);
   const json* req = member(doc, "requirements");
   if (!req) throw SpecError("$.requirements", "is missing: a spec needs requirements (an empty object checks nothing)");
   s.requirements = parse_requirements(*req, "$.requirements");
   if (const json* v = member(doc, "stages")) s.stages = parse_stages(*v, "$.stages");
-  if (const json* v = member(doc, "current")) s.current = parse_compensator(*v, "$.current");
   if (const json* v = member(doc, "search")) s.search = parse_search(*v, "$.search");
   if (const json* v = member(doc, "analysis")) s.analysis = parse_analysis(*v, "$.analysis");
   if (const json* v = member(doc, "implementation")) s.implementation = parse_implementation(*v, "$.implementation");
@@ -341,6 +352,14 @@ Spec parse_spec(const json& doc) {
         throw SpecError(key_path("$.requirements", metric_info(r.metric).key),
                         "is not judged on the sampled loop yet: with $.implementation, leave it out (or check it "
                         "on the continuous loop, without the block)");
+  // The sampled loop of a measured plant would need the data's frequency response through the hold
+  // and the sampler (aliasing included), which the points cannot give: refused, named.
+  if (s.implementation)
+    for (size_t i = 0; i < s.plants.size(); ++i)
+      if (s.plants[i].measured)
+        throw SpecError(i == 0 ? std::string("$.plant.measured") : index_path("$.plant.variants", i - 1) + ".measured",
+                        "is not judged on the sampled loop yet: with $.implementation, give a transfer function (or check "
+                        "the measured plant on the continuous loop, without the block)");
   s.analysis.step.band = s.requirements.settling_band;
   s.document = doc;
   return s;

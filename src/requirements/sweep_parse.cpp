@@ -17,7 +17,8 @@
 namespace pw {
 
 bool sweep_word_key(const std::string& key) {
-  static const char* const words[] = {"name", "$schema", "input", "integrator", "objective", "method", "word_length"};
+  static const char* const words[] = {"name",   "$schema",        "input",          "integrator", "objective",
+                                      "method", "word_length", "file", "frequency_unit", "magnitude_unit"};
   for (const char* w : words)
     if (key == w) return true;
   return false;

@@ -3,6 +3,7 @@
 
 #include "json_reader.hpp"
 #include "polewright/model/eigen.hpp"
+#include "polewright/requirements/measured_parse.hpp"
 #include "polewright/requirements/spec_parse.hpp"
 
 namespace pw {
@@ -141,7 +142,7 @@ Zpk parse_compensator(const json& j, const std::string& path) {
   return read_transfer_function(j, path, kMaxCompensatorOrder, "compensator");
 }
 
-Plant parse_plant_object(const json& j, const std::string& path, bool allow_name) {
+Plant parse_plant_object(const json& j, const std::string& path, bool allow_name, const Zpk* current) {
   detail::expect_object(j, path, known_keys(allow_name ? "variant" : "plant_core"));
   Plant p;
   p.name = "nominal";
@@ -153,9 +154,25 @@ Plant parse_plant_object(const json& j, const std::string& path, bool allow_name
     p.delay_s = read_number(*d, key_path(path, "delay_s"), 1e9);
     if (p.delay_s < 0.0) throw SpecError(key_path(path, "delay_s"), "must be >= 0 (got " + describe(*d) + ")");
   }
+  if (const json* m = member(j, "measured")) {
+    for (const char* k : {"numerator", "denominator", "zeros", "poles", "gain", "delay_s"})
+      if (member(j, k))
+        throw SpecError(key_path(path, k), "cannot stand beside measured: a measured plant's model is fitted to its data (a dead "
+                                           "time goes in measured.fit.delay_s)");
+    bool from_loop = false;
+    if (const json* l = member(j, "measured_loop")) {
+      if (!l->is_boolean()) throw SpecError(key_path(path, "measured_loop"), "must be true or false");
+      from_loop = l->get<bool>();
+    }
+    p.measured = parse_measured(*m, key_path(path, "measured"), current, from_loop);
+    p.tf = p.measured->fit.model;
+    p.delay_s = p.measured->fit.delay_s;
+    return p;
+  }
+  if (member(j, "measured_loop")) throw SpecError(key_path(path, "measured_loop"), "applies only to a measured plant (measured)");
   if (!member(j, "numerator") && !member(j, "denominator") && !member(j, "poles") && !member(j, "zeros") &&
       !member(j, "gain"))
-    throw SpecError(path, "gives no transfer function: use numerator/denominator or zeros/poles/gain");
+    throw SpecError(path, "gives no transfer function: use numerator/denominator, zeros/poles/gain or measured");
   p.tf = read_transfer_function(j, path, kMaxPlantOrder, "plant");
   return p;
 }

@@ -135,6 +135,9 @@ TEST_CASE("parser keys agree with the JSON Schema's properties", "[requirements]
   CHECK(keys_of(defs.at("search")) == as_set(known_keys("search")));
   CHECK(keys_of(defs.at("analysis")) == as_set(known_keys("analysis")));
   CHECK(keys_of(defs.at("implementation")) == as_set(known_keys("implementation")));
+  CHECK(keys_of(defs.at("measured")) == as_set(known_keys("measured")));
+  CHECK(keys_of(defs.at("measured_data")) == as_set(known_keys("measured_data")));
+  CHECK(keys_of(defs.at("measured_fit")) == as_set(known_keys("measured_fit")));
   const json& req = defs.at("requirements").at("properties");
   for (const MetricInfo& m : metric_table()) {
     INFO(m.key);

@@ -207,9 +207,11 @@ namespace {
 // const), at any depth: the keys a sweep base may hold words at.
 void string_keys(const json& schema, const std::string& key, std::set<std::string>& out) {
   if (schema.is_object()) {
-    if (!key.empty() && ((schema.contains("type") && schema["type"] == "string") || schema.contains("enum") ||
-                         schema.contains("const")))
-      out.insert(key);
+    bool words = schema.contains("type") && schema["type"] == "string";
+    if (schema.contains("const")) words = words || schema["const"].is_string();  // not "const": true
+    if (schema.contains("enum"))
+      for (const json& v : schema["enum"]) words = words || v.is_string();
+    if (!key.empty() && words) out.insert(key);
     for (auto it = schema.begin(); it != schema.end(); ++it) {
       if (it.key() == "properties" && it->is_object()) {
         for (auto p = it->begin(); p != it->end(); ++p) string_keys(p.value(), p.key(), out);
@@ -237,6 +239,8 @@ TEST_CASE("the word keys of a sweep base are the string-valued keys of the spec 
   }
   CHECK_FALSE(sweep_word_key("gain"));
   CHECK_FALSE(sweep_word_key("sample_time_s"));
+  CHECK(keys.count("file") == 1);                // a measured plant's CSV path
+  CHECK(keys.count("measured_loop") == 0);       // "const": true is not a word
   // A base with an implementation block: the method and word length stay words, T is swept.
   json j = json::parse(kSweep);
   j["base"]["implementation"] = {{"sample_time_s", "0.001 * J"}, {"method", "tustin"}, {"word_length", "float"}};

@@ -77,6 +77,11 @@ struct LoopEvaluation {
   GainToleranceResult gain;
   std::optional<DisturbanceMetrics> load, output;  // per unit step, when a requirement asks
   std::optional<NoiseMetrics> noise;
+  // A measured plant: the frequency figures (margins, crossovers, bandwidth, |S|, |C S|) come from
+  // the data, the poles, the step and the rest from the fitted model; `data_notes` says what the
+  // measured range cannot show.
+  bool frequency_from_data = false;
+  std::vector<std::string> data_notes;
   bool region_ok = false;                          // every pole that matters inside the region
   std::optional<Complex> dominant_pole;            // slowest-decaying pole that matters
   MetricValues values{};                           // indexed by MetricId

@@ -27,7 +27,8 @@ Spec parse_spec(const nlohmann::json& doc);
 Zpk parse_compensator(const nlohmann::json& j, const std::string& path);
 
 // A plant object without variants (used for the nominal plant; exposed for tests and fuzzing).
-Plant parse_plant_object(const nlohmann::json& j, const std::string& path, bool allow_name);
+// `current` is the compensator in service, which a measured loop (measured_loop: true) needs.
+Plant parse_plant_object(const nlohmann::json& j, const std::string& path, bool allow_name, const Zpk* current = nullptr);
 
 // Keys the parser accepts for each object kind (compared with the JSON Schema by a test).
 const std::vector<std::string>& known_keys(const std::string& object_kind);
