@@ -2,6 +2,7 @@
 #include <cmath>
 
 #include "polewright/analysis/frequency.hpp"
+#include "polewright/model/measured_plant.hpp"
 #include "polewright/outputs/report.hpp"
 #include "svg_palette.hpp"
 #include "svg_plot.hpp"
@@ -70,6 +71,58 @@ double at(const std::vector<double>& w, const std::vector<double>& v, double x) 
   return v.empty() ? NAN : v.back();
 }
 
+// A measured plant's points times C(jw): |L| in dB and the phase on the branch of the fitted
+// loop's curve at the same frequency (the two differ by the fit error, far less than 180 deg).
+struct DataPoints {
+  std::vector<double> w, mag_db, phase_deg;
+};
+
+DataPoints measured_loop_points(const MeasuredPlant& m, const Zpk& c, const std::vector<double>& w,
+                                const std::vector<double>& curve_phase_deg) {
+  DataPoints p;
+  MeasuredResponse loop;
+  try {
+    loop = measured_multiply(m.data, c);
+  } catch (const std::exception&) {
+    return p;  // a compensator root on a measured frequency: the data cannot be multiplied there
+  }
+  for (size_t i = 0; i < loop.size(); ++i) {
+    const double wi = loop.w_rad_s[i];
+    const double mag = 20.0 * loop.log_mag[i] / std::log(10.0);
+    double ph = loop.phase_rad[i] * 180.0 / kPi;
+    const double near = at(w, curve_phase_deg, wi);
+    if (std::isfinite(near)) ph += 360.0 * std::round((near - ph) / 360.0);
+    if (!std::isfinite(mag) || !std::isfinite(ph)) continue;
+    p.w.push_back(wi);
+    p.mag_db.push_back(mag);
+    p.phase_deg.push_back(ph);
+  }
+  return p;
+}
+
+// With measured plants the fitted model is known only where the data is: the plots span the
+// measured range and a third of a decade beyond each end, on the analysis grid's points there
+// and a log-spaced grid (kept dense near modes by the analysis grid).
+std::vector<double> measured_window(const std::vector<Plant>& plants, const std::vector<double>& w) {
+  double lo = INFINITY, hi = 0.0;
+  for (const Plant& p : plants)
+    if (p.measured && p.measured->data.size() > 0) {
+      lo = std::min(lo, p.measured->data.w_min());
+      hi = std::max(hi, p.measured->data.w_max());
+    }
+  if (!(hi > lo)) return w;
+  lo /= std::pow(10.0, 1.0 / 3.0);
+  hi *= std::pow(10.0, 1.0 / 3.0);
+  std::vector<double> out;
+  for (double x : w)
+    if (x > lo && x < hi) out.push_back(x);
+  constexpr int kPoints = 600;
+  for (int i = 0; i < kPoints; ++i) out.push_back(lo * std::pow(hi / lo, static_cast<double>(i) / (kPoints - 1)));
+  std::sort(out.begin(), out.end());
+  out.erase(std::unique(out.begin(), out.end()), out.end());
+  return out;
+}
+
 }  // namespace
 
 std::string report_frequency_section(const ReportData& d) {
@@ -80,6 +133,7 @@ std::string report_frequency_section(const ReportData& d) {
   const LoopParts nominal_parts = make_loop_parts(rd.compensator, d.spec.plants.front(), pade);
   std::vector<double> w = frequency_grid(nominal_parts.loop_exact, nominal_parts.delay_s, d.spec.analysis.frequency);
   if (w.size() < 2) return "";
+  w = measured_window(d.spec.plants, w);
 
   Plot pm(540, 270, "Loop gain |L(j\u03c9)|");
   Plot pp(540, 270, "Loop phase \u2220L(j\u03c9)");
@@ -95,6 +149,7 @@ std::string report_frequency_section(const ReportData& d) {
   ps.y.label = "magnitude (dB)";
   double mlo = 0.0, mhi = 0.0, plo = -180.0, phi = -180.0, slo = -20.0, shi = 6.0;
   Response nominal;
+  int measured_plants = 0;
   for (size_t i = 0; i < d.spec.plants.size(); ++i) {
     const LoopParts parts = i == 0 ? nominal_parts : make_loop_parts(rd.compensator, d.spec.plants[i], pade);
     const Response r = respond(parts, w);
@@ -104,10 +159,19 @@ std::string report_frequency_section(const ReportData& d) {
     s.width = i == 0 ? 2.0 : 1.4;
     s.dash = variant_dash(static_cast<int>(i));
     const std::string name = report::plant_name(d, i);
-    pm.line(w, r.mag_db, s, name);
-    pp.line(w, r.phase_deg, s, name);
+    pm.line(w, r.mag_db, s, name + (d.spec.plants[i].measured ? " (fitted model)" : ""));
+    pp.line(w, r.phase_deg, s, name + (d.spec.plants[i].measured ? " (fitted model)" : ""));
     bounds_of(r.mag_db, mlo, mhi, -120.0, 120.0);
     bounds_of(r.phase_deg, plo, phi, -1080.0, 720.0);
+    if (const auto& m = d.spec.plants[i].measured) {
+      const DataPoints pts = measured_loop_points(*m, rd.compensator, w, r.phase_deg);
+      Style ds;
+      ds.stroke = i == 0 ? colour::kInk : colour::kMuted;
+      ds.width = 1.0;
+      pm.markers(pts.w, pts.mag_db, Marker::Circle, 3, ds, name + ": measured points \u00d7 C");
+      pp.markers(pts.w, pts.phase_deg, Marker::Circle, 3, ds, name + ": measured points \u00d7 C");
+      ++measured_plants;
+    }
   }
   // A retune: the old design (in service) on the nominal plant, muted and dashed.
   Response previous;
@@ -238,7 +302,9 @@ std::string report_frequency_section(const ReportData& d) {
 
   std::string h = "<div class=\"pw-figures\">\n<div class=\"pw-stack\">\n";
   h += report::figure(pm.svg(), std::string("L = C G with the exact dead time; solid: nominal plant, dashed and dotted: variants. Margins marked for the nominal loop.") +
-                                    (d.previous ? " Grey dashes: the old design in service." : ""));
+                                    (d.previous ? " Grey dashes: the old design in service." : "") +
+                                    (measured_plants > 0 ? " Circles: the measured points times C, over the fitted model's loop; "
+                                                           "the margins and the table come from the points; the plots span the measured range." : ""));
   h += report::figure(pp.svg(), "Phase unwrapped from its low-frequency value; the phase margin is the distance to the \u2212180\u00b0 line at crossover.");
   h += "</div>\n<div class=\"pw-stack\">\n";
   h += report::figure(ps.svg(), "S = 1/(1 + L): disturbance to error; T = L/(1 + L): reference to output (nominal plant).");

@@ -7,6 +7,7 @@
 #include "polewright/outputs/check_output.hpp"
 #include "polewright/outputs/json_values.hpp"
 #include "polewright/outputs/report.hpp"
+#include "polewright/requirements/measured_parse.hpp"
 #include "polewright/requirements/spec_parse.hpp"
 #include "outputs/report_util.hpp"
 #include "polewright/model/pade.hpp"
@@ -311,4 +312,30 @@ TEST_CASE("disturbance section: drawn only when a requirement asks, with the res
   CHECK_THAT(h, Catch::Contains("heavy"));
   CHECK(h.find("Output after a step added at the output") == std::string::npos);
   check_page(report_html(d), 9);  // the eight of a check and the load response
+}
+
+TEST_CASE("a measured plant's report overlays its points on the fitted loop, over the measured range", "[outputs][report][measured]") {
+  // examples/measured/belt-axis.json: 131 points from 0.5 Hz to 200 Hz (3.1 to 1257 rad/s).
+  const Spec spec = parse_spec(read_spec_file(std::string(POLEWRIGHT_SOURCE_DIR) + "/examples/measured/belt-axis.json"));
+  REQUIRE(spec.plants.front().measured);
+  Zpk c;
+  c.gain = 60.0;
+  c.zeros = {Complex(-12.0, 0.0)};
+  c.poles = {Complex(-300.0, 0.0)};
+  const ReportData d = prepare_report(parse_result(check_report_json(run_check(spec, c))));
+  const std::string h = report_frequency_section(d);
+  const std::vector<std::string> svgs = outer_svgs(h);
+  REQUIRE(svgs.size() == 3);
+  CHECK(svgs[0].find("nominal: measured points \u00d7 C") != std::string::npos);  // gain plot
+  CHECK(svgs[1].find("nominal: measured points \u00d7 C") != std::string::npos);  // phase plot
+  CHECK(svgs[0].find("nominal (fitted model)") != std::string::npos);
+  CHECK(h.find("Circles: the measured points times C") != std::string::npos);
+  // The axis spans the data and a third of a decade beyond: decade ticks 10, 100, 1000 only
+  // (the fitted model's own grid would run from 1e-4 up).
+  CHECK(svgs[0].find(">1000</text>") != std::string::npos);
+  CHECK(svgs[0].find(">1e-4</text>") == std::string::npos);
+  CHECK(svgs[0].find(">1e4</text>") == std::string::npos);
+  check_page(report_html(d), 8);  // s-plane, step, effort, three frequency plots, Nyquist, delay margin
+  // A plant given as a transfer function draws no points.
+  CHECK(report_frequency_section(prepare_report(check_result("wafer-stage.json"))).find("measured points") == std::string::npos);
 }
