@@ -21,26 +21,10 @@ import sys
 import numpy as np
 from scipy import signal
 
-passed = failed = 0
+from refcheck import Tally, roots_of
 
-
-def check(ok, what):
-    global passed, failed
-    print(("PASS " if ok else "FAIL ") + what)
-    if ok:
-        passed += 1
-    else:
-        failed += 1
-
-
-def roots_of(items):
-    out = []
-    for r in items:
-        if isinstance(r, dict):
-            out += [complex(r["re"], r["im"]), complex(r["re"], -r["im"])] if r["im"] != 0 else [complex(r["re"], 0)]
-        else:
-            out.append(complex(r, 0))
-    return out
+TALLY = Tally()
+check = TALLY.check
 
 
 def main():
@@ -96,8 +80,7 @@ def main():
         check(abs(effort - m["peak_effort"]) <= 1e-4 * effort, "rank %d effort agrees" % c["rank"])
         check(over <= req["overshoot_pct"]["max"], "rank %d overshoot meets" % c["rank"])
         check(settle <= req["settling_time_s"]["max"], "rank %d settling meets" % c["rank"])
-    print("%d passed, %d failed" % (passed, failed))
-    sys.exit(1 if failed else 0)
+    sys.exit(TALLY.finish())
 
 
 if __name__ == "__main__":

@@ -1,0 +1,11 @@
+# Regenerates the measured example's CSV into the build tree and compares it with the committed one.
+set(out "${CMAKE_CURRENT_BINARY_DIR}/belt-axis.csv")
+execute_process(COMMAND ${PY} ${SRC}/scripts/make_measured_example.py ${out} RESULT_VARIABLE rc)
+if(NOT rc EQUAL 0)
+  message(FATAL_ERROR "make_measured_example.py failed (${rc})")
+endif()
+execute_process(COMMAND ${CMAKE_COMMAND} -E compare_files ${out} ${SRC}/examples/measured/belt-axis.csv RESULT_VARIABLE diff)
+if(NOT diff EQUAL 0)
+  message(FATAL_ERROR "examples/measured/belt-axis.csv differs from what scripts/make_measured_example.py writes")
+endif()
+message(STATUS "examples/measured/belt-axis.csv matches its generator")
