@@ -13,6 +13,8 @@
 
 #include "interruptible.hpp"
 #include "json_convert.hpp"
+#include "polewright/analysis/closed_loop.hpp"
+#include "polewright/analysis/saturated.hpp"
 #include "polewright/jobs/check.hpp"
 #include "polewright/jobs/design.hpp"
 #include "polewright/jobs/export.hpp"
@@ -244,6 +246,69 @@ py::dict traces(const py::object& result, const py::object& rank_arg, const py::
   return out;
 }
 
+// The loop of plant `plant` (0 = nominal) with a limited actuator, simulated from rest.
+py::dict saturated_response(const py::object& spec_arg, const py::object& compensator, const py::object& minimum,
+                            const py::object& maximum, const py::object& rate_limit, const py::object& anti_windup,
+                            const py::object& tracking_time_s, const py::object& reference, const py::object& load,
+                            const py::object& output, const py::object& horizon_s, const py::object& samples,
+                            const py::object& plant_arg) {
+  const pw::Spec spec = parse_spec_argument(spec_arg);
+  pw::Zpk comp;
+  if (!compensator.is_none()) comp = pw::parse_compensator(document_argument(compensator, "compensator"), "$");
+  else if (spec.current) comp = *spec.current;
+  else throw pw::SpecError("$.current", "is missing: give a current compensator or compensator=...");
+  pw::ActuatorLimits lim;
+  auto required = [](const py::object& v, const char* name) {
+    if (v.is_none()) throw pw::SpecError(name, "is required");
+    return *number_argument(v, name);
+  };
+  lim.minimum = required(minimum, "minimum");
+  lim.maximum = required(maximum, "maximum");
+  lim.rate_limit = number_argument(rate_limit, "rate_limit");
+  const std::string aw = py::isinstance<py::str>(anti_windup) ? anti_windup.cast<std::string>() : "";
+  bool known = false;
+  for (pw::AntiWindup a : {pw::AntiWindup::None, pw::AntiWindup::BackCalculation, pw::AntiWindup::Conditional})
+    if (aw == pw::anti_windup_name(a)) {
+      lim.anti_windup = a;
+      known = true;
+    }
+  if (!known)
+    throw pw::SpecError("anti_windup", "is " + py::repr(anti_windup).cast<std::string>() +
+                                           ": expected none, back_calculation or conditional");
+  lim.tracking_time_s = number_argument(tracking_time_s, "tracking_time_s").value_or(0.0);
+  pw::SaturatedInputs in;
+  in.reference = number_argument(reference, "reference").value_or(1.0);
+  in.load = number_argument(load, "load").value_or(0.0);
+  in.output = number_argument(output, "output").value_or(0.0);
+  pw::SaturatedOptions o;
+  o.horizon_s = required(horizon_s, "horizon_s");
+  o.samples = static_cast<int>(whole_argument(samples, "samples", 3, 10000000).value_or(2001));
+  const size_t index = static_cast<size_t>(
+      whole_argument(plant_arg, "plant", 0, static_cast<long long>(spec.plants.size()) - 1).value_or(0));
+  std::string err;
+  if (!lim.IsValid(&err)) throw pw::SpecError("actuator", err);
+  if (!o.IsValid(&err)) throw pw::SpecError("horizon_s", err);
+  pw::SaturatedResponse r;
+  try {
+    py::gil_scoped_release release;
+    const pw::LoopParts parts = pw::make_loop_parts(comp, spec.plants[index], spec.analysis.pade_order);
+    r = pw::simulate_saturated(parts.compensator_tf, parts.plant, lim, in, o);
+  } catch (const std::invalid_argument& e) {
+    throw pw::SpecError("compensator", e.what());
+  }
+  std::vector<double> time(r.y.size());
+  for (size_t k = 0; k < time.size(); ++k) time[k] = static_cast<double>(k) * r.dt;
+  py::dict d;
+  d["time_s"] = array_of(time);
+  d["y"] = array_of(r.y);
+  d["u"] = array_of(r.u);
+  d["v"] = array_of(r.v);
+  d["switch_times_s"] = array_of(r.switch_times_s);
+  d["limited_time_s"] = r.limited_time_s;
+  d["chattering"] = r.chattering;
+  return d;
+}
+
 }  // namespace
 
 }  // namespace pwpy
@@ -296,4 +361,15 @@ PYBIND11_MODULE(polewright, m) {
         "Recompute the traces of the compensator of rank `rank` of a result: numpy arrays per plant "
         "(time_s, y, u of the unit step, each of shape (n,); loop = L(jw), complex, shape (m,)) on "
         "frequency_rad_s (shape (m,)).");
+  m.def("saturated_response", &pwpy::saturated_response, "spec"_a, "compensator"_a = py::none(), py::kw_only(),
+        "minimum"_a = py::none(), "maximum"_a = py::none(), "rate_limit"_a = py::none(), "anti_windup"_a = "none",
+        "tracking_time_s"_a = py::none(), "reference"_a = 1.0, "load"_a = 0.0, "output"_a = 0.0,
+        "horizon_s"_a = py::none(), "samples"_a = 2001, "plant"_a = 0,
+        "Simulate the loop (compensator, default the spec's `current`; plant index `plant`, 0 = nominal, its "
+        "delay as the spec's Pade approximant) from rest with the actuator held within [minimum, maximum] "
+        "(and |du/dt| <= rate_limit), for steps of the reference, a load at the plant input and an output "
+        "disturbance applied at t = 0+. anti_windup: none, back_calculation (with tracking_time_s) or "
+        "conditional; both need one integrator in the compensator. Each mode of the piecewise-linear loop is "
+        "propagated exactly and the switching instants are found by bisection. Returns numpy arrays time_s, "
+        "y, u (applied), v (demanded) of shape (samples,), switch_times_s, limited_time_s and chattering.");
 }

@@ -27,6 +27,7 @@
 #include "polewright/analysis/frequency.hpp"
 #include "polewright/analysis/locus.hpp"
 #include "polewright/analysis/measured_frequency.hpp"
+#include "polewright/analysis/saturated.hpp"
 #include "polewright/analysis/steady_state.hpp"
 #include "polewright/analysis/step.hpp"
 

@@ -1,0 +1,432 @@
+#include "polewright/analysis/saturated.hpp"
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <limits>
+#include <stdexcept>
+
+#include "polewright/model/eigen.hpp"
+#include "polewright/model/polynomial.hpp"
+
+namespace pw {
+
+bool ActuatorLimits::IsValid(std::string* error) const {
+  auto fail = [&](const char* why) {
+    if (error) *error = why;
+    return false;
+  };
+  if (!std::isfinite(minimum) || !std::isfinite(maximum)) return fail("the actuator limits must be finite");
+  if (!(minimum < maximum)) return fail("the actuator minimum must be below its maximum");
+  if (rate_limit && !(std::isfinite(*rate_limit) && *rate_limit > 0.0))
+    return fail("the actuator rate limit must be a positive finite number");
+  if (anti_windup == AntiWindup::BackCalculation && !(std::isfinite(tracking_time_s) && tracking_time_s > 0.0))
+    return fail("back-calculation needs a positive finite tracking time");
+  return true;
+}
+
+bool SaturatedOptions::IsValid(std::string* error) const {
+  auto fail = [&](const char* why) {
+    if (error) *error = why;
+    return false;
+  };
+  if (!(std::isfinite(horizon_s) && horizon_s > 0.0)) return fail("the horizon must be a positive finite time");
+  if (samples < 3) return fail("at least 3 samples are needed");
+  if (max_switches < 1) return fail("max_switches must be at least 1");
+  return true;
+}
+
+std::string anti_windup_name(AntiWindup a) {
+  switch (a) {
+    case AntiWindup::None: return "none";
+    case AntiWindup::BackCalculation: return "back_calculation";
+    case AntiWindup::Conditional: return "conditional";
+  }
+  return "none";
+}
+
+namespace {
+
+// a z + d, an affine function of the loop state.
+struct Affine {
+  RowVec c;
+  double d = 0.0;
+  double at(const Vec& z) const { return c.dot(z) + d; }
+};
+
+Affine constant(int n, double d) { return {RowVec::Zero(n), d}; }
+
+// C(s) = Ki / s + C0(s) for a compensator with exactly one pole at s = 0.
+struct SplitCompensator {
+  StateSpace c0;
+  bool has_integrator = false;
+  double ki = 0.0;
+};
+
+bool is_origin(Complex p, double scale) { return std::abs(p) <= 1e-13 * scale; }
+
+SplitCompensator split_compensator(const Zpk& c, bool split) {
+  if (!c.is_proper()) throw std::invalid_argument("the compensator must be proper");
+  SplitCompensator out;
+  if (!split) {
+    out.c0 = realize(c);
+    return out;
+  }
+  double scale = 1.0;
+  for (const Complex& p : c.poles) scale = std::max(scale, std::abs(p));
+  Roots rest;
+  int at_origin = 0;
+  for (const Complex& p : c.poles) {
+    if (is_origin(p, scale)) ++at_origin;
+    else rest.push_back(p);
+  }
+  if (at_origin != 1)
+    throw std::invalid_argument("anti-windup needs a compensator with exactly one integrator (it has " +
+                                std::to_string(at_origin) + ")");
+  // C = N / (s D): Ki = N(0) / D(0), C0 = (N - Ki D) / (s D), whose numerator vanishes at s = 0.
+  Poly num = poly_from_roots(c.zeros);
+  for (double& x : num) x *= c.gain;
+  const Poly den = poly_from_roots(rest);
+  out.has_integrator = true;
+  out.ki = num.back() / den.back();
+  const size_t m = std::max(num.size(), den.size());
+  Poly diff(m, 0.0);
+  for (size_t i = 0; i < num.size(); ++i) diff[m - num.size() + i] += num[i];
+  for (size_t i = 0; i < den.size(); ++i) diff[m - den.size() + i] -= out.ki * den[i];
+  diff.pop_back();  // the constant term, zero up to rounding: divide by s
+  double big = 0.0;
+  for (double x : diff) big = std::max(big, std::abs(x));
+  for (double& x : diff)
+    if (std::abs(x) <= 1e-14 * big) x = 0.0;
+  const Poly top = poly_trim(diff);
+  Zpk c0;
+  c0.poles = rest;
+  if (top.empty()) {
+    c0.gain = 0.0;  // C = Ki / s exactly
+  } else {
+    c0.gain = top.front();
+    c0.zeros = poly_roots(top);
+  }
+  out.c0 = realize(c0);
+  return out;
+}
+
+// One mode of the loop: z' = A z + b, the signals as affine functions of z, and the functions
+// whose becoming positive ends the mode.
+struct Mode {
+  ActuatorMode kind = ActuatorMode::Linear;
+  bool frozen = false;
+  Mat A;
+  Vec b;
+  Affine u;
+  Affine y;
+  std::vector<Affine> exits;
+  bool have_step = false;  // the exact map over one sample interval, computed on first use
+  Mat step_phi;
+  Vec step_gamma;
+};
+
+class Loop {
+ public:
+  Loop(const Zpk& compensator, const StateSpace& plant, const ActuatorLimits& limits, const SaturatedInputs& in)
+      : lim_(limits), in_(in) {
+    split_ = split_compensator(compensator, limits.anti_windup != AntiWindup::None);
+    g_ = plant;
+    const StateSpace& c = split_.c0;
+    if (c.D != 0.0 && g_.D != 0.0)
+      throw std::invalid_argument("the plant and the compensator both have direct feed-through: the loop through "
+                                  "the actuator limits is algebraic");
+    nc_ = c.states();
+    ii_ = nc_;
+    ig_ = ii_ + (split_.has_integrator ? 1 : 0);
+    ir_ = ig_ + g_.states();
+    n_ = ir_ + (lim_.rate_limit ? 1 : 0);
+    if (n_ + 1 > kMaxAug) throw std::invalid_argument("the loop has too many states for the simulation");
+    // v = C0c xc + xi + D0 e; D0 Dg = 0, so e may be taken without the u term of y.
+    Affine e_free = constant(n_, in_.reference - g_.D * in_.load - in_.output);
+    e_free.c.segment(ig_, g_.states()) = -g_.C;
+    v_ = constant(n_, 0.0);
+    v_.c.segment(0, nc_) = c.C;
+    if (split_.has_integrator) v_.c(ii_) = 1.0;
+    v_.c += c.D * e_free.c;
+    v_.d += c.D * e_free.d;
+    scale_ = std::max({std::abs(lim_.minimum), std::abs(lim_.maximum), 1e-300});
+  }
+
+  int states() const { return n_; }
+  double v(const Vec& z) const { return v_.at(z); }
+
+  Mode& mode(ActuatorMode kind, bool frozen) {
+    const size_t key = static_cast<size_t>(kind) * 2 + (frozen ? 1 : 0);
+    if (!built_[key]) {
+      modes_[key] = build(kind, frozen);
+      built_[key] = true;
+    }
+    return modes_[key];
+  }
+
+  // The mode the loop enters at state z when the actuator's output just before was u_now (with a
+  // rate limit, u cannot jump; without one u_now does not matter). With a rate limit the ramp's
+  // state z(ir) is set to u_now.
+  Mode& choose(Vec& z, double u_now) {
+    const double vz = v(z);
+    ActuatorMode kind;
+    if (lim_.rate_limit) {
+      const double target = std::clamp(vz, lim_.minimum, lim_.maximum);
+      if (std::abs(target - u_now) > 1e-9 * scale_) {
+        kind = target > u_now ? ActuatorMode::RampingUp : ActuatorMode::RampingDown;
+      } else {
+        kind = vz >= lim_.maximum ? ActuatorMode::AtMaximum
+                                  : (vz <= lim_.minimum ? ActuatorMode::AtMinimum : ActuatorMode::Linear);
+        if (kind == ActuatorMode::Linear) {
+          const double vdot = rate_of_v(mode(ActuatorMode::Linear, false)).at(z);
+          if (vdot > *lim_.rate_limit) kind = ActuatorMode::RampingUp;
+          if (vdot < -*lim_.rate_limit) kind = ActuatorMode::RampingDown;
+        }
+      }
+      z(ir_) = u_now;
+    } else {
+      kind = vz > lim_.maximum ? ActuatorMode::AtMaximum
+                               : (vz < lim_.minimum ? ActuatorMode::AtMinimum : ActuatorMode::Linear);
+    }
+    bool frozen = false;
+    if (lim_.anti_windup == AntiWindup::Conditional && kind != ActuatorMode::Linear) {
+      const double push = split_.ki * error_of(mode(kind, false)).at(z);
+      frozen = push * side(kind) > 0.0;
+    }
+    return mode(kind, frozen);
+  }
+
+  // Exact propagation of z over tau in mode m.
+  Vec propagate(Mode& m, const Vec& z, double tau, bool whole_step) {
+    if (whole_step) {
+      if (!m.have_step) {
+        const Mat E = zoh_exponential(m.A, m.b, tau);
+        m.step_phi = E.topLeftCorner(n_, n_);
+        m.step_gamma = E.topRightCorner(n_, 1);
+        m.have_step = true;
+      }
+      return m.step_phi * z + m.step_gamma;
+    }
+    const Mat E = zoh_exponential(m.A, m.b, tau);
+    return E.topLeftCorner(n_, n_) * z + E.topRightCorner(n_, 1);
+  }
+
+ private:
+  // +1 where the limit holds u below v, -1 where it holds u above.
+  static double side(ActuatorMode k) {
+    return (k == ActuatorMode::AtMaximum || k == ActuatorMode::RampingUp) ? 1.0 : -1.0;
+  }
+
+  Affine error_of(const Mode& m) const {
+    Affine e = m.y;
+    e.c = -e.c;
+    e.d = in_.reference - e.d;
+    return e;
+  }
+
+  Affine rate_of_v(const Mode& m) const { return {v_.c * m.A, v_.c.dot(m.b)}; }
+
+  // Adds B * f to the rows from `row` on of (A, b).
+  template <class Col>
+  static void feed(Mode& m, int row, const Col& B, const Affine& f) {
+    const int k = static_cast<int>(B.size());
+    m.A.middleRows(row, k) += B * f.c;
+    m.b.segment(row, k) += B * f.d;
+  }
+
+  Mode build(ActuatorMode kind, bool frozen) const {
+    Mode m;
+    m.kind = kind;
+    m.frozen = frozen;
+    m.A = Mat::Zero(n_, n_);
+    m.b = Vec::Zero(n_);
+    switch (kind) {
+      case ActuatorMode::Linear: m.u = v_; break;
+      case ActuatorMode::AtMaximum: m.u = constant(n_, lim_.maximum); break;
+      case ActuatorMode::AtMinimum: m.u = constant(n_, lim_.minimum); break;
+      default:
+        m.u = constant(n_, 0.0);
+        m.u.c(ir_) = 1.0;
+    }
+    m.y = constant(n_, g_.D * (m.u.d + in_.load) + in_.output);
+    m.y.c = g_.D * m.u.c;
+    m.y.c.segment(ig_, g_.states()) += g_.C;
+    const Affine e = error_of(m);
+    const StateSpace& c = split_.c0;
+    m.A.block(0, 0, nc_, nc_) = c.A;
+    feed(m, 0, c.B, e);
+    if (split_.has_integrator && !frozen) {
+      Affine in = e;
+      in.c *= split_.ki;
+      in.d *= split_.ki;
+      if (lim_.anti_windup == AntiWindup::BackCalculation) {
+        in.c += (m.u.c - v_.c) / lim_.tracking_time_s;
+        in.d += (m.u.d - v_.d) / lim_.tracking_time_s;
+      }
+      m.A.row(ii_) += in.c;
+      m.b(ii_) += in.d;
+    }
+    const int ng = g_.states();
+    m.A.block(ig_, ig_, ng, ng) += g_.A;
+    Affine drive = m.u;
+    drive.d += in_.load;
+    feed(m, ig_, g_.B, drive);
+    if (kind == ActuatorMode::RampingUp) m.b(ir_) = *lim_.rate_limit;
+    if (kind == ActuatorMode::RampingDown) m.b(ir_) = -*lim_.rate_limit;
+
+    auto minus = [](Affine a, const Affine& b) {
+      a.c -= b.c;
+      a.d -= b.d;
+      return a;
+    };
+    const Affine hi = constant(n_, lim_.maximum), lo = constant(n_, lim_.minimum);
+    switch (kind) {
+      case ActuatorMode::Linear:
+        m.exits = {minus(v_, hi), minus(lo, v_)};
+        if (lim_.rate_limit) {
+          const Affine rate = rate_of_v(m);
+          m.exits.push_back(minus(rate, constant(n_, *lim_.rate_limit)));
+          m.exits.push_back(minus(constant(n_, -*lim_.rate_limit), rate));
+        }
+        break;
+      case ActuatorMode::AtMaximum: m.exits = {minus(hi, v_)}; break;
+      case ActuatorMode::AtMinimum: m.exits = {minus(v_, lo)}; break;
+      case ActuatorMode::RampingUp: m.exits = {minus(m.u, v_), minus(m.u, hi)}; break;
+      case ActuatorMode::RampingDown: m.exits = {minus(v_, m.u), minus(lo, m.u)}; break;
+    }
+    if (lim_.anti_windup == AntiWindup::Conditional && kind != ActuatorMode::Linear) {
+      // Frozen while Ki e pushes v further past u; the sign change of Ki e ends either state.
+      Affine push = e;
+      const double s = split_.ki * side(kind) * (frozen ? -1.0 : 1.0);
+      push.c *= s;
+      push.d *= s;
+      m.exits.push_back(push);
+    }
+    return m;
+  }
+
+  ActuatorLimits lim_;
+  SaturatedInputs in_;
+  SplitCompensator split_;
+  StateSpace g_;
+  Affine v_;
+  int nc_ = 0, ii_ = 0, ig_ = 0, ir_ = 0, n_ = 0;
+  double scale_ = 1.0;
+  std::array<Mode, 10> modes_;
+  std::array<bool, 10> built_{};
+};
+
+// The exits that are not already positive at the start of a segment.
+std::vector<int> armed_exits(const Mode& m, const Vec& z) {
+  std::vector<int> armed;
+  for (size_t i = 0; i < m.exits.size(); ++i)
+    if (m.exits[i].at(z) <= 0.0) armed.push_back(static_cast<int>(i));
+  return armed;
+}
+
+bool any_exit(const Mode& m, const std::vector<int>& armed, const Vec& z) {
+  for (int i : armed)
+    if (m.exits[static_cast<size_t>(i)].at(z) > 0.0) return true;
+  return false;
+}
+
+// The largest armed exit function at z: positive once the mode has ended.
+double exit_level(const Mode& m, const std::vector<int>& armed, const Vec& z) {
+  double f = -std::numeric_limits<double>::infinity();
+  for (int i : armed) f = std::max(f, m.exits[static_cast<size_t>(i)].at(z));
+  return f;
+}
+
+}  // namespace
+
+SaturatedResponse simulate_saturated(const Zpk& compensator, const StateSpace& plant, const ActuatorLimits& limits,
+                                     const SaturatedInputs& inputs, const SaturatedOptions& options) {
+  std::string why;
+  if (!limits.IsValid(&why) || !options.IsValid(&why)) throw std::invalid_argument(why);
+  Loop loop(compensator, plant, limits, inputs);
+  const int n = loop.states();
+  SaturatedResponse out;
+  const int N = options.samples;
+  out.dt = options.horizon_s / (N - 1);
+  out.y.reserve(static_cast<size_t>(N));
+  out.u.reserve(static_cast<size_t>(N));
+  out.v.reserve(static_cast<size_t>(N));
+
+  Vec z = Vec::Zero(n);
+  const double u_rest = std::clamp(0.0, limits.minimum, limits.maximum);
+  Mode* m = &loop.choose(z, u_rest);
+  auto record = [&]() {
+    out.y.push_back(m->y.at(z));
+    out.u.push_back(m->u.at(z));
+    out.v.push_back(loop.v(z));
+  };
+  record();
+  const double time_tol = 1e-13 * options.horizon_s;
+  int switches = 0;
+  for (int k = 1; k < N; ++k) {
+    const double t_end = k * out.dt;
+    double t = (k - 1) * out.dt;
+    bool whole = true;
+    while (!out.chattering) {
+      const double tau = whole ? out.dt : t_end - t;
+      if (tau <= 0.0) break;
+      const std::vector<int> armed = armed_exits(*m, z);
+      Vec z_end = loop.propagate(*m, z, tau, whole);
+      if (!any_exit(*m, armed, z_end)) {
+        if (m->kind != ActuatorMode::Linear) out.limited_time_s += tau;
+        z = z_end;
+        break;
+      }
+      // The first instant an armed exit turns positive, bracketed by [lo, hi] with f(lo) <= 0 < f(hi):
+      // regula falsi with the Illinois correction (each trial is an exact propagation), then
+      // bisection should it stall.
+      double lo = 0.0, hi = tau;
+      double f_lo = exit_level(*m, armed, z), f_hi = exit_level(*m, armed, z_end);
+      int side = 0;
+      for (int it = 0; it < 40 && hi - lo > time_tol; ++it) {
+        double mid = (lo * f_hi - hi * f_lo) / (f_hi - f_lo);
+        if (!(mid > lo && mid < hi)) mid = 0.5 * (lo + hi);
+        const double f = exit_level(*m, armed, loop.propagate(*m, z, mid, false));
+        if (f > 0.0) {
+          const double step = hi - mid;  // how far this end moved
+          hi = mid;
+          f_hi = f;
+          if (side == 1) f_lo *= 0.5;
+          side = 1;
+          if (step <= time_tol && hi - time_tol > lo) {  // converged from the right: confirm the bracket
+            const double probe = hi - time_tol;
+            if (!any_exit(*m, armed, loop.propagate(*m, z, probe, false))) lo = probe;
+          }
+        } else {
+          const double step = mid - lo;
+          lo = mid;
+          f_lo = f;
+          if (side == -1) f_hi *= 0.5;
+          side = -1;
+          if (step <= time_tol && lo + time_tol < hi) {  // converged from the left: confirm the bracket
+            const double probe = lo + time_tol;
+            if (any_exit(*m, armed, loop.propagate(*m, z, probe, false))) hi = probe;
+          }
+        }
+      }
+      while (hi - lo > time_tol) {
+        const double mid = 0.5 * (lo + hi);
+        (any_exit(*m, armed, loop.propagate(*m, z, mid, false)) ? hi : lo) = mid;
+      }
+      z = loop.propagate(*m, z, hi, false);
+      if (m->kind != ActuatorMode::Linear) out.limited_time_s += hi;
+      t += hi;
+      whole = false;
+      Mode* next = &loop.choose(z, m->u.at(z));
+      if (next == m) continue;  // a crossing by rounding alone: the same mode goes on
+      m = next;
+      out.switch_times_s.push_back(t);
+      if (++switches >= options.max_switches) out.chattering = true;
+    }
+    record();  // after chattering the state is held
+  }
+  return out;
+}
+
+}  // namespace pw

@@ -1,0 +1,214 @@
+"""polewright.saturated_response: the loop with a limited actuator, against references outside it.
+
+References:
+- scipy.integrate.solve_ivp (DOP853, rtol 1e-11) of the same nonlinear loop written here from
+  the plant's scipy.signal.zpk2ss realisation and the compensator split by hand into Ki / s + C0;
+- closed forms for a first-order plant with a PI held at its upper limit (worked by hand below).
+"""
+import math
+import unittest
+
+import numpy as np
+from scipy import integrate, optimize, signal
+
+import pw_support  # noqa: F401  (sets up the module path check)
+import polewright
+
+# A dosing pump: pump command (0..1) to flow, one lag; a PI in service. Invented demo data.
+DOSING_PUMP = {
+    "name": "dosing pump, command to flow",
+    "plant": {"gain": 3.125, "zeros": [], "poles": [-1.25]},  # 2.5 / (0.8 s + 1) = 3.125 / (s + 1.25)
+    "requirements": {"overshoot_pct": {"max": 10}},
+    "current": {"gain": 1.6, "zeros": [-2], "poles": [0]},  # Kp = 1.6, Ki = 3.2
+}
+
+# A kiln exhaust fan (the module tests' demo plant) with a lead-lag PI: C0 has dynamics of its own.
+KILN_FAN = {
+    "name": "kiln exhaust fan, drive command to fan speed",
+    "plant": {"numerator": [40], "denominator": [0.05, 1.2, 4]},
+    "requirements": {"overshoot_pct": {"max": 10}},
+    "current": {"gain": 3, "zeros": [-3, -8], "poles": [0, -40]},
+}
+
+
+def plant_ss(spec):
+    p = spec["plant"]
+    if "numerator" in p:
+        return signal.tf2ss(p["numerator"], p["denominator"])
+    return signal.zpk2ss(p["zeros"], p["poles"], p["gain"])
+
+
+def split_pi(comp):
+    """C = k prod(s - z) / (s prod(s - p)) as Ki / s + C0(s), C0 as a state space (by partial fractions)."""
+    num = comp["gain"] * np.atleast_1d(np.poly(comp["zeros"]))
+    rest = [p for p in comp["poles"] if p != 0]
+    den = np.atleast_1d(np.poly(rest))
+    ki = np.polyval(num, 0.0) / np.polyval(den, 0.0)
+    m = max(len(num), len(den))
+    diff = np.pad(num, (m - len(num), 0)) - ki * np.pad(den, (m - len(den), 0))
+    c0_num = diff[:-1]  # divided by s
+    if len(rest) == 0:
+        return ki, (np.zeros((0, 0)), np.zeros((0, 1)), np.zeros((1, 0)), np.array([[c0_num[-1]]]))
+    return ki, signal.tf2ss(c0_num, den)
+
+
+def reference_loop(spec, umin, umax, anti_windup="none", tt=None, r=1.0, load=0.0, rate=None, horizon=5.0, n=2001):
+    """solve_ivp of the loop: xc' = Ac xc + Bc e, xi' = Ki e (+ (u - v)/Tt | frozen), xg' = Ag xg + Bg (u + d).
+
+    With a rate limit the actuator is a state driven at +-rate toward sat(v), with a fast tracking
+    gain in between (u' = clip(K (sat(v) - u), -rate, rate), K = 1e5): an ODE form of the ideal limiter.
+    """
+    Ag, Bg, Cg, Dg = plant_ss(spec)
+    ki, (Ac, Bc, Cc, Dc) = split_pi(spec["current"])
+    nc, ng = Ac.shape[0], Ag.shape[0]
+
+    def signals(x):
+        xc, xi, xg = x[:nc], x[nc], x[nc + 1:nc + 1 + ng]
+        y = float(Cg @ xg)
+        e = r - y
+        v = float(Cc @ xc) + xi + float(Dc[0, 0]) * e if nc else xi + float(Dc[0, 0]) * e
+        if rate is None:
+            u = min(max(v, umin), umax)
+        else:
+            u = x[-1]
+        return xc, xg, y, e, v, u
+
+    def rhs(t, x):
+        xc, xg, y, e, v, u = signals(x)
+        dxc = (Ac @ xc + Bc[:, 0] * e) if nc else np.zeros(0)
+        dxi = ki * e
+        limited = abs(u - v) > 1e-12 * max(abs(umin), abs(umax))
+        if anti_windup == "back_calculation":
+            dxi += (u - v) / tt
+        elif anti_windup == "conditional" and limited and ki * e * (v - u) > 0:
+            dxi = 0.0
+        dxg = Ag @ xg + Bg[:, 0] * (u + load)
+        parts = [dxc, [dxi], dxg]
+        if rate is not None:
+            target = min(max(v, umin), umax)
+            parts.append([min(max(1e5 * (target - u), -rate), rate)])
+        return np.concatenate(parts)
+
+    x0 = np.zeros(nc + 1 + ng + (1 if rate is not None else 0))
+    if rate is not None:
+        x0[-1] = min(max(0.0, umin), umax)
+    t = np.linspace(0.0, horizon, n)
+    method = "Radau" if rate is not None else "DOP853"
+    rtol = 1e-9 if rate is not None else 1e-11
+    sol = integrate.solve_ivp(rhs, (0.0, horizon), x0, method=method, t_eval=t, rtol=rtol, atol=1e-13,
+                              max_step=horizon / n * 4)
+    assert sol.success, sol.message
+    y = np.array([signals(sol.y[:, k])[2] for k in range(n)])
+    u = np.array([signals(sol.y[:, k])[5] for k in range(n)])
+    return t, y, u
+
+
+class AgainstSolveIvp(unittest.TestCase):
+    def compare(self, spec, tol, **kw):
+        args = dict(kw)
+        horizon, n = args.pop("horizon", 5.0), args.pop("n", 2001)
+        r = polewright.saturated_response(
+            spec, minimum=args["umin"], maximum=args["umax"], anti_windup=args.get("anti_windup", "none"),
+            tracking_time_s=args.get("tt"), reference=args.get("r", 1.0), load=args.get("load", 0.0),
+            rate_limit=args.get("rate"), horizon_s=horizon, samples=n)
+        t, y, u = reference_loop(spec, horizon=horizon, n=n, **args)
+        np.testing.assert_allclose(r["time_s"], t, rtol=0, atol=1e-12)
+        scale = max(1.0, float(np.max(np.abs(y))))
+        self.assertLess(float(np.max(np.abs(r["y"] - y))), tol * scale)
+        self.assertLess(float(np.max(np.abs(r["u"] - u))), tol * max(abs(args["umin"]), abs(args["umax"])))
+        self.assertGreater(r["limited_time_s"], 0.0)  # the limits did act
+        return r, y
+
+    def test_pi_on_a_lag_without_anti_windup(self):
+        r, _ = self.compare(DOSING_PUMP, 1e-8, umin=0.0, umax=1.0, r=1.5)
+        self.assertGreaterEqual(len(r["switch_times_s"]), 1)
+
+    def test_pi_with_back_calculation(self):
+        self.compare(DOSING_PUMP, 1e-8, umin=0.0, umax=1.0, r=1.5, anti_windup="back_calculation", tt=0.3)
+
+    def test_pi_with_conditional_integration(self):
+        self.compare(DOSING_PUMP, 1e-8, umin=0.0, umax=1.0, r=1.5, anti_windup="conditional")
+
+    def test_lead_lag_pi_on_two_lags_with_a_load_step(self):
+        # Both limits are reached: the reference step drives u to the top, the overshoot of the
+        # demand swings it to the bottom.
+        r, _ = self.compare(KILN_FAN, 1e-8, umin=-0.4, umax=0.6, r=4.0, load=0.1, anti_windup="back_calculation",
+                            tt=0.05, horizon=4.0)
+        self.assertGreater(float(np.max(r["u"])), 0.6 - 1e-12)
+        self.assertLess(float(np.min(r["u"])), -0.4 + 1e-12)
+
+    def test_rate_limited_actuator(self):
+        # The ODE form of the limiter lags v by about dv/dt / 1e5 while it tracks, so agreement is
+        # to about 1e-5 of the limits here (a tighter gain makes the reference stiffer still).
+        r, _ = self.compare(DOSING_PUMP, 1e-4, umin=0.0, umax=1.0, r=1.5, rate=2.0, anti_windup="back_calculation",
+                            tt=0.3)
+        du = np.diff(r["u"]) / (r["time_s"][1] - r["time_s"][0])
+        self.assertLessEqual(float(np.max(np.abs(du))), 2.0 * (1 + 1e-9))
+
+
+class FirstOrderPiByHand(unittest.TestCase):
+    """G = b / (tau s + 1) with b = 2.5, tau = 0.8; C = Kp + Ki / s with Kp = 1.6, Ki = 3.2; u <= 1.
+
+    A step r = 1.5 puts v(0+) = Kp r = 2.4 above the limit, so u = 1 and
+    y(t) = b (1 - exp(-t / tau)) while the limit holds (worked by hand).
+    """
+    b, tau, kp, ki, r, umax = 2.5, 0.8, 1.6, 3.2, 1.5, 1.0
+
+    def simulate(self, aw, tt=None):
+        return polewright.saturated_response(DOSING_PUMP, minimum=0.0, maximum=self.umax, reference=self.r,
+                                             anti_windup=aw, tracking_time_s=tt, horizon_s=8.0, samples=4001)
+
+    def test_conditional_integration_leaves_the_limit_at_kp_e_equal_umax(self):
+        # The integrator is frozen at 0 (Ki e > 0 throughout), so the limit is left when
+        # Kp (r - y) = umax: y = r - umax / Kp, t1 = -tau ln(1 - (r - umax / Kp) / b).
+        t1 = -self.tau * math.log(1 - (self.r - self.umax / self.kp) / self.b)
+        got = self.simulate("conditional")["switch_times_s"]
+        self.assertAlmostEqual(got[0], t1, delta=1e-10)
+
+    def test_windup_leaves_the_limit_when_the_wound_integrator_allows(self):
+        # xi(t) = Ki (r t - b (t - tau (1 - exp(-t / tau)))); the limit is left when
+        # Kp e + xi = umax, a scalar root found here by brentq.
+        b, tau, kp, ki, r = self.b, self.tau, self.kp, self.ki, self.r
+
+        def excess(t):
+            y = b * (1 - math.exp(-t / tau))
+            xi = ki * (r * t - b * (t - tau * (1 - math.exp(-t / tau))))
+            return kp * (r - y) + xi - self.umax
+
+        t1 = optimize.brentq(excess, 1e-6, 5.0, xtol=1e-14)
+        got = self.simulate("none")["switch_times_s"]
+        self.assertAlmostEqual(got[0], t1, delta=1e-10)
+
+    def test_windup_overshoots_more_than_either_anti_windup(self):
+        over = {}
+        for aw, tt in (("none", None), ("back_calculation", 0.2), ("conditional", None)):
+            y = self.simulate(aw, tt)["y"]
+            over[aw] = (float(np.max(y)) - self.r) / self.r * 100
+        # Without the limit the loop is T = 5 (s + 2) / (s^2 + 6.25 s + 10) (by hand), poles
+        # -3.125 +- 0.484j, whose step overshoots by 4.4 % (scipy.signal.step, computed once):
+        # the windup adds far more than that, and either anti-windup takes most of it away.
+        self.assertGreater(over["none"], 10.0)
+        self.assertLess(over["back_calculation"], over["none"] / 2)
+        self.assertLess(over["conditional"], over["none"] / 2)
+
+
+class BadArguments(unittest.TestCase):
+    def test_limits_out_of_order(self):
+        with self.assertRaises(polewright.SpecError) as c:
+            polewright.saturated_response(DOSING_PUMP, minimum=1.0, maximum=0.0, horizon_s=1.0)
+        self.assertEqual(c.exception.path, "actuator")
+
+    def test_anti_windup_needs_one_integrator(self):
+        spec = dict(DOSING_PUMP, current={"gain": 1.0, "zeros": [-2], "poles": [-20]})
+        with self.assertRaises(polewright.SpecError) as c:
+            polewright.saturated_response(spec, minimum=0.0, maximum=1.0, anti_windup="conditional", horizon_s=1.0)
+        self.assertIn("exactly one integrator", str(c.exception))
+
+    def test_unknown_anti_windup(self):
+        with self.assertRaises(polewright.SpecError) as c:
+            polewright.saturated_response(DOSING_PUMP, minimum=0.0, maximum=1.0, anti_windup="clamp", horizon_s=1.0)
+        self.assertEqual(c.exception.path, "anti_windup")
+
+
+if __name__ == "__main__":
+    unittest.main()
