@@ -338,13 +338,17 @@ double exit_level(const Mode& m, const std::vector<int>& armed, const Vec& z) {
   return f;
 }
 
-}  // namespace
+// Where the loop was: the state at every sample and at every switching instant, with the mode
+// it went on in, so that y can be had exactly at any instant between the samples.
+struct Trajectory {
+  Eigen::MatrixXd states;              // n x samples
+  std::vector<Mode*> modes;            // the mode from each sample on
+  std::vector<double> switch_t;        // switching instants, ascending
+  std::vector<Eigen::VectorXd> switch_z;
+  std::vector<Mode*> switch_mode;
+};
 
-SaturatedResponse simulate_saturated(const Zpk& compensator, const StateSpace& plant, const ActuatorLimits& limits,
-                                     const SaturatedInputs& inputs, const SaturatedOptions& options) {
-  std::string why;
-  if (!limits.IsValid(&why) || !options.IsValid(&why)) throw std::invalid_argument(why);
-  Loop loop(compensator, plant, limits, inputs);
+SaturatedResponse run(Loop& loop, const ActuatorLimits& limits, const SaturatedOptions& options, Trajectory* keep) {
   const int n = loop.states();
   SaturatedResponse out;
   const int N = options.samples;
@@ -352,11 +356,19 @@ SaturatedResponse simulate_saturated(const Zpk& compensator, const StateSpace& p
   out.y.reserve(static_cast<size_t>(N));
   out.u.reserve(static_cast<size_t>(N));
   out.v.reserve(static_cast<size_t>(N));
+  if (keep) {
+    keep->states.resize(n, N);
+    keep->modes.reserve(static_cast<size_t>(N));
+  }
 
   Vec z = Vec::Zero(n);
   const double u_rest = std::clamp(0.0, limits.minimum, limits.maximum);
   Mode* m = &loop.choose(z, u_rest);
   auto record = [&]() {
+    if (keep) {
+      keep->states.col(static_cast<Eigen::Index>(out.y.size())) = z;
+      keep->modes.push_back(m);
+    }
     out.y.push_back(m->y.at(z));
     out.u.push_back(m->u.at(z));
     out.v.push_back(loop.v(z));
@@ -422,11 +434,137 @@ SaturatedResponse simulate_saturated(const Zpk& compensator, const StateSpace& p
       if (next == m) continue;  // a crossing by rounding alone: the same mode goes on
       m = next;
       out.switch_times_s.push_back(t);
+      if (keep) {
+        keep->switch_t.push_back(t);
+        keep->switch_z.push_back(Eigen::VectorXd(z));
+        keep->switch_mode.push_back(m);
+      }
       if (++switches >= options.max_switches) out.chattering = true;
     }
     record();  // after chattering the state is held
   }
   return out;
+}
+
+}  // namespace
+
+SaturatedResponse simulate_saturated(const Zpk& compensator, const StateSpace& plant, const ActuatorLimits& limits,
+                                     const SaturatedInputs& inputs, const SaturatedOptions& options) {
+  std::string why;
+  if (!limits.IsValid(&why) || !options.IsValid(&why)) throw std::invalid_argument(why);
+  Loop loop(compensator, plant, limits, inputs);
+  return run(loop, limits, options, nullptr);
+}
+
+SaturatedStepFigures saturated_step_figures(const Zpk& compensator, const StateSpace& plant,
+                                            const ActuatorLimits& limits, const SaturatedInputs& inputs,
+                                            const SaturatedOptions& options, double target, double u_final,
+                                            double band) {
+  std::string why;
+  if (!limits.IsValid(&why) || !options.IsValid(&why)) throw std::invalid_argument(why);
+  Loop loop(compensator, plant, limits, inputs);
+  Trajectory tr;
+  SaturatedStepFigures f;
+  f.response = run(loop, limits, options, &tr);
+  f.target = target;
+  const double u_tol = 1e-9 * std::max({std::abs(limits.minimum), std::abs(limits.maximum), std::abs(u_final)});
+  f.reachable = u_final >= limits.minimum - u_tol && u_final <= limits.maximum + u_tol;
+  const std::vector<double>& y = f.response.y;
+  const int N = static_cast<int>(y.size());
+  const double dt = f.response.dt;
+  // y at any instant: from the last sample or switching instant before it, exactly in its mode.
+  auto y_at = [&](double t) {
+    t = std::clamp(t, 0.0, dt * (N - 1));
+    const int k = std::min(N - 1, static_cast<int>(t / dt));
+    double t0 = k * dt;
+    Vec z = tr.states.col(k);
+    Mode* m = tr.modes[static_cast<size_t>(k)];
+    const auto it = std::upper_bound(tr.switch_t.begin(), tr.switch_t.end(), t);
+    if (it != tr.switch_t.begin()) {
+      const size_t i = static_cast<size_t>(it - tr.switch_t.begin()) - 1;
+      if (tr.switch_t[i] > t0) {
+        t0 = tr.switch_t[i];
+        z = tr.switch_z[i];
+        m = tr.switch_mode[i];
+      }
+    }
+    if (t > t0) z = loop.propagate(*m, z, t - t0, false);
+    return m->y.at(z);
+  };
+  // The largest value of g over [a, b] by golden section (g unimodal there), endpoints included.
+  auto golden_max = [](double a, double b, auto&& g, double* at) {
+    const double r = 0.5 * (std::sqrt(5.0) - 1.0);
+    double c = b - r * (b - a), d = a + r * (b - a), gc = g(c), gd = g(d);
+    for (int it = 0; it < 50 && b - a > 1e-13 * std::max(1.0, b); ++it) {
+      if (gc > gd) {
+        b = d, d = c, gd = gc, c = b - r * (b - a), gc = g(c);
+      } else {
+        a = c, c = d, gc = gd, d = a + r * (b - a), gd = g(d);
+      }
+    }
+    const double t = gc > gd ? c : d;
+    if (at) *at = t;
+    return std::max(gc, gd);
+  };
+  // The instant in [a, b] where g changes sign (g(a), g(b) of opposite signs), by bisection.
+  auto crossing = [](double a, double b, auto&& g) {
+    const bool up = g(a) <= 0.0;
+    for (int it = 0; it < 60 && b - a > 1e-14 * std::max(1.0, b); ++it) {
+      const double c = 0.5 * (a + b);
+      ((g(c) <= 0.0) == up ? a : b) = c;
+    }
+    return 0.5 * (a + b);
+  };
+  if (target == 0.0 || f.response.chattering) return f;
+  const double s = target > 0.0 ? 1.0 : -1.0, T = std::abs(target);
+  auto w = [&](double t) { return s * y_at(t); };
+  auto w_k = [&](int k) { return s * y[static_cast<size_t>(k)]; };
+
+  // Overshoot: the largest sample, refined around the three highest local maxima of the samples.
+  double peak = 0.0;
+  std::vector<std::pair<double, int>> tops;
+  for (int k = 0; k < N; ++k) {
+    peak = std::max(peak, w_k(k));
+    if (k > 0 && k + 1 < N && w_k(k) >= w_k(k - 1) && w_k(k) >= w_k(k + 1)) tops.push_back({w_k(k), k});
+  }
+  std::sort(tops.begin(), tops.end(), [](const auto& a, const auto& b) { return a.first > b.first; });
+  for (size_t i = 0; i < tops.size() && i < 3; ++i) {
+    const int k = tops[i].second;
+    peak = std::max(peak, golden_max((k - 1) * dt, (k + 1) * dt, w, nullptr));
+  }
+  f.overshoot_pct = std::max(0.0, (peak - T) / T * 100.0);
+
+  // Rise time 10 % -> 90 %: the first sample past each level, the crossing refined before it.
+  auto first_past = [&](double level) -> std::optional<double> {
+    for (int k = 1; k < N; ++k)
+      if (w_k(k) >= level) return crossing((k - 1) * dt, k * dt, [&](double t) { return w(t) - level; });
+    return std::nullopt;
+  };
+  const auto t10 = first_past(0.1 * T), t90 = first_past(0.9 * T);
+  if (t10 && t90) f.rise_time_s = *t90 - *t10;
+
+  // Settling: the last instant |y - target| leaves the band, between the samples too.
+  if (!f.reachable) return f;
+  const double b = band * T;
+  auto out_of_band = [&](double t) { return std::abs(y_at(t) - target) - b; };
+  auto e_k = [&](int k) { return std::abs(y[static_cast<size_t>(k)] - target); };
+  int last = -1;
+  for (int k = N - 1; k >= 0; --k)
+    if (e_k(k) > b) {
+      last = k;
+      break;
+    }
+  if (last == N - 1) return f;  // outside the band at the horizon: not settled
+  double ts = last < 0 ? 0.0 : crossing(last * dt, (last + 1) * dt, out_of_band);
+  for (int k = std::max(1, last + 1); k + 1 < N; ++k) {
+    if (!(e_k(k) >= e_k(k - 1) && e_k(k) >= e_k(k + 1) && e_k(k) > 0.5 * b)) continue;
+    double at = 0.0;
+    const double top = golden_max((k - 1) * dt, (k + 1) * dt, [&](double t) { return std::abs(y_at(t) - target); }, &at);
+    if (top > b) ts = crossing(at, (k + 1) * dt, out_of_band);
+  }
+  if (e_k(N - 1) > b) return f;
+  f.settling_time_s = ts;
+  return f;
 }
 
 }  // namespace pw

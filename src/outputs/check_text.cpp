@@ -81,6 +81,13 @@ std::string check_report_text(const CheckReport& r) {
   out += t.render();
   if (r.requirements.controller_gain_at_rad_s)
     out += "  controller_hf_gain is " + r.requirements.label(MetricId::ControllerHighFrequencyGain) + "\n";
+  if (r.requirements.actuator) {
+    out += "  saturated_* are judged on the step simulated with the actuator limits: " + r.requirements.actuator_label() + "\n";
+    for (const LoopEvaluation& e : ev.plants)
+      if (e.saturated && !e.saturated->reachable)
+        out += "  " + e.plant_name + ": the step needs a steady-state u beyond the limits, so y cannot settle at " +
+               fmt_number(e.saturated->target) + "\n";
+  }
 
   out += "\nallowed region for the poles that matter\n";
   if (r.region.derivations.empty()) out += "  (no requirement bounds the region)\n";

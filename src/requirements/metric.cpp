@@ -27,6 +27,12 @@ const std::array<MetricInfo, kMetricCount>& metric_table() {
       {MetricId::OutputIae, "output_iae", "output-step IAE", "", BoundKind::MaxOnly, true, true},
       {MetricId::NoiseEffortPeak, "noise_effort_peak", "peak |C S|", "", BoundKind::MaxOnly, false, true},
       {MetricId::ControllerHighFrequencyGain, "controller_hf_gain", "|C(j inf)|", "", BoundKind::MaxOnly, false, true},
+      {MetricId::SaturatedOvershoot, "saturated_overshoot_pct", "overshoot, actuator limited", "%", BoundKind::MaxOnly,
+       true, true},
+      {MetricId::SaturatedSettlingTime, "saturated_settling_time_s", "settling time, actuator limited", "s",
+       BoundKind::MaxOnly, true, true},
+      {MetricId::SaturatedRiseTime, "saturated_rise_time_s", "rise time 10-90 %, actuator limited", "s",
+       BoundKind::MaxOnly, true, true},
   }};
   return table;
 }

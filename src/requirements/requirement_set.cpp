@@ -23,6 +23,25 @@ std::string RequirementSet::label(MetricId id) const {
   return metric_info(id).label;
 }
 
+std::string RequirementSet::actuator_label() const {
+  if (!actuator) return "";
+  char b[256];
+  std::snprintf(b, sizeof b, "%.6g <= u <= %.6g", actuator->minimum, actuator->maximum);
+  std::string s = b;
+  if (actuator->rate_limit) {
+    std::snprintf(b, sizeof b, ", |du/dt| <= %.6g /s", *actuator->rate_limit);
+    s += b;
+  }
+  if (actuator->anti_windup == AntiWindup::None) s += ", no anti-windup";
+  else if (actuator->anti_windup == AntiWindup::Conditional) s += ", anti-windup conditional (integration stops at the limit)";
+  else {
+    std::snprintf(b, sizeof b, ", anti-windup back_calculation (Tt %.6g s)", actuator->tracking_time_s);
+    s += b;
+  }
+  std::snprintf(b, sizeof b, ", reference step %.6g", reference_step);
+  return s + b;
+}
+
 std::optional<double> RequirementSet::limit(MetricId id, Sense sense) const {
   for (const Requirement& r : items)
     if (r.metric == id && r.sense == sense) return r.limit;

@@ -28,7 +28,8 @@ const char* objective_name(Objective o) {
 
 const std::vector<std::string>& known_keys(const std::string& kind) {
   static const std::map<std::string, std::vector<std::string>> table = {
-      {"spec", {"$schema", "name", "plant", "requirements", "stages", "current", "search", "analysis", "implementation"}},
+      {"spec",
+       {"$schema", "name", "plant", "requirements", "stages", "current", "search", "analysis", "implementation", "actuator"}},
       {"plant", {"numerator", "denominator", "zeros", "poles", "gain", "delay_s", "measured", "measured_loop", "variants"}},
       {"plant_core", {"numerator", "denominator", "zeros", "poles", "gain", "delay_s", "measured", "measured_loop"}},
       {"variant", {"numerator", "denominator", "zeros", "poles", "gain", "delay_s", "measured", "measured_loop", "name"}},
@@ -40,12 +41,13 @@ const std::vector<std::string>& known_keys(const std::string& kind) {
        {"overshoot_pct", "settling_time_s", "rise_time_s", "steady_state_error", "phase_margin_deg", "gain_margin_db",
         "crossover_rad_s", "bandwidth_rad_s", "peak_effort", "peak_sensitivity", "gain_tolerance_pct", "damping_ratio",
         "natural_frequency_rad_s", "delay_margin_s", "load_peak", "load_recovery_s", "load_iae", "output_peak",
-        "output_recovery_s", "output_iae", "noise_effort_peak", "controller_hf_gain", "disturbance_step",
-        "recovery_band_pct"}},
+        "output_recovery_s", "output_iae", "noise_effort_peak", "controller_hf_gain", "saturated_overshoot_pct",
+        "saturated_settling_time_s", "saturated_rise_time_s", "disturbance_step", "recovery_band_pct"}},
       {"stages", {"lead", "lag", "notch", "integrator", "pid", "frequency_range_rad_s"}},
       {"search", {"seed", "keep", "objective", "threads", "max_evaluations", "time_limit_s", "budget_s", "margin_pct"}},
       {"analysis", {"pade_order", "samples", "horizon_s", "residue_share_pct"}},
       {"implementation", implementation_keys()},
+      {"actuator", {"min", "max", "rate_limit", "anti_windup", "tracking_time_s", "reference_step"}},
       {"settling_time_s", {"max", "band_pct"}},
       {"steady_state_error", {"max", "input"}},
       {"controller_hf_gain", {"max", "frequency_rad_s"}},
@@ -66,6 +68,7 @@ const char* table_place(const std::string& kind) {
       {"spec", "at the top level of the spec"}, {"plant", "in $.plant"},
       {"requirements", "in $.requirements"},    {"stages", "in $.stages"},
       {"search", "in $.search"},                {"analysis", "in $.analysis"},
+      {"actuator", "in $.actuator"},
       {"settling_time_s", "in $.requirements.settling_time_s"},
       {"steady_state_error", "in $.requirements.steady_state_error"},
   };
@@ -109,7 +112,8 @@ struct LimitRule {
 
 LimitRule rule_for(MetricId id) {
   switch (id) {
-    case MetricId::Overshoot: return {0.0, true, 100.0, true};
+    case MetricId::Overshoot:
+    case MetricId::SaturatedOvershoot: return {0.0, true, 100.0, true};
     case MetricId::SteadyStateError: return {0.0, false, INFINITY, true};
     case MetricId::PhaseMargin: return {0.0, true, 180.0, true};
     case MetricId::PeakSensitivity: return {1.0, false, INFINITY, true};
@@ -202,6 +206,51 @@ RequirementSet parse_requirements(const json& j, const std::string& path) {
     set.recovery_band = band / 100.0;
   }
   return set;
+}
+
+// $.actuator: the limits of the actuator, its anti-windup and the reference step it is judged on.
+ActuatorLimits parse_actuator(const json& j, const std::string& path, double* reference_step) {
+  expect_known(j, path, "actuator");
+  ActuatorLimits a;
+  const json* mn = member(j, "min");
+  const json* mx = member(j, "max");
+  if (!mn) throw SpecError(key_path(path, "min"), "is missing: the actuator needs its lower limit");
+  if (!mx) throw SpecError(key_path(path, "max"), "is missing: the actuator needs its upper limit");
+  a.minimum = read_number(*mn, key_path(path, "min"));
+  a.maximum = read_number(*mx, key_path(path, "max"));
+  if (!(a.minimum < a.maximum)) throw SpecError(key_path(path, "min"), "must be below max");
+  if (const json* r = member(j, "rate_limit")) {
+    const double v = read_number(*r, key_path(path, "rate_limit"));
+    if (!(v > 0.0)) throw SpecError(key_path(path, "rate_limit"), "must be > 0 (got " + describe(*r) + ")");
+    a.rate_limit = v;
+  }
+  if (const json* w = member(j, "anti_windup")) {
+    const std::string wp = key_path(path, "anti_windup");
+    const std::string name = w->is_string() ? w->get<std::string>() : "";
+    bool known = false;
+    for (AntiWindup m : {AntiWindup::None, AntiWindup::BackCalculation, AntiWindup::Conditional})
+      if (name == anti_windup_name(m)) {
+        a.anti_windup = m;
+        known = true;
+      }
+    if (!known)
+      throw SpecError(wp, "must be \"none\", \"back_calculation\" or \"conditional\" (got " + describe(*w) + ")");
+  }
+  const std::string tp = key_path(path, "tracking_time_s");
+  if (const json* t = member(j, "tracking_time_s")) {
+    if (a.anti_windup != AntiWindup::BackCalculation)
+      throw SpecError(tp, "is used by back_calculation only: set \"anti_windup\": \"back_calculation\" or leave it out");
+    a.tracking_time_s = read_number(*t, tp);
+    if (!(a.tracking_time_s > 0.0)) throw SpecError(tp, "must be > 0 (got " + describe(*t) + ")");
+  } else if (a.anti_windup == AntiWindup::BackCalculation) {
+    throw SpecError(tp, "is missing: back_calculation needs a tracking time (common practice: about the integral time)");
+  }
+  if (const json* s = member(j, "reference_step")) {
+    const double v = read_number(*s, key_path(path, "reference_step"));
+    if (v == 0.0) throw SpecError(key_path(path, "reference_step"), "must not be 0");
+    *reference_step = v;
+  }
+  return a;
 }
 
 StageSettings parse_stages(const json& j, const std::string& path) {
@@ -340,6 +389,12 @@ Spec parse_spec(const json& doc) {
   const json* req = member(doc, "requirements");
   if (!req) throw SpecError("$.requirements", "is missing: a spec needs requirements (an empty object checks nothing)");
   s.requirements = parse_requirements(*req, "$.requirements");
+  if (const json* v = member(doc, "actuator"))
+    s.requirements.actuator = parse_actuator(*v, "$.actuator", &s.requirements.reference_step);
+  for (MetricId id : {MetricId::SaturatedOvershoot, MetricId::SaturatedSettlingTime, MetricId::SaturatedRiseTime})
+    if (s.requirements.has(id) && !s.requirements.actuator)
+      throw SpecError(key_path("$.requirements", metric_info(id).key),
+                      "needs $.actuator: the limits the step is simulated with");
   if (const json* v = member(doc, "stages")) s.stages = parse_stages(*v, "$.stages");
   if (const json* v = member(doc, "search")) s.search = parse_search(*v, "$.search");
   if (const json* v = member(doc, "analysis")) s.analysis = parse_analysis(*v, "$.analysis");

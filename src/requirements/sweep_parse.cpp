@@ -18,7 +18,7 @@ namespace pw {
 
 bool sweep_word_key(const std::string& key) {
   static const char* const words[] = {"name",   "$schema",        "input",          "integrator", "objective",
-                                      "method", "word_length", "file", "frequency_unit", "magnitude_unit"};
+                                      "method", "word_length", "file", "frequency_unit", "magnitude_unit", "anti_windup"};
   for (const char* w : words)
     if (key == w) return true;
   return false;

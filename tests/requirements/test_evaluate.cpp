@@ -263,3 +263,68 @@ TEST_CASE("disturbance metrics scale with the step size; an offset makes recover
   CHECK_FALSE(r.load);
   CHECK_FALSE(r.values[static_cast<size_t>(MetricId::LoadPeak)].known());
 }
+
+TEST_CASE("saturated step figures: a PI held at its limit winds up; the figures equal the linear ones when no limit is met",
+          "[requirements][evaluate][actuator]") {
+  // G = 3.125 / (s + 1.25), C = 1.6 (s + 2) / s, 0 <= u <= 1, reference step 1.5: v(0+) = 2.4 puts u
+  // at the limit. Conditional integration leaves it at t1 = -0.8 ln(1 - (1.5 - 1/1.6) / 2.5), where
+  // y = 1.5 - 1/1.6 (worked by hand; tests/analysis/test_saturated.cpp); without anti-windup the
+  // overshoot is 21.158 % (scipy solve_ivp of the same loop, tests/python/test_saturated.py, to 5e-10).
+  Plant g;
+  g.tf.gain = 3.125;
+  g.tf.poles = {Complex(-1.25, 0)};
+  Zpk pi;
+  pi.gain = 1.6;
+  pi.zeros = {Complex(-2, 0)};
+  pi.poles = {Complex(0, 0)};
+  RequirementSet req;
+  req.items = {{MetricId::SaturatedOvershoot, Sense::AtMost, 10.0}, {MetricId::SaturatedSettlingTime, Sense::AtMost, 4.0},
+               {MetricId::SaturatedRiseTime, Sense::AtMost, 2.0}};
+  ActuatorLimits lim;
+  lim.minimum = 0.0;
+  lim.maximum = 1.0;
+  req.actuator = lim;
+  req.reference_step = 1.5;
+  const Region region = region_from_requirements(req);
+  const LoopEvaluation e = evaluate_loop(pi, g, req, region, AnalysisOptions{});
+  REQUIRE(e.saturated);
+  auto val = [](const LoopEvaluation& x, MetricId id) { return x.values[static_cast<size_t>(id)]; };
+  CHECK(*val(e, MetricId::SaturatedOvershoot).value == Approx(21.158).margin(0.002));
+  CHECK(e.saturated->target == Approx(1.5).epsilon(1e-12));
+  CHECK(e.saturated->reachable);
+  CHECK(val(e, MetricId::SaturatedSettlingTime).value);
+  // Rise 10 % -> 90 % while u = 1: y = 2.5 (1 - e^(-t/0.8)) reaches 0.15 and 1.35 at
+  // t = -0.8 ln(1 - y / 2.5) (by hand), as long as the limit holds past 90 %.
+  const double t10 = -0.8 * std::log(1 - 0.15 / 2.5), t90 = -0.8 * std::log(1 - 1.35 / 2.5);
+  CHECK(*val(e, MetricId::SaturatedRiseTime).value == Approx(t90 - t10).margin(1e-9));
+
+  req.actuator->anti_windup = AntiWindup::Conditional;
+  const LoopEvaluation c = evaluate_loop(pi, g, req, region, AnalysisOptions{});
+  REQUIRE(c.saturated);
+  CHECK(c.saturated->response.switch_times_s.front() == Approx(-0.8 * std::log(1 - (1.5 - 1 / 1.6) / 2.5)).margin(1e-10));
+  CHECK(*val(c, MetricId::SaturatedOvershoot).value < 1.0);
+
+  // Wide limits: nothing saturates, and the figures are the linear step's (exact refinement both).
+  req.items.push_back({MetricId::Overshoot, Sense::AtMost, 10.0});
+  req.items.push_back({MetricId::SettlingTime, Sense::AtMost, 4.0});
+  req.actuator->minimum = -100.0;
+  req.actuator->maximum = 100.0;
+  const LoopEvaluation w = evaluate_loop(pi, g, req, region, AnalysisOptions{});
+  REQUIRE(w.saturated);
+  CHECK(w.saturated->response.switch_times_s.empty());
+  CHECK(*val(w, MetricId::SaturatedOvershoot).value == Approx(*val(w, MetricId::Overshoot).value).margin(1e-9));
+  CHECK(*val(w, MetricId::SaturatedSettlingTime).value == Approx(*val(w, MetricId::SettlingTime).value).margin(1e-9));
+
+  // A target the limits cannot hold: u(inf) = 1.5 / 2.5 = 0.6 > 0.5, so y never settles (infinite).
+  req.actuator->minimum = 0.0;
+  req.actuator->maximum = 0.5;
+  const LoopEvaluation n = evaluate_loop(pi, g, req, region, AnalysisOptions{});
+  REQUIRE(n.saturated);
+  CHECK_FALSE(n.saturated->reachable);
+  CHECK(val(n, MetricId::SaturatedSettlingTime).infinite);
+
+  // Without a saturated_* requirement nothing is simulated.
+  RequirementSet plain;
+  plain.actuator = lim;
+  CHECK_FALSE(evaluate_loop(pi, g, plain, region_from_requirements(plain), AnalysisOptions{}).saturated);
+}

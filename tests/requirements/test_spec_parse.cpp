@@ -226,3 +226,45 @@ TEST_CASE("controller_hf_gain takes a stated frequency, named in its label", "[r
     "requirements": {"controller_hf_gain": {"max": 8, "frequency": 20}}})")),
                     Catch::StartsWith("$.requirements.controller_hf_gain.frequency: unknown key (did you mean \"frequency_rad_s\"?)"));
 }
+
+TEST_CASE("the actuator block: limits, rate, anti-windup and the reference step, each error named",
+          "[requirements][spec_parse][actuator]") {
+  json j = json::parse(kBase);
+  j["actuator"] = {{"min", 0}, {"max", 1}, {"rate_limit", 4}, {"anti_windup", "back_calculation"},
+                   {"tracking_time_s", 0.3}, {"reference_step", 1.5}};
+  j["requirements"]["saturated_overshoot_pct"] = {{"max", 8}};
+  j["requirements"]["saturated_settling_time_s"] = {{"max", 3}};
+  const Spec s = parse_spec(j);
+  REQUIRE(s.requirements.actuator);
+  CHECK(s.requirements.actuator->minimum == 0.0);
+  CHECK(s.requirements.actuator->maximum == 1.0);
+  CHECK(*s.requirements.actuator->rate_limit == 4.0);
+  CHECK(s.requirements.actuator->anti_windup == AntiWindup::BackCalculation);
+  CHECK(s.requirements.actuator->tracking_time_s == 0.3);
+  CHECK(s.requirements.reference_step == 1.5);
+  CHECK(s.requirements.limit(MetricId::SaturatedOvershoot, Sense::AtMost) == 8.0);
+  CHECK(s.requirements.actuator_label() ==
+        "0 <= u <= 1, |du/dt| <= 4 /s, anti-windup back_calculation (Tt 0.3 s), reference step 1.5");
+  // Without the block the saturated figures cannot be judged.
+  CHECK(error_after([](json& k) { k["requirements"]["saturated_rise_time_s"] = {{"max", 1}}; }) ==
+        "$.requirements.saturated_rise_time_s: needs $.actuator: the limits the step is simulated with");
+  CHECK(error_after([](json& k) { k["actuator"] = {{"min", 1}, {"max", 0}}; }) == "$.actuator.min: must be below max");
+  CHECK(error_after([](json& k) { k["actuator"] = {{"max", 1}}; }).find("$.actuator.min: is missing") == 0);
+  CHECK(error_after([](json& k) { k["actuator"] = {{"min", 0}, {"max", 1}, {"anti_windup", "clamp"}}; }) ==
+        "$.actuator.anti_windup: must be \"none\", \"back_calculation\" or \"conditional\" (got \"clamp\")");
+  CHECK(error_after([](json& k) { k["actuator"] = {{"min", 0}, {"max", 1}, {"anti_windup", "back_calculation"}}; })
+            .find("$.actuator.tracking_time_s: is missing") == 0);
+  CHECK(error_after([](json& k) { k["actuator"] = {{"min", 0}, {"max", 1}, {"tracking_time_s", 0.1}}; })
+            .find("$.actuator.tracking_time_s: is used by back_calculation only") == 0);
+  CHECK(error_after([](json& k) { k["actuator"] = {{"min", 0}, {"max", 1}, {"rate_limit", -2}}; }) ==
+        "$.actuator.rate_limit: must be > 0 (got -2)");
+  CHECK(error_after([](json& k) { k["actuator"] = {{"min", 0}, {"max", 1}, {"reference_step", 0}}; }) ==
+        "$.actuator.reference_step: must not be 0");
+  CHECK(error_after([](json& k) { k["actuator"] = {{"min", 0}, {"max", 1}, {"rate", 2}}; }).find("$.actuator.rate: unknown key") == 0);
+  // Not judged on a sampled loop yet, like the other figures computed on request.
+  CHECK(error_after([](json& k) {
+          k["actuator"] = {{"min", 0}, {"max", 1}};
+          k["requirements"]["saturated_overshoot_pct"] = {{"max", 5}};
+          k["implementation"] = {{"sample_time_s", 0.01}};
+        }).find("$.requirements.saturated_overshoot_pct: is not judged on the sampled loop yet") == 0);
+}

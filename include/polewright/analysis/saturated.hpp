@@ -72,6 +72,28 @@ struct SaturatedResponse {
 SaturatedResponse simulate_saturated(const Zpk& compensator, const StateSpace& plant, const ActuatorLimits& limits,
                                      const SaturatedInputs& inputs, const SaturatedOptions& options);
 
+// Step figures of the loop with the limited actuator, judged on the continuous response: the
+// samples locate each event, and the exact propagation in the mode of the moment refines it
+// between them (the peak by golden section around the three highest sampled maxima, the band exit
+// by bisection, after checking every later sampled excursion above half the band).
+//   target: where y settles without limits (the linear loop's y(inf) for this step);
+//   u_final: the linear loop's steady-state u; reachable is false when it lies beyond the limits,
+//     and the settling time is then nullopt (y cannot settle at the target);
+//   band: the settling band as a fraction of |target|.
+struct SaturatedStepFigures {
+  double target = 0.0;
+  bool reachable = true;
+  std::optional<double> overshoot_pct;    // 0 when y never passes the target; nullopt for target 0
+  std::optional<double> settling_time_s;  // nullopt: outside the band at the horizon, or unreachable
+  std::optional<double> rise_time_s;      // 10 % -> 90 % of the target
+  SaturatedResponse response;
+};
+
+SaturatedStepFigures saturated_step_figures(const Zpk& compensator, const StateSpace& plant,
+                                            const ActuatorLimits& limits, const SaturatedInputs& inputs,
+                                            const SaturatedOptions& options, double target, double u_final,
+                                            double band);
+
 std::string anti_windup_name(AntiWindup a);
 
 }  // namespace pw

@@ -13,6 +13,7 @@
 #include "polewright/analysis/closed_loop.hpp"
 #include "polewright/analysis/disturbance.hpp"
 #include "polewright/analysis/frequency.hpp"
+#include "polewright/analysis/saturated.hpp"
 #include "polewright/analysis/steady_state.hpp"
 #include "polewright/analysis/step.hpp"
 #include "polewright/requirements/region.hpp"
@@ -65,6 +66,17 @@ void set_gain_tolerance_metric(MetricValues& v, double tolerance_pct);
 //   (recovery and IAE infinite when the disturbance is not rejected); noise: peak |C S| and |C(j inf)|.
 void set_disturbance_metrics(MetricValues& v, DisturbanceInput where, const DisturbanceMetrics& d, double step);
 void set_noise_metrics(MetricValues& v, const NoiseMetrics& n);
+//   saturated: overshoot, settling and rise time of the step with the actuator limits (settling
+//   infinite when y is outside the band at the horizon or cannot reach the target within the limits).
+void set_saturated_metrics(MetricValues& v, const SaturatedStepFigures& s);
+
+// The step of the loop with the spec's actuator limits (req.actuator, of size req.reference_step),
+// over three times the linear step's horizon (at least 1.5 times a saturated_settling_time_s
+// limit) at the linear step's sample interval (at most 30000 samples). A compensator without an
+// integrator runs without anti-windup (nothing winds up); nullopt when it has more than one and
+// anti-windup is asked for, or when the loop cannot be simulated.
+std::optional<SaturatedStepFigures> saturated_step(const LoopParts& parts, const PoleAnalysis& poles,
+                                                   const StepMetrics& linear, const RequirementSet& req);
 
 struct LoopEvaluation {
   std::string plant_name;
@@ -77,6 +89,7 @@ struct LoopEvaluation {
   GainToleranceResult gain;
   std::optional<DisturbanceMetrics> load, output;  // per unit step, when a requirement asks
   std::optional<NoiseMetrics> noise;
+  std::optional<SaturatedStepFigures> saturated;  // the step with the actuator limits, when asked
   // A measured plant: the frequency figures (margins, crossovers, bandwidth, |S|, |C S|) come from
   // the data, the poles, the step and the rest from the fitted model; `data_notes` says what the
   // measured range cannot show.

@@ -29,8 +29,11 @@ enum class MetricId {
   OutputIae,
   NoiseEffortPeak,
   ControllerHighFrequencyGain,
+  SaturatedOvershoot,
+  SaturatedSettlingTime,
+  SaturatedRiseTime,
 };
-constexpr int kMetricCount = 22;
+constexpr int kMetricCount = 25;
 
 enum class BoundKind { MaxOnly, MinOnly, MinOrMax };
 

@@ -5,6 +5,7 @@
 #include <string>
 #include <vector>
 
+#include "polewright/analysis/saturated.hpp"
 #include "polewright/analysis/steady_state.hpp"
 #include "polewright/requirements/metric.hpp"
 
@@ -29,12 +30,19 @@ struct RequirementSet {
   // controller_hf_gain's "frequency_rad_s": the compensator's gain |C(jw)| at this frequency
   // stands for its high-frequency gain (unset: |C(j inf)|).
   std::optional<double> controller_gain_at_rad_s;
+  // The spec's "actuator": its limits and anti-windup, and the size of the reference step the
+  // saturated_* figures are judged on (the limits make the response depend on it).
+  std::optional<ActuatorLimits> actuator;
+  double reference_step = 1.0;
 
   bool has(MetricId id) const;
   std::optional<double> limit(MetricId id, Sense sense) const;
   // The metric's readable name as this set judges it: the table's label, except "|C(jw)| at
   // w = ... rad/s" for controller_hf_gain with a stated frequency.
   std::string label(MetricId id) const;
+  // One line on the actuator the saturated_* figures are judged with ("" without one):
+  // "0 <= u <= 1, |du/dt| <= 20 /s, anti-windup back_calculation (Tt 0.05 s), reference step 1.5".
+  std::string actuator_label() const;
 };
 
 // A metric's value: a number, +infinity (an unbounded margin, an unbounded error) or missing (the
