@@ -117,11 +117,12 @@ TEST_CASE("prepare_report refuses results it cannot report, naming the field", "
   }
 }
 
-TEST_CASE("report_sections: check has six sections (one drawn only when asked), design adds the candidates", "[outputs][report]") {
-  CHECK(report_sections(JobKind::Check).size() == 6);
+TEST_CASE("report_sections: check has seven sections (two drawn only when asked), design adds the candidates", "[outputs][report]") {
+  CHECK(report_sections(JobKind::Check).size() == 7);
   const auto s = report_sections(JobKind::Design);
-  REQUIRE(s.size() == 7);
+  REQUIRE(s.size() == 8);
   CHECK(s[3].id == "disturbance");
+  CHECK(s[4].id == "actuator");
   CHECK(s.back().id == "candidates");
   CHECK(s.front().id == "summary");
 }
@@ -338,4 +339,36 @@ TEST_CASE("a measured plant's report overlays its points on the fitted loop, ove
   check_page(report_html(d), 8);  // s-plane, step, effort, three frequency plots, Nyquist, delay margin
   // A plant given as a transfer function draws no points.
   CHECK(report_frequency_section(prepare_report(check_result("wafer-stage.json"))).find("measured points") == std::string::npos);
+}
+
+TEST_CASE("actuator section: the limited step of every plant over the linear one, with the limits", "[outputs][report][actuator]") {
+  // No actuator, no section. With one and a saturated_* bound: the nominal trace is the check's
+  // own simulation (its peak is the saturated overshoot figure), u stays within the limits, and
+  // the caption states them. Dosing pump: demo data.
+  CHECK(report_saturated_section(prepare_report(check_result("wafer-stage.json"))).empty());
+  const Spec spec = parse_spec(parse_json_text(R"J({
+    "name": "dosing pump, command to flow (demo data)",
+    "plant": {"gain": 3.125, "poles": [-1.25], "variants": [{"name": "worn pump", "gain": 2.5, "poles": [-1.0]}]},
+    "requirements": {"saturated_overshoot_pct": {"max": 10}, "saturated_settling_time_s": {"max": 4}},
+    "actuator": {"min": 0, "max": 1, "reference_step": 1.5},
+    "current": {"gain": 1.6, "zeros": [-2], "poles": [0]}
+  })J"));
+  const ReportData d = prepare_report(parse_result(check_report_json(run_check(spec, *spec.current))));
+  const LoopEvaluation& nominal = d.designs.front().evaluation.plants.front();
+  REQUIRE(nominal.saturated);
+  const SaturatedResponse& r = nominal.saturated->response;
+  double top = 0.0;
+  for (double y : r.y) top = std::max(top, y);
+  for (double u : r.u) CHECK((u >= 0.0 && u <= 1.0));
+  const MetricValue& os = nominal.values[static_cast<size_t>(MetricId::SaturatedOvershoot)];
+  REQUIRE(os.value);
+  CHECK((top / 1.5 - 1.0) * 100.0 == Approx(*os.value).epsilon(1e-3));  // refined between samples
+  const std::string h = report_saturated_section(d);
+  CHECK(outer_svgs(h).size() == 2);
+  CHECK_THAT(h, Catch::Contains("Output y(t) with the actuator limits"));
+  CHECK_THAT(h, Catch::Contains("0 &lt;= u &lt;= 1, no anti-windup, reference step 1.5"));
+  CHECK_THAT(h, Catch::Contains("worn pump, limited"));
+  CHECK_THAT(h, Catch::Contains("without limits (linear), nominal"));
+  CHECK_THAT(h, Catch::Contains("overshoot limit 10 %"));
+  check_page(report_html(d), 10);  // the eight of a check and the two of the limited step
 }

@@ -124,7 +124,7 @@ TEST_CASE("a retune result without its current compensator is refused, naming th
 
 TEST_CASE("report_sections: retune puts the changes second and the candidates last", "[outputs][report][retune]") {
   const auto s = report_sections(JobKind::Retune);
-  REQUIRE(s.size() == 8);
+  REQUIRE(s.size() == 9);
   CHECK(s[0].id == "summary");
   CHECK(s[1].id == "changes");
   CHECK(s.back().id == "candidates");

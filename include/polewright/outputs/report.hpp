@@ -76,6 +76,9 @@ std::string report_retune_section(const ReportData& d);  // retune: changes and 
 std::string report_nyquist_section(const ReportData& d);  // Nyquist plot and the delay margin
 // The output after a load step and an output step, when a requirement names them (else empty).
 std::string report_disturbance_section(const ReportData& d);
+// The reference step simulated with the spec's actuator limits over the linear one, when a
+// saturated_* requirement names it (else empty).
+std::string report_saturated_section(const ReportData& d);
 // The s-plane view before the equal-aspect widening: the plants' roots, the closed-loop poles that
 // matter (not those out where a dead time's Pade approximant lives), the region corner and the
 // compensator roots near them. Roots outside it are drawn as arrows at the edge with their values.
