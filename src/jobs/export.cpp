@@ -2,6 +2,7 @@
 
 #include "../model/format_text.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <stdexcept>
@@ -229,6 +230,14 @@ ExportReport run_export(const ResultInput& in, int rank, const ExportOptions& o)
     out.discrete = wd.worst;
     out.worst_plant = wd.plant;
     out.continuous = wc.worst;
+    if (metric_info(req.metric).on_request) {
+      out.judged = false;
+      out.worst_plant = wc.plant;
+      if (std::find(r.not_judged.begin(), r.not_judged.end(), metric_info(req.metric).key) == r.not_judged.end())
+        r.not_judged.push_back(metric_info(req.metric).key);
+      r.outcomes.push_back(out);
+      continue;
+    }
     out.met = wd.violation == 0.0 && r.discrete_stable;
     r.all_met = r.all_met && out.met;
     r.outcomes.push_back(out);

@@ -98,6 +98,9 @@ std::string banner(const ExportReport& r, const std::string& file) {
          "] with conditional integration: while the output is clamped and the error drives it further\n"
          " * into the limit, the integrator sections keep their state.\n";
   s += " * Re-verified: " + std::string(r.verified ? (r.all_met ? "the sampled loop meets the requirements" : "the sampled loop does NOT meet the requirements") : "no (no spec)") + "\n";
+  if (r.verified && !r.not_judged.empty())
+    s += " * Not judged on the sampled loop (no sampled evaluation yet): " + std::to_string(r.not_judged.size()) +
+         " requirement(s), judged on the continuous loop only\n";
   s += " *\n * Cautions: " + std::string(kCautions) + "\n */\n";
   return s;
 }

@@ -77,9 +77,11 @@ nlohmann::ordered_json export_json(const ExportReport& r) {
                       {"continuous", metric_value_json(o.continuous)},
                       {"discrete", metric_value_json(o.discrete)},
                       {"met", o.met},
+                      {"judged", o.judged},
                       {"worst_variant", o.worst_plant}});
     }
     rv["requirements"] = rows;
+    rv["not_judged"] = r.not_judged;
     json vars = json::array();
     for (const ExportLoop& L : r.loops) {
       json poles = json::array();

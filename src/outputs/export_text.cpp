@@ -64,8 +64,9 @@ std::string export_text(const ExportReport& r) {
       t.add({info.label,
              std::string(o.requirement.sense == Sense::AtMost ? "<= " : ">= ") + fmt_number(o.requirement.limit) +
                  (*info.unit ? std::string(" ") + info.unit : ""),
-             value_text(o.continuous, o.requirement, info.unit), value_text(o.discrete, o.requirement, info.unit),
-             o.met ? "yes" : "NO",
+             value_text(o.continuous, o.requirement, info.unit),
+             o.judged ? value_text(o.discrete, o.requirement, info.unit) : std::string("-"),
+             o.judged ? (o.met ? "yes" : "NO") : "not judged",
              r.plants[static_cast<size_t>(o.worst_plant)].name});
     }
     out += t.render() + "\n";
@@ -84,7 +85,13 @@ std::string export_text(const ExportReport& r) {
       p.add({z_text(q.z), fmt_number(std::abs(q.z), 6), fmt_number(q.damping, 4), fmt_number(q.natural_frequency, 5),
              fmt_number(q.share, 3) + (q.matters ? "" : " (dipole)")});
     out += p.render() + "\n";
-    out += std::string("verdict: ") + (r.all_met ? "the sampled loop MEETS the requirements" : "the sampled loop does NOT MEET the requirements") + "\n";
+    out += std::string("verdict: ") + (r.all_met ? "the sampled loop MEETS the requirements" : "the sampled loop does NOT MEET the requirements") +
+           (r.not_judged.empty() ? "" : " judged on it") + "\n";
+    if (!r.not_judged.empty()) {
+      std::string keys;
+      for (const std::string& k : r.not_judged) keys += (keys.empty() ? "" : ", ") + k;
+      out += "not judged on the sampled loop (no sampled evaluation yet; the continuous figure is shown): " + keys + "\n";
+    }
   } else {
     out += "verdict: not re-verified (no spec)\n";
   }

@@ -360,3 +360,34 @@ TEST_CASE("a design made at T re-exports at T with the same figures and verdict"
     if (want.value) CHECK(*o.discrete.value == *want.value);
   }
 }
+
+TEST_CASE("export lists the figures without a sampled evaluation as not judged, and its verdict counts the rest",
+          "[export][export_job][actuator]") {
+  // The lead loop with an actuator-limited overshoot bound and a load-step peak: neither has a
+  // sampled-loop evaluation, so they are shown with their continuous value, marked not judged, and
+  // the sampled verdict rests on phase margin and overshoot alone (both met at T = 0.02 s).
+  const json doc = {{"tool", {{"job", "check"}}},
+                    {"spec",
+                     {{"plant", {{"gain", 4}, {"poles", {0, -2}}}},
+                      {"requirements",
+                       {{"phase_margin_deg", {{"min", 45}}}, {"overshoot_pct", {{"max", 25}}},
+                        {"saturated_overshoot_pct", {{"max", 1}}}, {"load_peak", {{"max", 10}}}}},
+                      {"actuator", {{"min", -2}, {"max", 2}}}}},
+                    {"compensator", {{"gain", 4.68}, {"zeros", {-2.9}}, {"poles", {-5.4}}}}};
+  const ExportReport r = run_export(parse_result(doc), 1, at(0.02));
+  REQUIRE(r.outcomes.size() == 4);
+  int judged = 0;
+  for (const ExportOutcome& o : r.outcomes) {
+    const bool on_request = metric_info(o.requirement.metric).on_request;
+    CHECK(o.judged == !on_request);
+    if (on_request) {
+      CHECK(o.continuous.known());   // the continuous figure is shown
+      CHECK_FALSE(o.discrete.known());
+      CHECK_FALSE(o.met);
+    }
+    judged += o.judged;
+  }
+  CHECK(judged == 2);
+  CHECK(r.not_judged == std::vector<std::string>{"load_peak", "saturated_overshoot_pct"});
+  CHECK(r.all_met);  // the judged two are met, and the unjudged do not count either way
+}

@@ -78,6 +78,10 @@ struct ExportOutcome {
   MetricValue discrete;    // worst over the plants
   int worst_plant = 0;
   bool met = false;
+  // False for the figures computed on request (disturbance, noise, actuator-limited step), which
+  // have no sampled-loop evaluation yet: they are shown with their continuous value, and the
+  // verdict says they were not judged on the sampled loop (it does not count them either way).
+  bool judged = true;
 };
 
 struct ExportReport {
@@ -100,6 +104,7 @@ struct ExportReport {
   std::optional<double> crossover_rad_s;  // highest continuous crossover over the plants
   std::vector<std::string> warnings;
   std::vector<std::string> notes;
+  std::vector<std::string> not_judged;  // requirement keys judged on the continuous loop only
 };
 
 // discrete_gain_tolerance and discrete_metric_values (the sampled loop's metric path, shared with
