@@ -257,31 +257,36 @@ py::dict saturated_response(const py::object& spec_arg, const py::object& compen
   if (!compensator.is_none()) comp = pw::parse_compensator(document_argument(compensator, "compensator"), "$");
   else if (spec.current) comp = *spec.current;
   else throw pw::SpecError("$.current", "is missing: give a current compensator or compensator=...");
-  pw::ActuatorLimits lim;
-  auto required = [](const py::object& v, const char* name) {
-    if (v.is_none()) throw pw::SpecError(name, "is required");
-    return *number_argument(v, name);
+  // Unset arguments come from the spec's actuator block (when it has one).
+  const std::optional<pw::ActuatorLimits>& own = spec.requirements.actuator;
+  pw::ActuatorLimits lim = own.value_or(pw::ActuatorLimits{});
+  auto limit = [&](const py::object& v, const char* name, double fallback) {
+    if (v.is_none() && !own) throw pw::SpecError(name, "is required (the spec has no actuator block)");
+    return v.is_none() ? fallback : *number_argument(v, name);
   };
-  lim.minimum = required(minimum, "minimum");
-  lim.maximum = required(maximum, "maximum");
-  lim.rate_limit = number_argument(rate_limit, "rate_limit");
-  const std::string aw = py::isinstance<py::str>(anti_windup) ? anti_windup.cast<std::string>() : "";
-  bool known = false;
-  for (pw::AntiWindup a : {pw::AntiWindup::None, pw::AntiWindup::BackCalculation, pw::AntiWindup::Conditional})
-    if (aw == pw::anti_windup_name(a)) {
-      lim.anti_windup = a;
-      known = true;
-    }
-  if (!known)
-    throw pw::SpecError("anti_windup", "is " + py::repr(anti_windup).cast<std::string>() +
-                                           ": expected none, back_calculation or conditional");
-  lim.tracking_time_s = number_argument(tracking_time_s, "tracking_time_s").value_or(0.0);
+  lim.minimum = limit(minimum, "minimum", lim.minimum);
+  lim.maximum = limit(maximum, "maximum", lim.maximum);
+  if (!rate_limit.is_none()) lim.rate_limit = number_argument(rate_limit, "rate_limit");
+  if (!anti_windup.is_none()) {
+    const std::string aw = py::isinstance<py::str>(anti_windup) ? anti_windup.cast<std::string>() : "";
+    bool known = false;
+    for (pw::AntiWindup a : {pw::AntiWindup::None, pw::AntiWindup::BackCalculation, pw::AntiWindup::Conditional})
+      if (aw == pw::anti_windup_name(a)) {
+        lim.anti_windup = a;
+        known = true;
+      }
+    if (!known)
+      throw pw::SpecError("anti_windup", "is " + py::repr(anti_windup).cast<std::string>() +
+                                             ": expected none, back_calculation or conditional");
+  }
+  if (auto tt = number_argument(tracking_time_s, "tracking_time_s")) lim.tracking_time_s = *tt;
   pw::SaturatedInputs in;
-  in.reference = number_argument(reference, "reference").value_or(1.0);
+  in.reference = number_argument(reference, "reference").value_or(spec.requirements.reference_step);
   in.load = number_argument(load, "load").value_or(0.0);
   in.output = number_argument(output, "output").value_or(0.0);
   pw::SaturatedOptions o;
-  o.horizon_s = required(horizon_s, "horizon_s");
+  if (horizon_s.is_none()) throw pw::SpecError("horizon_s", "is required");
+  o.horizon_s = *number_argument(horizon_s, "horizon_s");
   o.samples = static_cast<int>(whole_argument(samples, "samples", 3, 10000000).value_or(2001));
   const size_t index = static_cast<size_t>(
       whole_argument(plant_arg, "plant", 0, static_cast<long long>(spec.plants.size()) - 1).value_or(0));
@@ -362,11 +367,13 @@ PYBIND11_MODULE(polewright, m) {
         "(time_s, y, u of the unit step, each of shape (n,); loop = L(jw), complex, shape (m,)) on "
         "frequency_rad_s (shape (m,)).");
   m.def("saturated_response", &pwpy::saturated_response, "spec"_a, "compensator"_a = py::none(), py::kw_only(),
-        "minimum"_a = py::none(), "maximum"_a = py::none(), "rate_limit"_a = py::none(), "anti_windup"_a = "none",
-        "tracking_time_s"_a = py::none(), "reference"_a = 1.0, "load"_a = 0.0, "output"_a = 0.0,
+        "minimum"_a = py::none(), "maximum"_a = py::none(), "rate_limit"_a = py::none(), "anti_windup"_a = py::none(),
+        "tracking_time_s"_a = py::none(), "reference"_a = py::none(), "load"_a = 0.0, "output"_a = 0.0,
         "horizon_s"_a = py::none(), "samples"_a = 2001, "plant"_a = 0,
         "Simulate the loop (compensator, default the spec's `current`; plant index `plant`, 0 = nominal, its "
         "delay as the spec's Pade approximant) from rest with the actuator held within [minimum, maximum] "
+        "(arguments left at None come from the spec's `actuator` block, reference from its reference_step; "
+        "without the block minimum and maximum are required, anti_windup defaults to none, reference to 1) "
         "(and |du/dt| <= rate_limit), for steps of the reference, a load at the plant input and an output "
         "disturbance applied at t = 0+. anti_windup: none, back_calculation (with tracking_time_s) or "
         "conditional; both need one integrator in the compensator. Each mode of the piecewise-linear loop is "

@@ -192,6 +192,25 @@ class FirstOrderPiByHand(unittest.TestCase):
         self.assertLess(over["conditional"], over["none"] / 2)
 
 
+class SpecActuatorBlock(unittest.TestCase):
+    def test_arguments_left_out_come_from_the_spec(self):
+        spec = dict(DOSING_PUMP, actuator={"min": 0, "max": 1, "anti_windup": "back_calculation",
+                                           "tracking_time_s": 0.3, "reference_step": 1.5})
+        own = polewright.saturated_response(spec, horizon_s=5.0)
+        given = polewright.saturated_response(DOSING_PUMP, minimum=0.0, maximum=1.0, anti_windup="back_calculation",
+                                              tracking_time_s=0.3, reference=1.5, horizon_s=5.0)
+        np.testing.assert_array_equal(own["y"], given["y"])
+        np.testing.assert_array_equal(own["u"], given["u"])
+        # An argument overrides the block.
+        wider = polewright.saturated_response(spec, maximum=3.0, horizon_s=5.0)
+        self.assertEqual(wider["limited_time_s"], 0.0)  # u(0+) = 2.4 is within [0, 3]
+
+    def test_without_a_block_the_limits_are_required(self):
+        with self.assertRaises(polewright.SpecError) as c:
+            polewright.saturated_response(DOSING_PUMP, horizon_s=1.0)
+        self.assertEqual(c.exception.path, "minimum")
+
+
 class BadArguments(unittest.TestCase):
     def test_limits_out_of_order(self):
         with self.assertRaises(polewright.SpecError) as c:
@@ -208,6 +227,44 @@ class BadArguments(unittest.TestCase):
         with self.assertRaises(polewright.SpecError) as c:
             polewright.saturated_response(DOSING_PUMP, minimum=0.0, maximum=1.0, anti_windup="clamp", horizon_s=1.0)
         self.assertEqual(c.exception.path, "anti_windup")
+
+
+class CheckVerdictFigures(unittest.TestCase):
+    """polewright.check judges saturated_* on the same simulation: its figures against ones taken
+    from a dense solve_ivp solution of the loop (overshoot from the peak, settling from the last
+    exit from the 2 % band, rise time from the 10 % and 90 % crossings, all by brentq on the
+    dense output)."""
+
+    def figures_by_scipy(self, spec, umin, umax, r, anti_windup="none", tt=None, horizon=12.0):
+        t, y, _ = reference_loop(spec, umin, umax, anti_windup=anti_windup, tt=tt, r=r, horizon=horizon, n=24001)
+        k = int(np.argmax(y))
+        # The peak refined on a parabola through the three samples around it (dt = 5e-4 s).
+        a, b, c = y[k - 1], y[k], y[k + 1]
+        peak = b + 0.125 * (a - c) ** 2 / (a - 2 * b + c) * -1 if (a - 2 * b + c) != 0 else b
+        overshoot = (peak - r) / r * 100
+        out = np.abs(y - r) > 0.02 * r
+        last = int(np.nonzero(out)[0][-1])
+        frac = (np.abs(y[last] - r) - 0.02 * r) / (np.abs(y[last] - r) - np.abs(y[last + 1] - r))
+        settling = t[last] + frac * (t[1] - t[0])
+        def cross(level):
+            i = int(np.nonzero(y >= level)[0][0])
+            return t[i - 1] + (level - y[i - 1]) / (y[i] - y[i - 1]) * (t[1] - t[0])
+        return overshoot, settling, cross(0.9 * r) - cross(0.1 * r)
+
+    def test_pump_with_and_without_anti_windup(self):
+        for aw, tt in (("none", None), ("back_calculation", 0.3), ("conditional", None)):
+            spec = dict(DOSING_PUMP)
+            spec["requirements"] = {"saturated_overshoot_pct": {"max": 50}, "saturated_settling_time_s": {"max": 6},
+                                    "saturated_rise_time_s": {"max": 3}}
+            spec["actuator"] = {"min": 0, "max": 1, "anti_windup": aw, "reference_step": 1.5}
+            if tt:
+                spec["actuator"]["tracking_time_s"] = tt
+            metrics = polewright.check(spec)["worst"]["metrics"]
+            os_, ts, tr = self.figures_by_scipy(DOSING_PUMP, 0.0, 1.0, 1.5, aw, tt)
+            with self.subTest(anti_windup=aw):
+                self.assertAlmostEqual(metrics["saturated_overshoot_pct"], os_, delta=1e-4)
+                self.assertAlmostEqual(metrics["saturated_settling_time_s"], ts, delta=2e-5)
+                self.assertAlmostEqual(metrics["saturated_rise_time_s"], tr, delta=2e-6)
 
 
 if __name__ == "__main__":
