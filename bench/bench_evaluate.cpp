@@ -43,6 +43,9 @@ int bench_evaluate(int argc, char** argv) {
   bool disturbance = false;
   for (int i = 1; i < argc; ++i)
     if (!std::strcmp(argv[i], "--disturbance")) disturbance = true;
+  double actuator = 0.0;  // --actuator F: limits |u| <= F and the saturated_* requirements
+  for (int i = 1; i + 1 < argc; ++i)
+    if (!std::strcmp(argv[i], "--actuator")) actuator = std::atof(argv[i + 1]);
   for (int i = 1; i + 1 < argc; i += 2) {
     if (!std::strcmp(argv[i], "--seconds")) seconds = std::atof(argv[i + 1]);
     if (!std::strcmp(argv[i], "--count")) count = std::atoll(argv[i + 1]);
@@ -64,6 +67,13 @@ int bench_evaluate(int argc, char** argv) {
     req.items.insert(req.items.end(), {{MetricId::LoadPeak, Sense::AtMost, 2e-4}, {MetricId::LoadRecovery, Sense::AtMost, 1.0},
                                        {MetricId::LoadIae, Sense::AtMost, 1e-4}, {MetricId::OutputIae, Sense::AtMost, 0.1},
                                        {MetricId::NoiseEffortPeak, Sense::AtMost, 30}});
+  if (actuator > 0.0) {
+    ActuatorLimits lim;
+    lim.minimum = -actuator;
+    lim.maximum = actuator;
+    req.actuator = lim;
+    req.items.insert(req.items.end(), {{MetricId::SaturatedOvershoot, Sense::AtMost, 10}, {MetricId::SaturatedSettlingTime, Sense::AtMost, 1.0}});
+  }
   const Region region = region_from_requirements(req);
   AnalysisOptions opt = AnalysisOptions::Screening(AnalysisOptions{});
   opt.step.horizon_s = 3.0;
@@ -110,7 +120,7 @@ int bench_evaluate(int argc, char** argv) {
         bool all = e.stable;
         for (const Requirement& q : req.items) all = all && requirement_met(q, e.values[static_cast<size_t>(q.metric)]);
         r.met += all;
-        r.simulated += e.load.has_value();
+        r.simulated += e.load.has_value() || e.saturated.has_value();
         if (e.values[0].value) r.checksum += *e.values[0].value;
       }
       r.elapsed = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
@@ -120,10 +130,12 @@ int bench_evaluate(int argc, char** argv) {
   std::printf("workload: 180000/(s(s+8)(s^2+2.4s+3600)) with random lead + notch compensators (seed %u), %s path\n",
               seed, full ? "full-accuracy (check)" : "screening");
   if (disturbance) std::printf("with the disturbance and noise requirements\n");
+  if (actuator > 0.0) std::printf("with saturated_overshoot_pct and saturated_settling_time_s, |u| <= %g\n", actuator);
   const Run c = run(false);
   std::printf("evaluations: %lld in %.2f s on one thread; stable %lld, meeting all %lld (checksum %.6g)\n", c.n, c.elapsed,
               c.stable, c.met, c.checksum);
-  if (disturbance) std::printf("disturbance steps simulated for %lld evaluations (the rest screened out)\n", c.simulated);
+  if (disturbance || actuator > 0.0)
+    std::printf("disturbance or limited steps simulated for %lld evaluations (the rest screened out)\n", c.simulated);
   std::printf("evaluations per second: %.0f\n", c.n / c.elapsed);
   if (sample_time > 0.0) {
     const Run d = run(true);
