@@ -85,6 +85,33 @@ std::vector<PlantLimit> plant_limits(const std::vector<Plant>& plants, const Req
         out.push_back(l);
       }
     }
+    // The actuator's range: a loop with integral action holds y = r only with u = r / G(0)
+    // (final-value theorem), whatever the compensator; beyond the limits y cannot settle there.
+    const bool integral = stages.integrator == IntegratorChoice::On ||
+                          (req.limit(MetricId::SteadyStateError, Sense::AtMost) == 0.0 && req.error_signal == TestSignal::Step);
+    const std::optional<MetricId> limited =
+        req.has(MetricId::SaturatedSettlingTime)
+            ? std::optional<MetricId>(MetricId::SaturatedSettlingTime)
+            : (req.has(MetricId::SaturatedOvershoot) ? std::optional<MetricId>(MetricId::SaturatedOvershoot)
+                                                     : (req.has(MetricId::SaturatedRiseTime)
+                                                            ? std::optional<MetricId>(MetricId::SaturatedRiseTime)
+                                                            : std::nullopt));
+    if (req.actuator && limited && integral && zpk_integrators(p.tf) == 0) {
+      const double g0 = p.tf.evaluate(Complex(0.0, 0.0)).real();
+      if (std::isfinite(g0) && g0 != 0.0) {
+        const double u = req.reference_step / g0;
+        const bool above = u > req.actuator->maximum, below = u < req.actuator->minimum;
+        if (above || below) {
+          PlantLimit l{"actuator_range", p.name, u, std::nullopt, std::nullopt, true, metric_info(*limited).key, ""};
+          l.message = "the reference step of " + fmt(req.reference_step) + " needs u = " + fmt(u) +
+                      " in steady state (the step over G(0) = " + fmt(g0) + "), " +
+                      (above ? "above the actuator maximum " + fmt(req.actuator->maximum)
+                             : "below the actuator minimum " + fmt(req.actuator->minimum)) +
+                      ": no compensator settles y there";
+          out.push_back(l);
+        }
+      }
+    }
     if (const std::optional<MetricId> m = compensator_integrator_driver(req)) {
       // A load step at the plant input leaves y = d / C(0) for a compensator without an
       // integrator, whatever the plant's own integrators (final-value theorem on G S).

@@ -69,3 +69,47 @@ TEST_CASE("a load-recovery bound needs the compensator's own integrator, even on
   output.items = {{MetricId::OutputRecovery, Sense::AtMost, 2.0}};  // any loop integrator rejects it
   CHECK_FALSE(compensator_integrator_driver(output));
 }
+
+TEST_CASE("the actuator's range: a reference step needing u = r / G(0) beyond the limits binds", "[synthesis][limits][actuator]") {
+  // With integral action y -> r needs u -> r / G(0) (final-value theorem, by hand):
+  // G = 3.125 / (s + 1.25) has G(0) = 2.5, so a step of 1.5 needs u = 0.6.
+  Plant pump;
+  pump.name = "pump";
+  pump.tf.gain = 3.125;
+  pump.tf.poles = {Complex(-1.25, 0)};
+  RequirementSet req;
+  req.items = {{MetricId::SteadyStateError, Sense::AtMost, 0.0}, {MetricId::SaturatedSettlingTime, Sense::AtMost, 3.0}};
+  ActuatorLimits lim;
+  lim.minimum = 0.0;
+  lim.maximum = 0.5;
+  req.actuator = lim;
+  req.reference_step = 1.5;
+  StageSettings stages;
+  stages.integrator = IntegratorChoice::On;
+  const Region region = region_from_requirements(req);
+  auto actuator_limit = [&](const std::vector<PlantLimit>& l) -> const PlantLimit* {
+    for (const PlantLimit& x : l)
+      if (x.kind == "actuator_range") return &x;
+    return nullptr;
+  };
+  const std::vector<PlantLimit> l = plant_limits({pump}, req, region, stages);
+  const PlantLimit* a = actuator_limit(l);
+  REQUIRE(a);
+  CHECK(a->at == Approx(0.6).epsilon(1e-12));
+  CHECK(a->binding);
+  CHECK(a->requirement == "saturated_settling_time_s");
+  CHECK_THAT(a->message, Catch::Contains("above the actuator maximum 0.5"));
+  // A negative step needs u = -0.6, below the minimum 0.
+  req.reference_step = -1.5;
+  const std::vector<PlantLimit> neg = plant_limits({pump}, req, region, stages);
+  REQUIRE(actuator_limit(neg));
+  CHECK_THAT(actuator_limit(neg)->message, Catch::Contains("below the actuator minimum 0"));
+  // Within the limits, or on a plant with an integrator (u -> 0), nothing is said.
+  req.reference_step = 1.0;  // u = 0.4
+  CHECK_FALSE(actuator_limit(plant_limits({pump}, req, region, stages)));
+  req.reference_step = 1.5;
+  Plant motor;
+  motor.tf.gain = 4;
+  motor.tf.poles = {Complex(0, 0), Complex(-2, 0)};
+  CHECK_FALSE(actuator_limit(plant_limits({motor}, req, region, stages)));
+}

@@ -12,9 +12,9 @@
 namespace pw {
 
 struct PlantLimit {
-  std::string kind;        // "rhp_zero", "unstable_pole", "dead_time", "integrators"
+  std::string kind;        // "rhp_zero", "unstable_pole", "dead_time", "integrators", "actuator_range"
   std::string plant;       // which plant
-  double at = 0.0;         // the zero, pole (rad/s) or dead time (s); the integrators needed
+  double at = 0.0;         // the zero, pole (rad/s) or dead time (s); the integrators needed; the steady-state u
   std::optional<double> max_crossover_rad_s;
   std::optional<double> min_crossover_rad_s;
   bool binding = false;    // the requirements ask for more than the limit allows
