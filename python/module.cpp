@@ -250,8 +250,8 @@ py::dict traces(const py::object& result, const py::object& rank_arg, const py::
 py::dict saturated_response(const py::object& spec_arg, const py::object& compensator, const py::object& minimum,
                             const py::object& maximum, const py::object& rate_limit, const py::object& anti_windup,
                             const py::object& tracking_time_s, const py::object& reference, const py::object& load,
-                            const py::object& output, const py::object& horizon_s, const py::object& samples,
-                            const py::object& plant_arg) {
+                            const py::object& output, const py::object& initial_reference,
+                            const py::object& horizon_s, const py::object& samples, const py::object& plant_arg) {
   const pw::Spec spec = parse_spec_argument(spec_arg);
   pw::Zpk comp;
   if (!compensator.is_none()) comp = pw::parse_compensator(document_argument(compensator, "compensator"), "$");
@@ -284,6 +284,7 @@ py::dict saturated_response(const py::object& spec_arg, const py::object& compen
   in.reference = number_argument(reference, "reference").value_or(spec.requirements.reference_step);
   in.load = number_argument(load, "load").value_or(0.0);
   in.output = number_argument(output, "output").value_or(0.0);
+  in.initial_reference = number_argument(initial_reference, "initial_reference").value_or(0.0);
   pw::SaturatedOptions o;
   if (horizon_s.is_none()) throw pw::SpecError("horizon_s", "is required");
   o.horizon_s = *number_argument(horizon_s, "horizon_s");
@@ -369,9 +370,10 @@ PYBIND11_MODULE(polewright, m) {
   m.def("saturated_response", &pwpy::saturated_response, "spec"_a, "compensator"_a = py::none(), py::kw_only(),
         "minimum"_a = py::none(), "maximum"_a = py::none(), "rate_limit"_a = py::none(), "anti_windup"_a = py::none(),
         "tracking_time_s"_a = py::none(), "reference"_a = py::none(), "load"_a = 0.0, "output"_a = 0.0,
-        "horizon_s"_a = py::none(), "samples"_a = 2001, "plant"_a = 0,
+        "initial_reference"_a = 0.0, "horizon_s"_a = py::none(), "samples"_a = 2001, "plant"_a = 0,
         "Simulate the loop (compensator, default the spec's `current`; plant index `plant`, 0 = nominal, its "
-        "delay as the spec's Pade approximant) from rest with the actuator held within [minimum, maximum] "
+        "delay as the spec's Pade approximant) from rest (at the equilibrium it holds with the constant "
+        "reference initial_reference, default 0: all states zero) with the actuator held within [minimum, maximum] "
         "(arguments left at None come from the spec's `actuator` block, reference from its reference_step; "
         "without the block minimum and maximum are required, anti_windup defaults to none, reference to 1) "
         "(and |du/dt| <= rate_limit), for steps of the reference, a load at the plant input and an output "

@@ -63,8 +63,6 @@ struct SplitCompensator {
   double ki = 0.0;
 };
 
-bool is_origin(Complex p, double scale) { return std::abs(p) <= 1e-13 * scale; }
-
 SplitCompensator split_compensator(const Zpk& c, bool split) {
   if (!c.is_proper()) throw std::invalid_argument("the compensator must be proper");
   SplitCompensator out;
@@ -72,17 +70,17 @@ SplitCompensator split_compensator(const Zpk& c, bool split) {
     out.c0 = realize(c);
     return out;
   }
-  double scale = 1.0;
-  for (const Complex& p : c.poles) scale = std::max(scale, std::abs(p));
+  // The origin as zpk_integrators sees it (a zero there would cancel the integrator's action).
+  const double tol = zpk_origin_tolerance(c);
   Roots rest;
   int at_origin = 0;
   for (const Complex& p : c.poles) {
-    if (is_origin(p, scale)) ++at_origin;
+    if (std::abs(p) <= tol) ++at_origin;
     else rest.push_back(p);
   }
-  if (at_origin != 1)
+  if (at_origin != 1 || zpk_integrators(c) != 1)
     throw std::invalid_argument("anti-windup needs a compensator with exactly one integrator (it has " +
-                                std::to_string(at_origin) + ")");
+                                std::to_string(zpk_integrators(c)) + ")");
   // C = N / (s D): Ki = N(0) / D(0), C0 = (N - Ki D) / (s D), whose numerator vanishes at s = 0.
   Poly num = poly_from_roots(c.zeros);
   for (double& x : num) x *= c.gain;
@@ -116,6 +114,10 @@ SplitCompensator split_compensator(const Zpk& c, bool split) {
 struct Mode {
   ActuatorMode kind = ActuatorMode::Linear;
   bool frozen = false;
+  // Conditional integration at a limit where freezing the integrator would take v back inside
+  // and integrating would take it further out: v slides along the limit, the integrator moving
+  // at the rate that holds it there (between frozen and integrating: the Filippov solution).
+  bool sliding = false;
   Mat A;
   Vec b;
   Affine u;
@@ -156,10 +158,10 @@ class Loop {
   int states() const { return n_; }
   double v(const Vec& z) const { return v_.at(z); }
 
-  Mode& mode(ActuatorMode kind, bool frozen) {
-    const size_t key = static_cast<size_t>(kind) * 2 + (frozen ? 1 : 0);
+  Mode& mode(ActuatorMode kind, bool frozen, bool sliding = false) {
+    const size_t key = static_cast<size_t>(kind) * 3 + (sliding ? 2 : (frozen ? 1 : 0));
     if (!built_[key]) {
-      modes_[key] = build(kind, frozen);
+      modes_[key] = build(kind, frozen, sliding);
       built_[key] = true;
     }
     return modes_[key];
@@ -188,13 +190,34 @@ class Loop {
     } else {
       kind = vz > lim_.maximum ? ActuatorMode::AtMaximum
                                : (vz < lim_.minimum ? ActuatorMode::AtMinimum : ActuatorMode::Linear);
+      // On a limit (to rounding, as after a located switch): where v goes next decides.
+      const double tol = 1e-12 * scale_;
+      const bool at_hi = std::abs(vz - lim_.maximum) <= tol, at_lo = std::abs(vz - lim_.minimum) <= tol;
+      if (at_hi || at_lo) {
+        const double vdot = rate_of_v(mode(ActuatorMode::Linear, false)).at(z);
+        kind = at_hi ? (vdot > 0.0 ? ActuatorMode::AtMaximum : ActuatorMode::Linear)
+                     : (vdot < 0.0 ? ActuatorMode::AtMinimum : ActuatorMode::Linear);
+      }
     }
-    bool frozen = false;
-    if (lim_.anti_windup == AntiWindup::Conditional && kind != ActuatorMode::Linear) {
+    bool frozen = false, sliding = false;
+    if (lim_.anti_windup == AntiWindup::Conditional && (kind == ActuatorMode::AtMaximum || kind == ActuatorMode::AtMinimum)) {
       const double push = split_.ki * error_of(mode(kind, false)).at(z);
       frozen = push * side(kind) > 0.0;
+      // On the limit, frozen, v would turn back inside at once (and integrating it would go out
+      // again): slide. Beyond the limit a frozen v just returns toward it.
+      const double limit = kind == ActuatorMode::AtMaximum ? lim_.maximum : lim_.minimum;
+      if (frozen && std::abs(vz - limit) <= 1e-12 * scale_ && rate_of_v(mode(kind, true)).at(z) * side(kind) < 0.0)
+        sliding = true;
     }
-    return mode(kind, frozen);
+    return mode(kind, frozen, sliding);
+  }
+
+  // The mode after a slide along a limit ends by its exit `exit` (0: freezing alone keeps v beyond
+  // the limit; 1: integrating brings it back inside). Decided by the exit, not by the signs of the
+  // rates at z, which are zero to rounding there.
+  Mode& leave_slide(const Mode& m, int exit, Vec& z) {
+    if (lim_.rate_limit) z(ir_) = m.u.at(z);
+    return exit == 0 ? mode(m.kind, true) : mode(ActuatorMode::Linear, false);
   }
 
   // Exact propagation of z over tau in mode m.
@@ -235,10 +258,12 @@ class Loop {
     m.b.segment(row, k) += B * f.d;
   }
 
-  Mode build(ActuatorMode kind, bool frozen) const {
+  Mode build(ActuatorMode kind, bool frozen, bool sliding) const {
     Mode m;
     m.kind = kind;
-    m.frozen = frozen;
+    m.frozen = frozen || sliding;
+    m.sliding = sliding;
+    frozen = m.frozen;
     m.A = Mat::Zero(n_, n_);
     m.b = Vec::Zero(n_);
     switch (kind) {
@@ -295,6 +320,22 @@ class Loop {
       case ActuatorMode::RampingUp: m.exits = {minus(m.u, v_), minus(m.u, hi)}; break;
       case ActuatorMode::RampingDown: m.exits = {minus(v_, m.u), minus(lo, m.u)}; break;
     }
+    if (sliding) {
+      // g = dv/dt with the integrator frozen; xi' = -g holds v on the limit. The slide ends when
+      // freezing alone would keep v beyond the limit (s g > 0) or integrating would bring it back
+      // inside (s (g + Ki e) < 0).
+      const Affine g = rate_of_v(m);
+      m.A.row(ii_) = -g.c;
+      m.b(ii_) = -g.d;
+      const double s = side(kind);
+      Affine beyond = g, back = g;
+      beyond.c *= s;
+      beyond.d *= s;
+      back.c = -s * (g.c + split_.ki * e.c);
+      back.d = -s * (g.d + split_.ki * e.d);
+      m.exits = {beyond, back};
+      return m;
+    }
     if (lim_.anti_windup == AntiWindup::Conditional && kind != ActuatorMode::Linear) {
       // Frozen while Ki e pushes v further past u; the sign change of Ki e ends either state.
       Affine push = e;
@@ -313,8 +354,8 @@ class Loop {
   Affine v_;
   int nc_ = 0, ii_ = 0, ig_ = 0, ir_ = 0, n_ = 0;
   double scale_ = 1.0;
-  std::array<Mode, 10> modes_;
-  std::array<bool, 10> built_{};
+  std::array<Mode, 15> modes_;
+  std::array<bool, 15> built_{};
 };
 
 // The exits that are not already positive at the start of a segment.
@@ -348,7 +389,48 @@ struct Trajectory {
   std::vector<Mode*> switch_mode;
 };
 
-SaturatedResponse run(Loop& loop, const ActuatorLimits& limits, const SaturatedOptions& options, Trajectory* keep) {
+// The loop at rest at the equilibrium it holds with the constant reference r0 and no disturbance:
+// the Linear mode's fixed point (the rate-limit state, which has no dynamics there, set to u0). The
+// layout of the states does not depend on the inputs, so a loop built with inputs {r0, 0, 0}
+// gives the start of the loop that then steps from there.
+struct RestPoint {
+  Vec z;
+  double u = 0.0;  // the actuator's output held there
+  double y = 0.0;
+};
+
+RestPoint rest_point(const Zpk& compensator, const StateSpace& plant, const ActuatorLimits& limits, double r0) {
+  SaturatedInputs held;
+  held.reference = r0;
+  Loop loop(compensator, plant, limits, held);
+  const int n = loop.states();
+  RestPoint rp;
+  rp.z = Vec::Zero(n);
+  if (r0 != 0.0) {
+    const Mode& lin = loop.mode(ActuatorMode::Linear, false);
+    const int k = limits.rate_limit ? n - 1 : n;  // the ramp state comes last and is fixed below
+    const Mat A = lin.A.topLeftCorner(k, k);
+    const Eigen::FullPivLU<Eigen::MatrixXd> lu{Eigen::MatrixXd(A)};
+    if (lu.rank() < k || lu.rcond() < 1e-13)
+      throw std::invalid_argument("the loop has no unique equilibrium at the operating reference");
+    rp.z.head(k) = lu.solve(Eigen::VectorXd(-lin.b.head(k)));
+  }
+  if (r0 == 0.0) {  // all states and u zero at t = 0- (u held at the nearest limit if 0 is outside)
+    rp.u = std::clamp(0.0, limits.minimum, limits.maximum);
+    return rp;
+  }
+  const double u_tol = 1e-9 * std::max({std::abs(limits.minimum), std::abs(limits.maximum), 1e-300});
+  rp.u = loop.v(rp.z);
+  if (rp.u < limits.minimum - u_tol || rp.u > limits.maximum + u_tol)
+    throw std::invalid_argument("the loop cannot hold the operating reference within the actuator limits");
+  rp.u = std::clamp(rp.u, limits.minimum, limits.maximum);
+  if (limits.rate_limit) rp.z(n - 1) = rp.u;
+  rp.y = loop.mode(ActuatorMode::Linear, false).y.at(rp.z);
+  return rp;
+}
+
+SaturatedResponse run(Loop& loop, const ActuatorLimits& limits, const SaturatedOptions& options, Trajectory* keep,
+                      const RestPoint& start) {
   const int n = loop.states();
   SaturatedResponse out;
   const int N = options.samples;
@@ -361,8 +443,8 @@ SaturatedResponse run(Loop& loop, const ActuatorLimits& limits, const SaturatedO
     keep->modes.reserve(static_cast<size_t>(N));
   }
 
-  Vec z = Vec::Zero(n);
-  const double u_rest = std::clamp(0.0, limits.minimum, limits.maximum);
+  Vec z = start.z;
+  const double u_rest = std::clamp(start.u, limits.minimum, limits.maximum);
   Mode* m = &loop.choose(z, u_rest);
   auto record = [&]() {
     if (keep) {
@@ -430,7 +512,15 @@ SaturatedResponse run(Loop& loop, const ActuatorLimits& limits, const SaturatedO
       if (m->kind != ActuatorMode::Linear) out.limited_time_s += hi;
       t += hi;
       whole = false;
-      Mode* next = &loop.choose(z, m->u.at(z));
+      Mode* next = nullptr;
+      if (m->sliding) {
+        int fired = armed.front();
+        for (int i : armed)
+          if (m->exits[static_cast<size_t>(i)].at(z) > m->exits[static_cast<size_t>(fired)].at(z)) fired = i;
+        next = &loop.leave_slide(*m, fired, z);
+      } else {
+        next = &loop.choose(z, m->u.at(z));
+      }
       if (next == m) continue;  // a crossing by rounding alone: the same mode goes on
       m = next;
       out.switch_times_s.push_back(t);
@@ -446,53 +536,40 @@ SaturatedResponse run(Loop& loop, const ActuatorLimits& limits, const SaturatedO
   return out;
 }
 
-}  // namespace
 
-SaturatedResponse simulate_saturated(const Zpk& compensator, const StateSpace& plant, const ActuatorLimits& limits,
-                                     const SaturatedInputs& inputs, const SaturatedOptions& options) {
-  std::string why;
-  if (!limits.IsValid(&why) || !options.IsValid(&why)) throw std::invalid_argument(why);
-  Loop loop(compensator, plant, limits, inputs);
-  return run(loop, limits, options, nullptr);
-}
+// y of a simulated loop at any instant, exactly: from the last sample or switching instant before
+// it, propagated in its mode; and the searches that refine the figures between the samples.
+class ExactTrace {
+ public:
+  ExactTrace(Loop& loop, const Trajectory& tr, const SaturatedResponse& r) : loop_(loop), tr_(tr), r_(r) {}
 
-SaturatedStepFigures saturated_step_figures(const Zpk& compensator, const StateSpace& plant,
-                                            const ActuatorLimits& limits, const SaturatedInputs& inputs,
-                                            const SaturatedOptions& options, double target, double u_final,
-                                            double band) {
-  std::string why;
-  if (!limits.IsValid(&why) || !options.IsValid(&why)) throw std::invalid_argument(why);
-  Loop loop(compensator, plant, limits, inputs);
-  Trajectory tr;
-  SaturatedStepFigures f;
-  f.response = run(loop, limits, options, &tr);
-  f.target = target;
-  const double u_tol = 1e-9 * std::max({std::abs(limits.minimum), std::abs(limits.maximum), std::abs(u_final)});
-  f.reachable = u_final >= limits.minimum - u_tol && u_final <= limits.maximum + u_tol;
-  const std::vector<double>& y = f.response.y;
-  const int N = static_cast<int>(y.size());
-  const double dt = f.response.dt;
-  // y at any instant: from the last sample or switching instant before it, exactly in its mode.
-  auto y_at = [&](double t) {
-    t = std::clamp(t, 0.0, dt * (N - 1));
-    const int k = std::min(N - 1, static_cast<int>(t / dt));
-    double t0 = k * dt;
-    Vec z = tr.states.col(k);
-    Mode* m = tr.modes[static_cast<size_t>(k)];
-    const auto it = std::upper_bound(tr.switch_t.begin(), tr.switch_t.end(), t);
-    if (it != tr.switch_t.begin()) {
-      const size_t i = static_cast<size_t>(it - tr.switch_t.begin()) - 1;
-      if (tr.switch_t[i] > t0) {
-        t0 = tr.switch_t[i];
-        z = tr.switch_z[i];
-        m = tr.switch_mode[i];
+  int samples() const { return static_cast<int>(r_.y.size()); }
+  double dt() const { return r_.dt; }
+  double y(int k) const { return r_.y[static_cast<size_t>(k)]; }
+
+  double y_at(double t) const {
+    const int N = samples();
+    t = std::clamp(t, 0.0, r_.dt * (N - 1));
+    const int k = std::min(N - 1, static_cast<int>(t / r_.dt));
+    double t0 = k * r_.dt;
+    Vec z = tr_.states.col(k);
+    Mode* m = tr_.modes[static_cast<size_t>(k)];
+    const auto it = std::upper_bound(tr_.switch_t.begin(), tr_.switch_t.end(), t);
+    if (it != tr_.switch_t.begin()) {
+      const size_t i = static_cast<size_t>(it - tr_.switch_t.begin()) - 1;
+      if (tr_.switch_t[i] > t0) {
+        t0 = tr_.switch_t[i];
+        z = tr_.switch_z[i];
+        m = tr_.switch_mode[i];
       }
     }
-    if (t > t0) z = loop.propagate(*m, z, t - t0, false);
+    if (t > t0) z = loop_.propagate(*m, z, t - t0, false);
     return m->y.at(z);
-  };
+  }
+
   // The largest value of g over [a, b] by golden section (g unimodal there), endpoints included.
-  auto golden_max = [](double a, double b, auto&& g, double* at) {
+  template <class G>
+  static double golden_max(double a, double b, G&& g, double* at) {
     const double r = 0.5 * (std::sqrt(5.0) - 1.0);
     double c = b - r * (b - a), d = a + r * (b - a), gc = g(c), gd = g(d);
     for (int it = 0; it < 50 && b - a > 1e-13 * std::max(1.0, b); ++it) {
@@ -502,68 +579,153 @@ SaturatedStepFigures saturated_step_figures(const Zpk& compensator, const StateS
         a = c, c = d, gc = gd, d = a + r * (b - a), gd = g(d);
       }
     }
-    const double t = gc > gd ? c : d;
-    if (at) *at = t;
+    if (at) *at = gc > gd ? c : d;
     return std::max(gc, gd);
-  };
+  }
+
   // The instant in [a, b] where g changes sign (g(a), g(b) of opposite signs), by bisection.
-  auto crossing = [](double a, double b, auto&& g) {
+  template <class G>
+  static double crossing(double a, double b, G&& g) {
     const bool up = g(a) <= 0.0;
     for (int it = 0; it < 60 && b - a > 1e-14 * std::max(1.0, b); ++it) {
       const double c = 0.5 * (a + b);
       ((g(c) <= 0.0) == up ? a : b) = c;
     }
     return 0.5 * (a + b);
-  };
-  if (target == 0.0 || f.response.chattering) return f;
-  const double s = target > 0.0 ? 1.0 : -1.0, T = std::abs(target);
-  auto w = [&](double t) { return s * y_at(t); };
-  auto w_k = [&](int k) { return s * y[static_cast<size_t>(k)]; };
+  }
 
-  // Overshoot: the largest sample, refined around the three highest local maxima of the samples.
-  double peak = 0.0;
-  std::vector<std::pair<double, int>> tops;
-  for (int k = 0; k < N; ++k) {
-    peak = std::max(peak, w_k(k));
-    if (k > 0 && k + 1 < N && w_k(k) >= w_k(k - 1) && w_k(k) >= w_k(k + 1)) tops.push_back({w_k(k), k});
+  // sup over t of s (y(t) - ref): the largest sample, refined around the three highest local
+  // maxima of the samples.
+  double peak_above(double ref, double s) const {
+    const int N = samples();
+    auto w_k = [&](int k) { return s * (y(k) - ref); };
+    auto w = [&](double t) { return s * (y_at(t) - ref); };
+    double peak = -std::numeric_limits<double>::infinity();
+    std::vector<std::pair<double, int>> tops;
+    for (int k = 0; k < N; ++k) {
+      peak = std::max(peak, w_k(k));
+      if (k > 0 && k + 1 < N && w_k(k) >= w_k(k - 1) && w_k(k) >= w_k(k + 1)) tops.push_back({w_k(k), k});
+    }
+    std::sort(tops.begin(), tops.end(), [](const auto& a, const auto& b) { return a.first > b.first; });
+    for (size_t i = 0; i < tops.size() && i < 3; ++i) {
+      const int k = tops[i].second;
+      peak = std::max(peak, golden_max((k - 1) * r_.dt, (k + 1) * r_.dt, w, nullptr));
+    }
+    return peak;
   }
-  std::sort(tops.begin(), tops.end(), [](const auto& a, const auto& b) { return a.first > b.first; });
-  for (size_t i = 0; i < tops.size() && i < 3; ++i) {
-    const int k = tops[i].second;
-    peak = std::max(peak, golden_max((k - 1) * dt, (k + 1) * dt, w, nullptr));
+
+  // The last instant |y - target| leaves the band b, between the samples too (every later sampled
+  // excursion above b/2 is searched); nullopt when outside the band at the horizon.
+  std::optional<double> last_band_exit(double target, double b) const {
+    const int N = samples();
+    const double dt = r_.dt;
+    auto out_of_band = [&](double t) { return std::abs(y_at(t) - target) - b; };
+    auto e_k = [&](int k) { return std::abs(y(k) - target); };
+    int last = -1;
+    for (int k = N - 1; k >= 0; --k)
+      if (e_k(k) > b) {
+        last = k;
+        break;
+      }
+    if (last == N - 1) return std::nullopt;
+    double ts = last < 0 ? 0.0 : crossing(last * dt, (last + 1) * dt, out_of_band);
+    for (int k = std::max(1, last + 1); k + 1 < N; ++k) {
+      if (!(e_k(k) >= e_k(k - 1) && e_k(k) >= e_k(k + 1) && e_k(k) > 0.5 * b)) continue;
+      double at = 0.0;
+      const double top = golden_max((k - 1) * dt, (k + 1) * dt, [&](double t) { return std::abs(y_at(t) - target); }, &at);
+      if (top > b) ts = crossing(at, (k + 1) * dt, out_of_band);
+    }
+    return ts;
   }
+
+ private:
+  Loop& loop_;
+  const Trajectory& tr_;
+  const SaturatedResponse& r_;
+};
+
+bool within_limits(const ActuatorLimits& limits, double u) {
+  const double u_tol = 1e-9 * std::max({std::abs(limits.minimum), std::abs(limits.maximum), std::abs(u)});
+  return u >= limits.minimum - u_tol && u <= limits.maximum + u_tol;
+}
+
+}  // namespace
+
+SaturatedResponse simulate_saturated(const Zpk& compensator, const StateSpace& plant, const ActuatorLimits& limits,
+                                     const SaturatedInputs& inputs, const SaturatedOptions& options) {
+  std::string why;
+  if (!limits.IsValid(&why) || !options.IsValid(&why)) throw std::invalid_argument(why);
+  const RestPoint start = rest_point(compensator, plant, limits, inputs.initial_reference);
+  Loop loop(compensator, plant, limits, inputs);
+  return run(loop, limits, options, nullptr, start);
+}
+
+SaturatedStepFigures saturated_step_figures(const Zpk& compensator, const StateSpace& plant,
+                                            const ActuatorLimits& limits, const SaturatedInputs& inputs,
+                                            const SaturatedOptions& options, double target, double u_final,
+                                            double band) {
+  std::string why;
+  if (!limits.IsValid(&why) || !options.IsValid(&why)) throw std::invalid_argument(why);
+  const RestPoint start = rest_point(compensator, plant, limits, inputs.initial_reference);
+  Loop loop(compensator, plant, limits, inputs);
+  Trajectory tr;
+  SaturatedStepFigures f;
+  f.response = run(loop, limits, options, &tr, start);
+  f.target = target;
+  f.reachable = within_limits(limits, u_final);
+  if (target == 0.0 || f.response.chattering) return f;
+  const ExactTrace trace(loop, tr, f.response);
+  const double s = target > 0.0 ? 1.0 : -1.0, T = std::abs(target);
+
+  const double peak = trace.peak_above(0.0, s);
   f.overshoot_pct = std::max(0.0, (peak - T) / T * 100.0);
 
   // Rise time 10 % -> 90 %: the first sample past each level, the crossing refined before it.
   auto first_past = [&](double level) -> std::optional<double> {
-    for (int k = 1; k < N; ++k)
-      if (w_k(k) >= level) return crossing((k - 1) * dt, k * dt, [&](double t) { return w(t) - level; });
+    for (int k = 1; k < trace.samples(); ++k)
+      if (s * trace.y(k) >= level)
+        return ExactTrace::crossing((k - 1) * trace.dt(), k * trace.dt(),
+                                    [&](double t) { return s * trace.y_at(t) - level; });
     return std::nullopt;
   };
   const auto t10 = first_past(0.1 * T), t90 = first_past(0.9 * T);
   if (t10 && t90) f.rise_time_s = *t90 - *t10;
 
-  // Settling: the last instant |y - target| leaves the band, between the samples too.
-  if (!f.reachable) return f;
-  const double b = band * T;
-  auto out_of_band = [&](double t) { return std::abs(y_at(t) - target) - b; };
-  auto e_k = [&](int k) { return std::abs(y[static_cast<size_t>(k)] - target); };
-  int last = -1;
-  for (int k = N - 1; k >= 0; --k)
-    if (e_k(k) > b) {
-      last = k;
-      break;
+  if (f.reachable) f.settling_time_s = trace.last_band_exit(target, band * T);
+  return f;
+}
+
+SaturatedDisturbanceFigures saturated_disturbance_figures(const Zpk& compensator, const StateSpace& plant,
+                                                          const ActuatorLimits& limits, const SaturatedInputs& inputs,
+                                                          const SaturatedOptions& options, bool integral_action,
+                                                          double band) {
+  std::string why;
+  if (!limits.IsValid(&why) || !options.IsValid(&why)) throw std::invalid_argument(why);
+  if (inputs.reference != inputs.initial_reference)
+    throw std::invalid_argument("a disturbance response holds the reference: reference must equal initial_reference");
+  const RestPoint start = rest_point(compensator, plant, limits, inputs.initial_reference);
+  Loop loop(compensator, plant, limits, inputs);
+  Trajectory tr;
+  SaturatedDisturbanceFigures f;
+  f.response = run(loop, limits, options, &tr, start);
+  f.baseline = start.y;
+  f.held_u = start.u;
+  // The u that holds the baseline against the steps: u0 - d, less d_o / G(0) for an output step
+  // (nothing for a plant with an integrator, whose G(0) is unbounded).
+  double u_final = start.u - inputs.load;
+  if (inputs.output != 0.0) {
+    const Eigen::FullPivLU<Eigen::MatrixXd> lu{Eigen::MatrixXd(plant.A)};
+    if (plant.states() == 0) u_final -= inputs.output / plant.D;
+    else if (lu.rank() == plant.states() && lu.rcond() > 1e-13) {
+      const double g0 = plant.D - (plant.C * lu.solve(Eigen::VectorXd(plant.B)))(0);
+      u_final -= inputs.output / g0;
     }
-  if (last == N - 1) return f;  // outside the band at the horizon: not settled
-  double ts = last < 0 ? 0.0 : crossing(last * dt, (last + 1) * dt, out_of_band);
-  for (int k = std::max(1, last + 1); k + 1 < N; ++k) {
-    if (!(e_k(k) >= e_k(k - 1) && e_k(k) >= e_k(k + 1) && e_k(k) > 0.5 * b)) continue;
-    double at = 0.0;
-    const double top = golden_max((k - 1) * dt, (k + 1) * dt, [&](double t) { return std::abs(y_at(t) - target); }, &at);
-    if (top > b) ts = crossing(at, (k + 1) * dt, out_of_band);
   }
-  if (e_k(N - 1) > b) return f;
-  f.settling_time_s = ts;
+  f.rejected = integral_action && std::isfinite(u_final) && within_limits(limits, u_final);
+  if (f.response.chattering) return f;
+  const ExactTrace trace(loop, tr, f.response);
+  f.peak = std::max({0.0, trace.peak_above(f.baseline, 1.0), trace.peak_above(f.baseline, -1.0)});
+  if (f.rejected) f.recovery_time_s = f.peak > 0.0 ? trace.last_band_exit(f.baseline, band * f.peak) : std::optional<double>(0.0);
   return f;
 }
 

@@ -156,3 +156,95 @@ TEST_CASE("simulate_saturated: refused input says why") {
   CHECK_THROWS_AS(simulate_saturated(proportional(2.0), first_order(1.0, 1.0), lim, {}, o), std::invalid_argument);
   CHECK(anti_windup_name(AntiWindup::BackCalculation) == "back_calculation");
 }
+
+TEST_CASE("simulate_saturated: from the operating point the loop rests at y = r0, u = r0 / G(0)") {
+  // G = 3.125 / (s + 1.25), G(0) = 2.5; r0 = 1.5 is held by u0 = 0.6 (final-value theorem, by hand).
+  ActuatorLimits lim;
+  lim.minimum = 0.0;
+  lim.maximum = 1.0;
+  SaturatedInputs in;
+  in.reference = in.initial_reference = 1.5;
+  SaturatedOptions o;
+  o.horizon_s = 4.0;
+  o.samples = 401;
+  for (AntiWindup aw : {AntiWindup::None, AntiWindup::Conditional}) {
+    lim.anti_windup = aw;
+    const SaturatedResponse r = simulate_saturated(pi(1.6, 3.2), first_order(3.125, 1.25), lim, in, o);
+    for (size_t k = 0; k < r.y.size(); ++k) {
+      CHECK(r.y[k] == Approx(1.5).margin(1e-12));
+      CHECK(r.u[k] == Approx(0.6).margin(1e-12));
+    }
+  }
+  // 3.0 would need u0 = 1.2, beyond the maximum: refused, said.
+  in.reference = in.initial_reference = 3.0;
+  CHECK_THROWS_WITH(simulate_saturated(pi(1.6, 3.2), first_order(3.125, 1.25), lim, in, o),
+                    Catch::Contains("cannot hold the operating reference"));
+}
+
+TEST_CASE("simulate_saturated: conditional integration slides along the limit and leaves it where Kp y' = Ki e") {
+  // The pump above holding r0 = 1.5 (u0 = 0.6) meets a load d = 0.59 at its input. u falls to the
+  // lower limit 0 at t1 with y above r0: frozen, v = Kp e + xi would rise at once (-Kp y' > 0);
+  // integrating, it would fall. So u = 0 and v stays at 0 while y runs open loop (worked by hand):
+  //   y(t) = y_inf + (y1 - y_inf) e^(-a (t - t1)), y_inf = b d / a = 1.475;
+  // the slide ends when integrating no longer pushes v down: -Kp y' + Ki (r0 - y) = 0, that is
+  //   y* = (Kp b d - Ki r0) / (Kp a - Ki) = 1.541667, at t2 = t1 + ln((y1 - y_inf) / (y* - y_inf)) / a.
+  const double kp = 1.6, ki = 3.2, a = 1.25, b = 3.125, d = 0.59, r0 = 1.5;
+  ActuatorLimits lim;
+  lim.minimum = 0.0;
+  lim.maximum = 1.0;
+  lim.anti_windup = AntiWindup::Conditional;
+  SaturatedInputs in;
+  in.reference = in.initial_reference = r0;
+  in.load = d;
+  SaturatedOptions o;
+  o.horizon_s = 3.0;
+  o.samples = 3001;
+  const SaturatedResponse r = simulate_saturated(pi(kp, ki), first_order(b, a), lim, in, o);
+  REQUIRE_FALSE(r.chattering);
+  REQUIRE(r.switch_times_s.size() == 2);
+  const double t1 = r.switch_times_s[0], t2 = r.switch_times_s[1];
+  const double y_inf = b * d / a, y_star = (kp * b * d - ki * r0) / (kp * a - ki);
+  // y1 from the first sample of the slide, carried back to t1 by the closed form.
+  const size_t k1 = static_cast<size_t>(std::ceil(t1 / r.dt));
+  const double y1 = y_inf + (r.y[k1] - y_inf) * std::exp(a * (k1 * r.dt - t1));
+  CHECK(t2 == Approx(t1 + std::log((y1 - y_inf) / (y_star - y_inf)) / a).epsilon(1e-10));
+  for (size_t k = k1; k * r.dt < t2; ++k) {
+    CHECK(r.u[k] == 0.0);
+    CHECK(std::abs(r.v[k]) < 1e-12);
+    CHECK(r.y[k] == Approx(y_inf + (y1 - y_inf) * std::exp(-a * (k * r.dt - t1))).margin(1e-12));
+  }
+  CHECK(r.limited_time_s == Approx(t2 - t1).epsilon(1e-9));
+}
+
+TEST_CASE("saturated_disturbance_figures: a load beyond the headroom leaves y off the operating point") {
+  // Holding r0 = 1.5 (u0 = 0.6), a load d = 0.8 needs u = -0.2 < 0: u stays at 0 and y settles at
+  // G(0) d = 2.0 (by hand), so the peak deviation tends to 0.5 and y never recovers.
+  ActuatorLimits lim;
+  lim.minimum = 0.0;
+  lim.maximum = 1.0;
+  lim.anti_windup = AntiWindup::Conditional;
+  SaturatedInputs in;
+  in.reference = in.initial_reference = 1.5;
+  in.load = 0.8;
+  SaturatedOptions o;
+  o.horizon_s = 20.0;
+  o.samples = 4001;
+  const SaturatedDisturbanceFigures f =
+      saturated_disturbance_figures(pi(1.6, 3.2), first_order(3.125, 1.25), lim, in, o, true, 0.02);
+  CHECK(f.baseline == Approx(1.5).margin(1e-12));
+  CHECK(f.held_u == Approx(0.6).margin(1e-12));
+  CHECK_FALSE(f.rejected);
+  CHECK_FALSE(f.recovery_time_s);
+  CHECK(f.peak == Approx(0.5).margin(1e-9));
+  // A load of 0.3 is met (u = 0.3): rejected, and the recovery is the last exit from 2 % of the peak.
+  in.load = 0.3;
+  const SaturatedDisturbanceFigures g =
+      saturated_disturbance_figures(pi(1.6, 3.2), first_order(3.125, 1.25), lim, in, o, true, 0.02);
+  CHECK(g.rejected);
+  REQUIRE(g.recovery_time_s);
+  CHECK(*g.recovery_time_s > 0.0);
+  // Not the same as a reference step: reference must stay at initial_reference.
+  in.reference = 2.0;
+  CHECK_THROWS_WITH(saturated_disturbance_figures(pi(1.6, 3.2), first_order(3.125, 1.25), lim, in, o, true, 0.02),
+                    Catch::Contains("holds the reference"));
+}

@@ -32,11 +32,14 @@ struct ActuatorLimits {
   bool IsValid(std::string* error) const;
 };
 
-// Step sizes, all applied at t = 0+ with the loop at rest (all states and u zero at t = 0-).
+// The inputs after t = 0+, applied to the loop at rest: with initial_reference 0 all states and u
+// are zero at t = 0- (u at the nearer limit should 0 lie outside them); otherwise the loop starts
+// at the equilibrium it holds with that constant reference (u there must lie within the limits).
 struct SaturatedInputs {
   double reference = 1.0;
   double load = 0.0;    // added to u at the plant input
   double output = 0.0;  // added to y at the plant output
+  double initial_reference = 0.0;
 };
 
 struct SaturatedOptions {
@@ -93,6 +96,28 @@ SaturatedStepFigures saturated_step_figures(const Zpk& compensator, const StateS
                                             const ActuatorLimits& limits, const SaturatedInputs& inputs,
                                             const SaturatedOptions& options, double target, double u_final,
                                             double band);
+
+// Figures of a disturbance step arriving while the loop holds its reference (inputs.reference ==
+// inputs.initial_reference, the load and/or output step nonzero), judged on the continuous response:
+//   baseline, held_u: y and u at the equilibrium before the step;
+//   peak: sup |y - baseline| over the horizon (refined between samples as the step's peak);
+//   rejected: y returns to the baseline: `integral_action` (the linear loop rejects this
+//     disturbance) and the u that holds the baseline against it (u0 - d - d_o / G(0)) within the limits;
+//   recovery_time_s: the last instant |y - baseline| leaves band * peak (refined as the settling
+//     time); nullopt when not rejected or still outside the band at the horizon.
+struct SaturatedDisturbanceFigures {
+  double baseline = 0.0;
+  double held_u = 0.0;
+  double peak = 0.0;
+  bool rejected = false;
+  std::optional<double> recovery_time_s;
+  SaturatedResponse response;
+};
+
+SaturatedDisturbanceFigures saturated_disturbance_figures(const Zpk& compensator, const StateSpace& plant,
+                                                          const ActuatorLimits& limits, const SaturatedInputs& inputs,
+                                                          const SaturatedOptions& options, bool integral_action,
+                                                          double band);
 
 std::string anti_windup_name(AntiWindup a);
 
