@@ -42,11 +42,9 @@ bool needs_step_response(const RequirementSet& req) {
 }
 
 bool time_domain_gate(const RequirementSet& req, const MetricValues& v, double gate) {
-  double fv = 0.0;
-  for (const Requirement& r : req.items)
-    if (!metric_info(r.metric).time_domain && r.metric != MetricId::GainTolerance)
-      fv += requirement_violation(r, v[static_cast<size_t>(r.metric)]);
-  return fv <= gate;
+  return violation_except(req, v, [](MetricId id) {
+           return metric_info(id).time_domain || id == MetricId::GainTolerance;
+         }) <= gate;
 }
 
 MetricValue delay_margin_value(const FrequencyMetrics& f) {
@@ -96,6 +94,7 @@ void set_gain_tolerance_metric(MetricValues& v, double tolerance_pct) {
 }
 
 void set_disturbance_metrics(MetricValues& v, DisturbanceInput where, const DisturbanceMetrics& d, double step) {
+  step = std::abs(step);  // the linear figures are sizes: |y| scales with |step|
   auto at = [&](MetricId id) -> MetricValue& { return v[static_cast<size_t>(id)]; };
   const bool load = where == DisturbanceInput::Load;
   at(load ? MetricId::LoadPeak : MetricId::OutputPeak) = number(step * d.peak);
@@ -124,19 +123,62 @@ void set_saturated_metrics(MetricValues& v, const SaturatedStepFigures& s) {
   at(MetricId::SaturatedRiseTime) = number(s.rise_time_s);
 }
 
+namespace {
+
+// The spec's limits as this compensator can have them: no anti-windup without an integrator
+// (nothing winds up); nullopt with more than one and anti-windup asked for.
+std::optional<ActuatorLimits> limits_for(const Zpk& compensator, const ActuatorLimits& spec) {
+  ActuatorLimits lim = spec;
+  const int integrators = zpk_integrators(compensator);
+  if (integrators == 0) lim.anti_windup = AntiWindup::None;
+  if (integrators > 1 && lim.anti_windup != AntiWindup::None) return std::nullopt;
+  return lim;
+}
+
+// Three times the linear response's horizon, at least 1.5 times the limit, at its sample interval.
+SaturatedOptions limited_horizon(double linear_horizon_s, int linear_samples, double limit_s) {
+  SaturatedOptions so;
+  so.horizon_s = std::max(3.0 * linear_horizon_s, 1.5 * limit_s);
+  const double dt = linear_horizon_s / std::max(1, linear_samples - 1);
+  so.samples = static_cast<int>(std::clamp(std::ceil(so.horizon_s / dt) + 1.0, 1000.0, 30000.0));
+  return so;
+}
+
+}  // namespace
+
+void set_saturated_load_metrics(MetricValues& v, const SaturatedDisturbanceFigures& d) {
+  v[static_cast<size_t>(MetricId::SaturatedLoadPeak)] = number(d.peak);
+  MetricValue rec = number(d.recovery_time_s);
+  if (!d.recovery_time_s) rec.infinite = true;
+  v[static_cast<size_t>(MetricId::SaturatedLoadRecovery)] = rec;
+}
+
+std::optional<SaturatedDisturbanceFigures> saturated_load(const LoopParts& parts, const DisturbanceMetrics& linear,
+                                                          const RequirementSet& req) {
+  if (!req.actuator) return std::nullopt;
+  const std::optional<ActuatorLimits> lim = limits_for(parts.compensator_tf, *req.actuator);
+  if (!lim) return std::nullopt;
+  const SaturatedOptions so = limited_horizon(linear.horizon_s, linear.samples,
+                                              req.limit(MetricId::SaturatedLoadRecovery, Sense::AtMost).value_or(0.0));
+  SaturatedInputs in;
+  in.initial_reference = in.reference = req.held_reference();
+  in.load = req.disturbance_step;
+  try {
+    return saturated_disturbance_figures(parts.compensator_tf, parts.plant, *lim, in, so, linear.rejected,
+                                         req.recovery_band);
+  } catch (const std::invalid_argument&) {
+    return std::nullopt;
+  }
+}
+
 std::optional<SaturatedStepFigures> saturated_step(const LoopParts& parts, const PoleAnalysis& poles,
                                                    const StepMetrics& linear, const RequirementSet& req) {
   if (!req.actuator) return std::nullopt;
-  ActuatorLimits lim = *req.actuator;
-  int integrators = 0;
-  for (const Complex& p : parts.compensator_tf.poles) integrators += p == Complex(0.0, 0.0);
-  if (integrators == 0) lim.anti_windup = AntiWindup::None;
-  if (integrators > 1 && lim.anti_windup != AntiWindup::None) return std::nullopt;
-  SaturatedOptions so;
-  const double limit = req.limit(MetricId::SaturatedSettlingTime, Sense::AtMost).value_or(0.0);
-  so.horizon_s = std::max(3.0 * linear.horizon_s, 1.5 * limit);
-  const double dt = linear.horizon_s / std::max(1, linear.samples - 1);
-  so.samples = static_cast<int>(std::clamp(std::ceil(so.horizon_s / dt) + 1.0, 1000.0, 30000.0));
+  const std::optional<ActuatorLimits> limits = limits_for(parts.compensator_tf, *req.actuator);
+  if (!limits) return std::nullopt;
+  const ActuatorLimits& lim = *limits;
+  const SaturatedOptions so = limited_horizon(linear.horizon_s, linear.samples,
+                                              req.limit(MetricId::SaturatedSettlingTime, Sense::AtMost).value_or(0.0));
   SaturatedInputs in;
   in.reference = req.reference_step;
   try {
@@ -228,6 +270,8 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
   const bool saturated =
       req.actuator &&
       needs_any(req, {MetricId::SaturatedOvershoot, MetricId::SaturatedSettlingTime, MetricId::SaturatedRiseTime});
+  const bool saturated_load_asked =
+      req.actuator && needs_any(req, {MetricId::SaturatedLoadPeak, MetricId::SaturatedLoadRecovery});
   bool step = all || needs.step || needs_step_response(req) || saturated;
   if (!all && step) step = time_domain_gate(req, v, needs.step_gate);
   if (step) {
@@ -238,7 +282,9 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
     set_step_metrics(v, *e.step);
   }
   // Disturbance steps: only when a requirement names them, behind the same gate as the step.
-  const bool load = needs_any(req, {MetricId::LoadPeak, MetricId::LoadRecovery, MetricId::LoadIae});
+  // (The limited load step needs the linear one: its horizon and whether the loop rejects a load.)
+  const bool load =
+      saturated_load_asked || needs_any(req, {MetricId::LoadPeak, MetricId::LoadRecovery, MetricId::LoadIae});
   const bool output = needs_any(req, {MetricId::OutputPeak, MetricId::OutputRecovery, MetricId::OutputIae});
   if ((load || output) && (all || step || time_domain_gate(req, v, needs.step_gate))) {
     StepOptions so = opt.step;  // keep_trace as the step's: the report draws the responses
@@ -252,27 +298,22 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
   // The step with the actuator limits: after the linear one (its horizon and final value), only
   // when a requirement names it; screening runs it only for loops whose other figures (the linear
   // step's included) nearly meet their requirements, as the step itself is gated.
-  bool limited = saturated && e.step;
-  if (!all && limited) {
-    double other = 0.0;
-    for (const Requirement& r : req.items)
-      if (r.metric != MetricId::SaturatedOvershoot && r.metric != MetricId::SaturatedSettlingTime &&
-          r.metric != MetricId::SaturatedRiseTime && r.metric != MetricId::GainTolerance)
-        other += requirement_violation(r, v[static_cast<size_t>(r.metric)]);
-    limited = other <= needs.step_gate;
-  }
-  if (limited) {
+  // The same holds for the limited load step, after the linear one.
+  const bool near = all || violation_except(req, v, [](MetricId id) {
+                             return is_actuator_metric(id) || id == MetricId::GainTolerance;
+                           }) <= needs.step_gate;
+  if (near && saturated && e.step) {
     e.saturated = saturated_step(parts, e.poles, *e.step, req);
     if (e.saturated) set_saturated_metrics(v, *e.saturated);
   }
-  bool tolerance = all || req.has(MetricId::GainTolerance);
-  if (!all && tolerance) {
-    // Screening: the gain scan only for loops that are near meeting everything else.
-    double other = 0.0;
-    for (const Requirement& r : req.items)
-      if (r.metric != MetricId::GainTolerance) other += requirement_violation(r, v[static_cast<size_t>(r.metric)]);
-    tolerance = other <= needs.step_gate;
+  if (near && saturated_load_asked && e.load) {
+    e.saturated_load = saturated_load(parts, *e.load, req);
+    if (e.saturated_load) set_saturated_load_metrics(v, *e.saturated_load);
   }
+  bool tolerance = all || req.has(MetricId::GainTolerance);
+  // Screening: the gain scan only for loops that are near meeting everything else.
+  if (!all && tolerance)
+    tolerance = violation_except(req, v, [](MetricId id) { return id == MetricId::GainTolerance; }) <= needs.step_gate;
   if (tolerance) {
     const auto t = req.limit(MetricId::GainTolerance, Sense::AtLeast);
     e.gain = (!all && t) ? gain_tolerance_screen(parts, region, opt.residue_share, *t / 100.0)

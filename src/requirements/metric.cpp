@@ -33,6 +33,10 @@ const std::array<MetricInfo, kMetricCount>& metric_table() {
        BoundKind::MaxOnly, true, true},
       {MetricId::SaturatedRiseTime, "saturated_rise_time_s", "rise time 10-90 %, actuator limited", "s",
        BoundKind::MaxOnly, true, true},
+      {MetricId::SaturatedLoadPeak, "saturated_load_peak", "load-step peak |y - y0|, actuator limited", "",
+       BoundKind::MaxOnly, true, true},
+      {MetricId::SaturatedLoadRecovery, "saturated_load_recovery_s", "load-step recovery, actuator limited", "s",
+       BoundKind::MaxOnly, true, true},
   }};
   return table;
 }

@@ -23,6 +23,12 @@ std::string RequirementSet::label(MetricId id) const {
   return metric_info(id).label;
 }
 
+bool RequirementSet::needs_actuator() const {
+  for (const Requirement& r : items)
+    if (is_actuator_metric(r.metric)) return true;
+  return false;
+}
+
 std::string RequirementSet::actuator_label() const {
   if (!actuator) return "";
   char b[256];
@@ -39,7 +45,12 @@ std::string RequirementSet::actuator_label() const {
     s += b;
   }
   std::snprintf(b, sizeof b, ", reference step %.6g", reference_step);
-  return s + b;
+  s += b;
+  if (has(MetricId::SaturatedLoadPeak) || has(MetricId::SaturatedLoadRecovery)) {
+    std::snprintf(b, sizeof b, ", load step %.6g held at reference %.6g", disturbance_step, held_reference());
+    s += b;
+  }
+  return s;
 }
 
 std::optional<double> RequirementSet::limit(MetricId id, Sense sense) const {

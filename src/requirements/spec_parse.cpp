@@ -42,12 +42,12 @@ const std::vector<std::string>& known_keys(const std::string& kind) {
         "crossover_rad_s", "bandwidth_rad_s", "peak_effort", "peak_sensitivity", "gain_tolerance_pct", "damping_ratio",
         "natural_frequency_rad_s", "delay_margin_s", "load_peak", "load_recovery_s", "load_iae", "output_peak",
         "output_recovery_s", "output_iae", "noise_effort_peak", "controller_hf_gain", "saturated_overshoot_pct",
-        "saturated_settling_time_s", "saturated_rise_time_s", "disturbance_step", "recovery_band_pct"}},
+        "saturated_settling_time_s", "saturated_rise_time_s", "saturated_load_peak", "saturated_load_recovery_s", "disturbance_step", "recovery_band_pct"}},
       {"stages", {"lead", "lag", "notch", "integrator", "pid", "frequency_range_rad_s"}},
       {"search", {"seed", "keep", "objective", "threads", "max_evaluations", "time_limit_s", "budget_s", "margin_pct"}},
       {"analysis", {"pade_order", "samples", "horizon_s", "residue_share_pct"}},
       {"implementation", implementation_keys()},
-      {"actuator", {"min", "max", "rate_limit", "anti_windup", "tracking_time_s", "reference_step"}},
+      {"actuator", {"min", "max", "rate_limit", "anti_windup", "tracking_time_s", "reference_step", "operating_reference"}},
       {"settling_time_s", {"max", "band_pct"}},
       {"steady_state_error", {"max", "input"}},
       {"controller_hf_gain", {"max", "frequency_rad_s"}},
@@ -196,7 +196,8 @@ RequirementSet parse_requirements(const json& j, const std::string& path) {
   if (const json* d = member(j, "disturbance_step")) {
     const std::string dp = key_path(path, "disturbance_step");
     const double v = read_number(*d, dp);
-    if (!(v > 0.0)) throw SpecError(dp, "must be > 0 (got " + describe(*d) + ")");
+    // Signed: with actuator limits the direction of a load decides the headroom it meets.
+    if (v == 0.0) throw SpecError(dp, "must not be 0 (its sign is the direction of the step)");
     set.disturbance_step = v;
   }
   if (const json* b = member(j, "recovery_band_pct")) {
@@ -209,7 +210,8 @@ RequirementSet parse_requirements(const json& j, const std::string& path) {
 }
 
 // $.actuator: the limits of the actuator, its anti-windup and the reference step it is judged on.
-ActuatorLimits parse_actuator(const json& j, const std::string& path, double* reference_step) {
+ActuatorLimits parse_actuator(const json& j, const std::string& path, double* reference_step,
+                              std::optional<double>* operating_reference) {
   expect_known(j, path, "actuator");
   ActuatorLimits a;
   const json* mn = member(j, "min");
@@ -250,6 +252,7 @@ ActuatorLimits parse_actuator(const json& j, const std::string& path, double* re
     if (v == 0.0) throw SpecError(key_path(path, "reference_step"), "must not be 0");
     *reference_step = v;
   }
+  if (const json* o = member(j, "operating_reference")) *operating_reference = read_number(*o, key_path(path, "operating_reference"));
   return a;
 }
 
@@ -390,11 +393,11 @@ Spec parse_spec(const json& doc) {
   if (!req) throw SpecError("$.requirements", "is missing: a spec needs requirements (an empty object checks nothing)");
   s.requirements = parse_requirements(*req, "$.requirements");
   if (const json* v = member(doc, "actuator"))
-    s.requirements.actuator = parse_actuator(*v, "$.actuator", &s.requirements.reference_step);
-  for (MetricId id : {MetricId::SaturatedOvershoot, MetricId::SaturatedSettlingTime, MetricId::SaturatedRiseTime})
-    if (s.requirements.has(id) && !s.requirements.actuator)
-      throw SpecError(key_path("$.requirements", metric_info(id).key),
-                      "needs $.actuator: the limits the step is simulated with");
+    s.requirements.actuator =
+        parse_actuator(*v, "$.actuator", &s.requirements.reference_step, &s.requirements.operating_reference);
+  for (const MetricInfo& m : metric_table())
+    if (is_actuator_metric(m.id) && s.requirements.has(m.id) && !s.requirements.actuator)
+      throw SpecError(key_path("$.requirements", m.key), "needs $.actuator: the limits the loop is simulated with");
   if (const json* v = member(doc, "stages")) s.stages = parse_stages(*v, "$.stages");
   if (const json* v = member(doc, "search")) s.search = parse_search(*v, "$.search");
   if (const json* v = member(doc, "analysis")) s.analysis = parse_analysis(*v, "$.analysis");

@@ -89,27 +89,38 @@ std::vector<PlantLimit> plant_limits(const std::vector<Plant>& plants, const Req
     // (final-value theorem), whatever the compensator; beyond the limits y cannot settle there.
     const bool integral = stages.integrator == IntegratorChoice::On ||
                           (req.limit(MetricId::SteadyStateError, Sense::AtMost) == 0.0 && req.error_signal == TestSignal::Step);
-    const std::optional<MetricId> limited =
-        req.has(MetricId::SaturatedSettlingTime)
-            ? std::optional<MetricId>(MetricId::SaturatedSettlingTime)
-            : (req.has(MetricId::SaturatedOvershoot) ? std::optional<MetricId>(MetricId::SaturatedOvershoot)
-                                                     : (req.has(MetricId::SaturatedRiseTime)
-                                                            ? std::optional<MetricId>(MetricId::SaturatedRiseTime)
-                                                            : std::nullopt));
-    if (req.actuator && limited && integral && zpk_integrators(p.tf) == 0) {
-      const double g0 = p.tf.evaluate(Complex(0.0, 0.0)).real();
-      if (std::isfinite(g0) && g0 != 0.0) {
-        const double u = req.reference_step / g0;
-        const bool above = u > req.actuator->maximum, below = u < req.actuator->minimum;
-        if (above || below) {
-          PlantLimit l{"actuator_range", p.name, u, std::nullopt, std::nullopt, true, metric_info(*limited).key, ""};
-          l.message = "the reference step of " + fmt(req.reference_step) + " needs u = " + fmt(u) +
-                      " in steady state (the step over G(0) = " + fmt(g0) + "), " +
-                      (above ? "above the actuator maximum " + fmt(req.actuator->maximum)
-                             : "below the actuator minimum " + fmt(req.actuator->minimum)) +
-                      ": no compensator settles y there";
-          out.push_back(l);
-        }
+    std::optional<MetricId> limited;  // the first requirement judged on the limited step
+    for (MetricId id : {MetricId::SaturatedSettlingTime, MetricId::SaturatedOvershoot, MetricId::SaturatedRiseTime})
+      if (!limited && req.has(id)) limited = id;
+    const int plant_integrators = zpk_integrators(p.tf);
+    const double g0 = plant_integrators == 0 ? p.tf.evaluate(Complex(0.0, 0.0)).real() : INFINITY;
+    const bool g0_known = plant_integrators > 0 || (std::isfinite(g0) && g0 != 0.0);
+    auto beyond = [&](double u) {
+      return u > req.actuator->maximum ? "above the actuator maximum " + fmt(req.actuator->maximum)
+                                       : "below the actuator minimum " + fmt(req.actuator->minimum);
+    };
+    auto outside = [&](double u) { return u > req.actuator->maximum || u < req.actuator->minimum; };
+    if (req.actuator && limited && integral && plant_integrators == 0 && g0_known) {
+      const double u = req.reference_step / g0;
+      if (outside(u)) {
+        PlantLimit l{"actuator_range", p.name, u, std::nullopt, std::nullopt, true, metric_info(*limited).key, ""};
+        l.message = "the reference step of " + fmt(req.reference_step) + " needs u = " + fmt(u) +
+                    " in steady state (the step over G(0) = " + fmt(g0) + "), " + beyond(u) +
+                    ": no compensator settles y there";
+        out.push_back(l);
+      }
+    }
+    // The load step from the operating point: y returns to y0 = r0 only with u = r0 / G(0) - d
+    // (r0 / G(0) is 0 for a plant with an integrator); beyond the limits it cannot.
+    if (req.actuator && req.has(MetricId::SaturatedLoadRecovery) && g0_known) {
+      const double u0 = plant_integrators > 0 ? 0.0 : req.held_reference() / g0;
+      const double u = u0 - req.disturbance_step;
+      if (outside(u)) {
+        PlantLimit l{"actuator_range", p.name, u, std::nullopt, std::nullopt, true, "saturated_load_recovery_s", ""};
+        l.message = "holding the reference " + fmt(req.held_reference()) + " against the load step of " +
+                    fmt(req.disturbance_step) + " needs u = " + fmt(u) + ", " + beyond(u) +
+                    ": no compensator returns y there";
+        out.push_back(l);
       }
     }
     if (const std::optional<MetricId> m = compensator_integrator_driver(req)) {
@@ -128,7 +139,7 @@ std::vector<PlantLimit> plant_limits(const std::vector<Plant>& plants, const Req
 }
 
 std::optional<MetricId> compensator_integrator_driver(const RequirementSet& req) {
-  for (MetricId id : {MetricId::LoadRecovery, MetricId::LoadIae})
+  for (MetricId id : {MetricId::LoadRecovery, MetricId::LoadIae, MetricId::SaturatedLoadRecovery})
     if (req.limit(id, Sense::AtMost)) return id;
   return std::nullopt;
 }

@@ -52,11 +52,14 @@ def split_pi(comp):
     return ki, signal.tf2ss(c0_num, den)
 
 
-def reference_loop(spec, umin, umax, anti_windup="none", tt=None, r=1.0, load=0.0, rate=None, horizon=5.0, n=2001):
+def reference_loop(spec, umin, umax, anti_windup="none", tt=None, r=1.0, load=0.0, rate=None, horizon=5.0, n=2001,
+                   r0=0.0):
     """solve_ivp of the loop: xc' = Ac xc + Bc e, xi' = Ki e (+ (u - v)/Tt | frozen), xg' = Ag xg + Bg (u + d).
 
     With a rate limit the actuator is a state driven at +-rate toward sat(v), with a fast tracking
     gain in between (u' = clip(K (sat(v) - u), -rate, rate), K = 1e5): an ODE form of the ideal limiter.
+    With r0 the loop starts at rest holding y = r0 (a plant without integrators): u0 = r0 / G(0),
+    xg = -Ag^-1 Bg u0, xc = 0 (e = 0 there), xi = u0 - Cc xc = u0 (worked by hand for this layout).
     """
     Ag, Bg, Cg, Dg = plant_ss(spec)
     ki, (Ac, Bc, Cc, Dc) = split_pi(spec["current"])
@@ -92,6 +95,13 @@ def reference_loop(spec, umin, umax, anti_windup="none", tt=None, r=1.0, load=0.
     x0 = np.zeros(nc + 1 + ng + (1 if rate is not None else 0))
     if rate is not None:
         x0[-1] = min(max(0.0, umin), umax)
+    if r0 != 0.0:
+        g0 = float(Dg[0, 0] - Cg @ np.linalg.solve(Ag, Bg[:, 0]))
+        u0 = r0 / g0
+        x0[nc] = u0
+        x0[nc + 1:nc + 1 + ng] = -np.linalg.solve(Ag, Bg[:, 0]) * u0
+        if rate is not None:
+            x0[-1] = u0
     t = np.linspace(0.0, horizon, n)
     method = "Radau" if rate is not None else "DOP853"
     rtol = 1e-9 if rate is not None else 1e-11
@@ -144,6 +154,124 @@ class AgainstSolveIvp(unittest.TestCase):
                             tt=0.3)
         du = np.diff(r["u"]) / (r["time_s"][1] - r["time_s"][0])
         self.assertLessEqual(float(np.max(np.abs(du))), 2.0 * (1 + 1e-9))
+
+
+def clamping_pi_euler(h, horizon, r0, d, kp=1.6, ki=3.2, a=1.25, b=3.125, umin=0.0, umax=1.0):
+    """The pump (G = b / (s + a)) with a PI and conditional integration as a controller would run
+    it: forward Euler at step h, the integrator skipped on any step where u is limited and Ki e
+    pushes v further past it, started at rest holding y = r0. Where the ideal loop slides along a
+    limit this chatters at the step and converges to the sliding solution at first order in h."""
+    x, xi = r0, r0 * a / b
+    ys = np.empty(int(round(horizon / h)) + 1)
+    ys[0] = x
+    for k in range(1, len(ys)):
+        e = r0 - x
+        v = kp * e + xi
+        u = min(max(v, umin), umax)
+        if not (u != v and ki * e * (v - u) > 0):
+            xi += h * ki * e
+        x += h * (-a * x + b * (u + d))
+        ys[k] = x
+    return ys
+
+
+class LoadStepFromTheOperatingPoint(unittest.TestCase):
+    """A load step at the plant input while the loop holds r0 (initial_reference): against solve_ivp
+    started at the equilibrium worked by hand (reference_loop's r0)."""
+
+    def simulate(self, spec, r0, load, umin, umax, anti_windup="none", tt=None, horizon=6.0, n=3001):
+        return polewright.saturated_response(spec, minimum=umin, maximum=umax, anti_windup=anti_windup,
+                                             tracking_time_s=tt, reference=r0, initial_reference=r0, load=load,
+                                             horizon_s=horizon, samples=n)
+
+    def test_pump_holding_1_5_meets_a_load_of_0_59(self):
+        # u0 = 1.5 / 2.5 = 0.6 and u = 0.6 - 0.59 = 0.01 holds y = 1.5 again; u's undershoot on the
+        # way there takes it to the lower limit 0, which then holds it for a while.
+        for aw, tt in (("none", None), ("back_calculation", 0.3)):
+            with self.subTest(anti_windup=aw):
+                r = self.simulate(DOSING_PUMP, 1.5, 0.59, 0.0, 1.0, aw, tt)
+                t, y, u = reference_loop(DOSING_PUMP, 0.0, 1.0, anti_windup=aw, tt=tt, r=1.5, r0=1.5, load=0.59,
+                                         horizon=6.0, n=3001)
+                self.assertLess(float(np.max(np.abs(r["y"] - y))), 1e-8)
+                self.assertLess(float(np.max(np.abs(r["u"] - u))), 1e-8)
+                self.assertGreater(r["limited_time_s"], 0.5)
+                self.assertAlmostEqual(r["y"][0], 1.5, delta=1e-12)  # at rest at the operating point
+                self.assertAlmostEqual(r["u"][-1], 0.01, delta=1e-5)
+
+    def test_conditional_integration_slides_along_the_limit(self):
+        # Frozen, v = Kp e + xi would rise off the limit at once; integrating, it would fall further:
+        # the ideal loop slides along u = 0 (two switching instants, no chattering). The clamped
+        # Euler loop converges to it at first order: its error falls tenfold with h.
+        r = self.simulate(DOSING_PUMP, 1.5, 0.59, 0.0, 1.0, "conditional", horizon=3.0)
+        self.assertFalse(r["chattering"])
+        self.assertEqual(len(r["switch_times_s"]), 2)
+        err = {}
+        for h in (1e-4, 1e-5):
+            y = clamping_pi_euler(h, 3.0, 1.5, 0.59)[::int(round(1e-3 / h))]
+            err[h] = float(np.max(np.abs(r["y"] - y)))
+        self.assertLess(err[1e-5], 1e-5)
+        self.assertGreater(err[1e-4] / err[1e-5], 5.0)
+        self.assertLess(err[1e-4] / err[1e-5], 20.0)
+
+    def test_lead_lag_pi_on_two_lags_within_the_limits(self):
+        # G(0) = 10: u0 = 0.2 holds y = 2; a load of 0.5 needs u = -0.3, inside [-0.4, 0.6], and u
+        # never leaves the limits on the way: the response is the linear loop's G S d.
+        r = self.simulate(KILN_FAN, 2.0, 0.5, -0.4, 0.6, "back_calculation", 0.05, horizon=3.0)
+        t, y, u = reference_loop(KILN_FAN, -0.4, 0.6, anti_windup="back_calculation", tt=0.05, r=2.0, r0=2.0,
+                                 load=0.5, horizon=3.0, n=3001)
+        self.assertLess(float(np.max(np.abs(r["y"] - y))), 1e-8)
+        self.assertEqual(r["limited_time_s"], 0.0)
+
+
+class LoadFiguresOfCheck(unittest.TestCase):
+    """check's saturated_load_* figures against a dense reference solution: the peak of |y - r0|
+    (refined on a parabola) and the last exit from the band of 2 % of that peak (interpolated)."""
+
+    def spec(self, aw, load, tt=None):
+        spec = dict(DOSING_PUMP)
+        spec["requirements"] = {"disturbance_step": load, "saturated_load_peak": {"max": 5},
+                                "saturated_load_recovery_s": {"max": 6}}
+        spec["actuator"] = {"min": 0, "max": 1, "anti_windup": aw, "reference_step": 1.5}
+        if tt:
+            spec["actuator"]["tracking_time_s"] = tt
+        return spec
+
+    @staticmethod
+    def figures(t, y, r0):
+        d = np.abs(y - r0)
+        k = int(np.argmax(d))
+        a, b, c = d[k - 1], d[k], d[k + 1]
+        peak = b - 0.125 * (a - c) ** 2 / (a - 2 * b + c)
+        last = int(np.nonzero(d > 0.02 * peak)[0][-1])
+        frac = (d[last] - 0.02 * peak) / (d[last] - d[last + 1])
+        return peak, t[last] + frac * (t[1] - t[0])
+
+    def test_peak_and_recovery_against_solve_ivp(self):
+        for aw, tt in (("none", None), ("back_calculation", 0.3)):
+            metrics = polewright.check(self.spec(aw, 0.59, tt))["worst"]["metrics"]
+            t, y, _ = reference_loop(DOSING_PUMP, 0.0, 1.0, anti_windup=aw, tt=tt, r=1.5, r0=1.5, load=0.59,
+                                     horizon=12.0, n=24001)
+            peak, recovery = self.figures(t, y, 1.5)
+            with self.subTest(anti_windup=aw):
+                self.assertAlmostEqual(metrics["saturated_load_peak"], peak, delta=1e-6)
+                self.assertAlmostEqual(metrics["saturated_load_recovery_s"], recovery, delta=2e-5)
+
+    def test_peak_and_recovery_with_the_slide_against_the_clamped_euler_loop(self):
+        metrics = polewright.check(self.spec("conditional", 0.59))["worst"]["metrics"]
+        h = 1e-5
+        y = clamping_pi_euler(h, 8.0, 1.5, 0.59)
+        peak, recovery = self.figures(np.arange(len(y)) * h, y, 1.5)
+        self.assertAlmostEqual(metrics["saturated_load_peak"], peak, delta=2e-5)  # O(h) (test above)
+        self.assertAlmostEqual(metrics["saturated_load_recovery_s"], recovery, delta=1e-3)
+
+    def test_a_load_beyond_the_headroom_is_never_recovered(self):
+        # u0 = 0.6 < d = 0.8: u is pinned at 0 and y settles at G(0) d = 2.5 * 0.8 = 2.0 (by hand),
+        # 0.5 above r0; the recovery is unbounded (null) and the requirement fails.
+        result = polewright.check(self.spec("conditional", 0.8))
+        worst = result["worst"]
+        self.assertAlmostEqual(worst["metrics"]["saturated_load_peak"], 0.5, delta=1e-4)
+        self.assertIsNone(worst["metrics"]["saturated_load_recovery_s"])
+        self.assertFalse(worst["met"]["saturated_load_recovery_s"])
 
 
 class FirstOrderPiByHand(unittest.TestCase):

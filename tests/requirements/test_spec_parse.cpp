@@ -179,7 +179,7 @@ TEST_CASE("disturbance and noise requirements with their step size and recovery 
   CHECK(d.requirements.disturbance_step == 1.0);
   CHECK(d.requirements.recovery_band == 0.02);
   CHECK(error_after([](json& k) { k["requirements"]["disturbance_step"] = 0; }) ==
-        "$.requirements.disturbance_step: must be > 0 (got 0)");
+        "$.requirements.disturbance_step: must not be 0 (its sign is the direction of the step)");
   CHECK(error_after([](json& k) { k["requirements"]["recovery_band_pct"] = 100; }).find("$.requirements.recovery_band_pct: must be > 0 and < 100") == 0);
   CHECK(error_after([](json& k) { k["requirements"]["load_peak"] = {{"min", 1}}; }).find("$.requirements.load_peak.min: unknown key") == 0);
   CHECK(error_after([](json& k) { k["requirements"]["load_iea"] = {{"max", 1}}; }) ==
@@ -247,7 +247,7 @@ TEST_CASE("the actuator block: limits, rate, anti-windup and the reference step,
         "0 <= u <= 1, |du/dt| <= 4 /s, anti-windup back_calculation (Tt 0.3 s), reference step 1.5");
   // Without the block the saturated figures cannot be judged.
   CHECK(error_after([](json& k) { k["requirements"]["saturated_rise_time_s"] = {{"max", 1}}; }) ==
-        "$.requirements.saturated_rise_time_s: needs $.actuator: the limits the step is simulated with");
+        "$.requirements.saturated_rise_time_s: needs $.actuator: the limits the loop is simulated with");
   CHECK(error_after([](json& k) { k["actuator"] = {{"min", 1}, {"max", 0}}; }) == "$.actuator.min: must be below max");
   CHECK(error_after([](json& k) { k["actuator"] = {{"max", 1}}; }).find("$.actuator.min: is missing") == 0);
   CHECK(error_after([](json& k) { k["actuator"] = {{"min", 0}, {"max", 1}, {"anti_windup", "clamp"}}; }) ==

@@ -78,6 +78,26 @@ void set_saturated_metrics(MetricValues& v, const SaturatedStepFigures& s);
 std::optional<SaturatedStepFigures> saturated_step(const LoopParts& parts, const PoleAnalysis& poles,
                                                    const StepMetrics& linear, const RequirementSet& req);
 
+//   saturated load: peak |y - y0| and recovery time of the load step of size req.disturbance_step
+//   arriving while the loop holds req.held_reference() (recovery infinite when not rejected).
+void set_saturated_load_metrics(MetricValues& v, const SaturatedDisturbanceFigures& d);
+
+// That load step with the actuator limits: over three times the linear load response's horizon
+// (at least 1.5 times a saturated_load_recovery_s limit) at its sample interval (at most 30000
+// samples); rejected only where the linear loop rejects the load. nullopt as for saturated_step,
+// and when the loop cannot hold the operating reference within the limits.
+std::optional<SaturatedDisturbanceFigures> saturated_load(const LoopParts& parts, const DisturbanceMetrics& linear,
+                                                          const RequirementSet& req);
+
+// The sum of the requirement violations of v, leaving out the metrics `skip` says to.
+template <class Skip>
+double violation_except(const RequirementSet& req, const MetricValues& v, Skip&& skip) {
+  double sum = 0.0;
+  for (const Requirement& r : req.items)
+    if (!skip(r.metric)) sum += requirement_violation(r, v[static_cast<size_t>(r.metric)]);
+  return sum;
+}
+
 struct LoopEvaluation {
   std::string plant_name;
   bool well_posed = true;
@@ -90,6 +110,7 @@ struct LoopEvaluation {
   std::optional<DisturbanceMetrics> load, output;  // per unit step, when a requirement asks
   std::optional<NoiseMetrics> noise;
   std::optional<SaturatedStepFigures> saturated;  // the step with the actuator limits, when asked
+  std::optional<SaturatedDisturbanceFigures> saturated_load;  // the load step with them, when asked
   // A measured plant: the frequency figures (margins, crossovers, bandwidth, |S|, |C S|) come from
   // the data, the poles, the step and the rest from the fitted model; `data_notes` says what the
   // measured range cannot show.

@@ -32,8 +32,10 @@ enum class MetricId {
   SaturatedOvershoot,
   SaturatedSettlingTime,
   SaturatedRiseTime,
+  SaturatedLoadPeak,
+  SaturatedLoadRecovery,
 };
-constexpr int kMetricCount = 25;
+constexpr int kMetricCount = 27;
 
 enum class BoundKind { MaxOnly, MinOnly, MinOrMax };
 
@@ -51,6 +53,12 @@ struct MetricInfo {
 
 // True when outputs show the metric: always, or for an on-request one when it has a value.
 inline bool metric_shown(const MetricInfo& info, bool known) { return !info.on_request || known; }
+
+// The saturated_* figures: judged on the simulation with the spec's actuator limits.
+inline bool is_actuator_metric(MetricId id) {
+  return id == MetricId::SaturatedOvershoot || id == MetricId::SaturatedSettlingTime ||
+         id == MetricId::SaturatedRiseTime || id == MetricId::SaturatedLoadPeak || id == MetricId::SaturatedLoadRecovery;
+}
 
 const std::array<MetricInfo, kMetricCount>& metric_table();
 const MetricInfo& metric_info(MetricId id);

@@ -34,6 +34,13 @@ struct RequirementSet {
   // saturated_* figures are judged on (the limits make the response depend on it).
   std::optional<ActuatorLimits> actuator;
   double reference_step = 1.0;
+  // The reference the loop holds when the saturated_load_* step (of disturbance_step) arrives:
+  // the load is met from that operating point's u, with the headroom the limits leave there.
+  // Unset: reference_step.
+  std::optional<double> operating_reference;
+  double held_reference() const { return operating_reference.value_or(reference_step); }
+  // True when a requirement names a figure judged with the actuator limits (saturated_*).
+  bool needs_actuator() const;
 
   bool has(MetricId id) const;
   std::optional<double> limit(MetricId id, Sense sense) const;
