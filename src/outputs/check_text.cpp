@@ -82,7 +82,7 @@ std::string check_report_text(const CheckReport& r) {
   if (r.requirements.controller_gain_at_rad_s)
     out += "  controller_hf_gain is " + r.requirements.label(MetricId::ControllerHighFrequencyGain) + "\n";
   if (r.requirements.actuator) {
-    out += "  saturated_* are judged on the step simulated with the actuator limits: " + r.requirements.actuator_label() + "\n";
+    out += "  saturated_* are judged on the loop simulated with the actuator limits: " + r.requirements.actuator_label() + "\n";
     for (const LoopEvaluation& e : ev.plants)
       if (e.saturated && !e.saturated->reachable)
         out += "  " + e.plant_name + ": the step needs a steady-state u beyond the limits, so y cannot settle at " +

@@ -109,7 +109,7 @@ std::string design_report_text(const DesignReport& r) {
   if (!pid_lines.empty()) out += "\n" + pid_lines;
   out += "\n  metrics are the worst case over the plants; every candidate was re-verified at full accuracy\n";
   if (r.context.requirements.actuator)
-    out += "  saturated_*: the step simulated with the actuator limits, " + r.context.requirements.actuator_label() + "\n";
+    out += "  saturated_*: the loop simulated with the actuator limits, " + r.context.requirements.actuator_label() + "\n";
   out += "  " + fragile_explanation() + "\n";
   out += "  " + std::string(kGainConvention) + "\n";
   if (!r.met()) {

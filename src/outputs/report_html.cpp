@@ -78,7 +78,7 @@ std::vector<ReportSection> report_sections(JobKind job) {
       {"s-plane", "Closed-loop poles and root locus", report_splane_section},
       {"time", "Unit step: output and control effort", report_time_section},
       {"disturbance", "Disturbance steps: output deviation", report_disturbance_section},
-      {"actuator", "Step with the actuator limits", report_saturated_section},
+      {"actuator", "The loop with the actuator limits", report_saturated_section},
       {"frequency", "Loop frequency response", report_frequency_section},
       {"nyquist", "Nyquist plot and delay margin", report_nyquist_section},
   };

@@ -81,7 +81,7 @@ std::string retune_report_text(const RetuneReport& r) {
   out += t.render();
   out += "\n  metrics are the worst case over the plants; every candidate was re-verified at full accuracy\n";
   if (r.context.requirements.actuator)
-    out += "  saturated_*: the step simulated with the actuator limits, " + r.context.requirements.actuator_label() + "\n";
+    out += "  saturated_*: the loop simulated with the actuator limits, " + r.context.requirements.actuator_label() + "\n";
   out += "  change: distance in decades of the low-frequency gain, corners and damping (added stages: RMS magnitude change)\n";
   out += "  " + std::string(kGainConvention) + "\n";
   out += "\nsearch: " + std::to_string(r.summary.evaluations) + " evaluations, " + std::to_string(r.summary.local_runs) +

@@ -372,3 +372,26 @@ TEST_CASE("actuator section: the limited step of every plant over the linear one
   CHECK_THAT(h, Catch::Contains("overshoot limit 10 %"));
   check_page(report_html(d), 10);  // the eight of a check and the two of the limited step
 }
+
+TEST_CASE("actuator section: the limited load step from the operating point, as deviations", "[outputs][report][actuator]") {
+  // Demo data: the pump holding 1.5 (u0 = 0.6) meets a load of 0.59 (u = 0.01 holds it again).
+  const Spec spec = parse_spec(parse_json_text(R"J({
+    "name": "dosing pump, a feed opening upstream (demo data)",
+    "plant": {"gain": 3.125, "poles": [-1.25]},
+    "requirements": {"disturbance_step": 0.59, "saturated_load_peak": {"max": 0.3}, "saturated_load_recovery_s": {"max": 3}},
+    "actuator": {"min": 0, "max": 1, "anti_windup": "conditional", "reference_step": 1.5},
+    "current": {"gain": 1.6, "zeros": [-2], "poles": [0]}
+  })J"));
+  const ReportData d = prepare_report(parse_result(check_report_json(run_check(spec, *spec.current))));
+  const LoopEvaluation& nominal = d.designs.front().evaluation.plants.front();
+  REQUIRE(nominal.saturated_load);
+  CHECK_FALSE(nominal.saturated);
+  CHECK(nominal.saturated_load->response.limited_time_s > 0.5);  // the slide along u = 0
+  const std::string h = report_saturated_section(d);
+  CHECK(outer_svgs(h).size() == 2);  // no limited reference step asked: the load pair only
+  CHECK_THAT(h, Catch::Contains("Deviation y(t) - y0 after the load step, limited"));
+  CHECK_THAT(h, Catch::Contains("while the loop holds the reference 1.5 (y0)"));
+  CHECK_THAT(h, Catch::Contains("peak limit +-0.3"));
+  CHECK_THAT(h, Catch::Contains("recovery limit 3 s"));
+  CHECK_THAT(h, Catch::Contains("without limits (linear), nominal"));
+}

@@ -328,3 +328,53 @@ TEST_CASE("saturated step figures: a PI held at its limit winds up; the figures 
   plain.actuator = lim;
   CHECK_FALSE(evaluate_loop(pi, g, plain, region_from_requirements(plain), AnalysisOptions{}).saturated);
 }
+
+TEST_CASE("evaluate_loop: the load step with the actuator limits, from the operating point", "[requirements][evaluate][actuator]") {
+  // The pump G = 3.125 / (s + 1.25) (G(0) = 2.5) with the PI 1.6 (s + 2) / s holds r0 = 1.5 with
+  // u0 = 0.6 (by hand). A load of 0.8 needs u = -0.2 < 0: y settles at G(0) 0.8 = 2.0, 0.5 above r0,
+  // and never recovers (infinite). A load of 0.3 (u = 0.3) leaves the limits untouched, so the
+  // figures are the linear load response's: peak = 0.3 load_peak, the same recovery time.
+  Plant g;
+  g.tf.gain = 3.125;
+  g.tf.poles = {Complex(-1.25, 0)};
+  Zpk pi;
+  pi.gain = 1.6;
+  pi.zeros = {Complex(-2, 0)};
+  pi.poles = {Complex(0, 0)};
+  RequirementSet req;
+  req.items = {{MetricId::SaturatedLoadPeak, Sense::AtMost, 1.0}, {MetricId::SaturatedLoadRecovery, Sense::AtMost, 10.0},
+               {MetricId::LoadPeak, Sense::AtMost, 1.0}, {MetricId::LoadRecovery, Sense::AtMost, 10.0}};
+  ActuatorLimits lim;
+  lim.minimum = 0.0;
+  lim.maximum = 1.0;
+  lim.anti_windup = AntiWindup::Conditional;
+  req.actuator = lim;
+  req.reference_step = 1.5;
+  req.disturbance_step = 0.8;
+  const Region region = region_from_requirements(req);
+  auto val = [](const LoopEvaluation& x, MetricId id) { return x.values[static_cast<size_t>(id)]; };
+  const LoopEvaluation far = evaluate_loop(pi, g, req, region, AnalysisOptions{});
+  REQUIRE(far.saturated_load);
+  CHECK(far.saturated_load->baseline == Approx(1.5).margin(1e-12));
+  CHECK(far.saturated_load->held_u == Approx(0.6).margin(1e-12));
+  CHECK(*val(far, MetricId::SaturatedLoadPeak).value == Approx(0.5).margin(1e-6));
+  CHECK(val(far, MetricId::SaturatedLoadRecovery).infinite);
+  CHECK_FALSE(far.saturated);  // no saturated step requirement: no limited step simulated
+
+  req.disturbance_step = 0.3;
+  const LoopEvaluation near = evaluate_loop(pi, g, req, region, AnalysisOptions{});
+  REQUIRE(near.saturated_load);
+  CHECK(near.saturated_load->response.limited_time_s == 0.0);
+  CHECK(*val(near, MetricId::SaturatedLoadPeak).value == Approx(*val(near, MetricId::LoadPeak).value).epsilon(1e-8));
+  CHECK(*val(near, MetricId::SaturatedLoadRecovery).value ==
+        Approx(*val(near, MetricId::LoadRecovery).value).epsilon(1e-6));
+
+  // Screening skips it while the other requirements are far from met.
+  req.items.push_back({MetricId::PhaseMargin, Sense::AtLeast, 179.0});
+  EvaluationNeeds screening;
+  screening.everything = false;
+  screening.step_gate = 0.1;  // the phase margin misses by (179 - 65.8) / 179 of its limit
+  CHECK_FALSE(evaluate_loop(pi, g, req, region, AnalysisOptions{}, screening).saturated_load);
+  req.items.pop_back();
+  CHECK(evaluate_loop(pi, g, req, region, AnalysisOptions{}, screening).saturated_load);
+}

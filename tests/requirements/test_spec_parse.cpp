@@ -268,3 +268,35 @@ TEST_CASE("the actuator block: limits, rate, anti-windup and the reference step,
           k["implementation"] = {{"sample_time_s", 0.01}};
         }).find("$.requirements.saturated_overshoot_pct: is not judged on the sampled loop yet") == 0);
 }
+
+TEST_CASE("the limited load step: operating_reference, a signed disturbance_step, errors named",
+          "[requirements][spec_parse][actuator]") {
+  json j = json::parse(kBase);
+  j["actuator"] = {{"min", 0}, {"max", 1}, {"reference_step", 1.5}};
+  j["requirements"]["disturbance_step"] = -0.3;
+  j["requirements"]["saturated_load_peak"] = {{"max", 0.2}};
+  j["requirements"]["saturated_load_recovery_s"] = {{"max", 2}};
+  const Spec s = parse_spec(j);
+  CHECK(s.requirements.disturbance_step == -0.3);
+  CHECK_FALSE(s.requirements.operating_reference);
+  CHECK(s.requirements.held_reference() == 1.5);  // the reference step's level by default
+  CHECK(s.requirements.needs_actuator());
+  CHECK(s.requirements.actuator_label() == "0 <= u <= 1, no anti-windup, reference step 1.5, load step -0.3 held at reference 1.5");
+  j["actuator"]["operating_reference"] = 0.8;
+  CHECK(parse_spec(j).requirements.held_reference() == 0.8);
+  auto error_of = [&](auto change) {
+    json k = j;
+    change(k);
+    try {
+      parse_spec(k);
+    } catch (const SpecError& e) {
+      return std::string(e.what());
+    }
+    return std::string("no error");
+  };
+  CHECK(error_of([](json& k) { k["actuator"]["operating_reference"] = "high"; }).find("$.actuator.operating_reference:") == 0);
+  CHECK(error_of([](json& k) { k.erase("actuator"); }) ==
+        "$.requirements.saturated_load_peak: needs $.actuator: the limits the loop is simulated with");
+  CHECK(error_of([](json& k) { k["implementation"] = {{"sample_time_s", 0.01}}; })
+            .find("$.requirements.saturated_load_peak: is not judged on the sampled loop yet") == 0);
+}

@@ -113,3 +113,48 @@ TEST_CASE("the actuator's range: a reference step needing u = r / G(0) beyond th
   motor.tf.poles = {Complex(0, 0), Complex(-2, 0)};
   CHECK_FALSE(actuator_limit(plant_limits({motor}, req, region, stages)));
 }
+
+TEST_CASE("the actuator's range: a load step beyond the headroom at the operating point binds", "[synthesis][limits][actuator]") {
+  // Holding r0 = 1.5 on G(0) = 2.5 takes u0 = 0.6; a load d at the plant input then needs
+  // u = u0 - d (final-value theorem, by hand). A plant with an integrator holds r0 with u0 = 0.
+  Plant pump;
+  pump.name = "pump";
+  pump.tf.gain = 3.125;
+  pump.tf.poles = {Complex(-1.25, 0)};
+  RequirementSet req;
+  req.items = {{MetricId::SaturatedLoadRecovery, Sense::AtMost, 3.0}};
+  ActuatorLimits lim;
+  lim.minimum = 0.0;
+  lim.maximum = 1.0;
+  req.actuator = lim;
+  req.reference_step = 1.5;
+  req.disturbance_step = 0.8;
+  StageSettings stages;
+  const Region region = region_from_requirements(req);
+  auto actuator_limit = [&](const std::vector<PlantLimit>& l) -> const PlantLimit* {
+    for (const PlantLimit& x : l)
+      if (x.kind == "actuator_range") return &x;
+    return nullptr;
+  };
+  const std::vector<PlantLimit> l = plant_limits({pump}, req, region, stages);
+  const PlantLimit* a = actuator_limit(l);
+  REQUIRE(a);
+  CHECK(a->at == Approx(-0.2).epsilon(1e-12));
+  CHECK(a->requirement == "saturated_load_recovery_s");
+  CHECK_THAT(a->message, Catch::Contains("below the actuator minimum 0"));
+  req.disturbance_step = 0.5;  // u = 0.1: within
+  CHECK_FALSE(actuator_limit(plant_limits({pump}, req, region, stages)));
+  req.operating_reference = 0.5;  // u0 = 0.2, u = -0.3
+  CHECK(actuator_limit(plant_limits({pump}, req, region, stages)));
+  req.disturbance_step = -1.0;  // u = 1.2 above the maximum
+  CHECK_THAT(actuator_limit(plant_limits({pump}, req, region, stages))->message, Catch::Contains("above the actuator maximum 1"));
+  Plant motor;
+  motor.tf.gain = 4;
+  motor.tf.poles = {Complex(0, 0), Complex(-2, 0)};
+  req.disturbance_step = 0.9;  // u = -0.9 for the integrating plant
+  CHECK(actuator_limit(plant_limits({motor}, req, region, stages)));
+  req.disturbance_step = -0.9;  // u = 0.9: within
+  CHECK_FALSE(actuator_limit(plant_limits({motor}, req, region, stages)));
+  // The recovery needs an integrator in the compensator.
+  CHECK(compensator_integrator_driver(req) == MetricId::SaturatedLoadRecovery);
+}
