@@ -44,8 +44,11 @@ int bench_evaluate(int argc, char** argv) {
   for (int i = 1; i < argc; ++i)
     if (!std::strcmp(argv[i], "--disturbance")) disturbance = true;
   double actuator = 0.0;  // --actuator F: limits |u| <= F and the saturated_* requirements
-  for (int i = 1; i + 1 < argc; ++i)
+  double actuator_load = 0.0;  // --actuator-load D: with --actuator, the saturated_load_* figures of a load D
+  for (int i = 1; i + 1 < argc; ++i) {
     if (!std::strcmp(argv[i], "--actuator")) actuator = std::atof(argv[i + 1]);
+    if (!std::strcmp(argv[i], "--actuator-load")) actuator_load = std::atof(argv[i + 1]);
+  }
   for (int i = 1; i + 1 < argc; i += 2) {
     if (!std::strcmp(argv[i], "--seconds")) seconds = std::atof(argv[i + 1]);
     if (!std::strcmp(argv[i], "--count")) count = std::atoll(argv[i + 1]);
@@ -73,6 +76,11 @@ int bench_evaluate(int argc, char** argv) {
     lim.maximum = actuator;
     req.actuator = lim;
     req.items.insert(req.items.end(), {{MetricId::SaturatedOvershoot, Sense::AtMost, 10}, {MetricId::SaturatedSettlingTime, Sense::AtMost, 1.0}});
+    if (actuator_load != 0.0) {
+      req.disturbance_step = actuator_load;
+      req.items.insert(req.items.end(), {{MetricId::SaturatedLoadPeak, Sense::AtMost, 2e-4 * std::abs(actuator_load)},
+                                         {MetricId::SaturatedLoadRecovery, Sense::AtMost, 1.0}});
+    }
   }
   const Region region = region_from_requirements(req);
   AnalysisOptions opt = AnalysisOptions::Screening(AnalysisOptions{});
@@ -102,7 +110,7 @@ int bench_evaluate(int argc, char** argv) {
   im.method = DiscreteMethod::Tustin;
   im.compute_delay_samples = 1.0;
   struct Run {
-    long long n = 0, stable = 0, met = 0, simulated = 0;
+    long long n = 0, stable = 0, met = 0, simulated = 0, limited = 0;
     double checksum = 0.0, elapsed = 0.0;
   };
   auto run = [&](bool sampled) {
@@ -120,7 +128,8 @@ int bench_evaluate(int argc, char** argv) {
         bool all = e.stable;
         for (const Requirement& q : req.items) all = all && requirement_met(q, e.values[static_cast<size_t>(q.metric)]);
         r.met += all;
-        r.simulated += e.load.has_value() || e.saturated.has_value();
+        r.simulated += e.load.has_value() || e.saturated.has_value() || e.saturated_load.has_value();
+        r.limited += e.saturated.has_value() || e.saturated_load.has_value();
         if (e.values[0].value) r.checksum += *e.values[0].value;
       }
       r.elapsed = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
@@ -131,11 +140,14 @@ int bench_evaluate(int argc, char** argv) {
               seed, full ? "full-accuracy (check)" : "screening");
   if (disturbance) std::printf("with the disturbance and noise requirements\n");
   if (actuator > 0.0) std::printf("with saturated_overshoot_pct and saturated_settling_time_s, |u| <= %g\n", actuator);
+  if (actuator > 0.0 && actuator_load != 0.0)
+    std::printf("and saturated_load_peak, saturated_load_recovery_s for a load step of %g\n", actuator_load);
   const Run c = run(false);
   std::printf("evaluations: %lld in %.2f s on one thread; stable %lld, meeting all %lld (checksum %.6g)\n", c.n, c.elapsed,
               c.stable, c.met, c.checksum);
   if (disturbance || actuator > 0.0)
-    std::printf("disturbance or limited steps simulated for %lld evaluations (the rest screened out)\n", c.simulated);
+    std::printf("disturbance or limited steps simulated for %lld evaluations, with the actuator limits for %lld (the rest "
+                "screened out)\n", c.simulated, c.limited);
   std::printf("evaluations per second: %.0f\n", c.n / c.elapsed);
   if (sample_time > 0.0) {
     const Run d = run(true);

@@ -11,7 +11,7 @@ int bench_saturated(int argc, char** argv);
 
 int main(int argc, char** argv) {
   if (argc < 2 || std::strcmp(argv[1], "--help") == 0) {
-    std::printf("usage: polewright-bench evaluate [--seconds S | --count N] [--seed N] [--full] [--disturbance] [--actuator F] [--sample-time T [--between]]\n       polewright-bench design [SPEC...]\n       polewright-bench sweep [--points N]\n       polewright-bench planted [--count N] [--seed S] [--slack F] [--threads T] [--budget-s B] [--write-specs DIR] [--verbose]\n       polewright-bench saturated [--seconds S] [--fraction F] [--rate R]\n");
+    std::printf("usage: polewright-bench evaluate [--seconds S | --count N] [--seed N] [--full] [--disturbance] [--actuator F [--actuator-load D]] [--sample-time T [--between]]\n       polewright-bench design [SPEC...]\n       polewright-bench sweep [--points N]\n       polewright-bench planted [--count N] [--seed S] [--slack F] [--threads T] [--budget-s B] [--write-specs DIR] [--verbose]\n       polewright-bench saturated [--seconds S] [--fraction F] [--rate R]\n");
     return argc < 2 ? 2 : 0;
   }
   const std::string what = argv[1];
