@@ -51,14 +51,8 @@ std::string disturbance_plot(const ReportData& d, const Kind& k) {
     if (!m || m->trace.y.empty() || !(m->trace.dt > 0.0)) continue;
     any = true;
     std::vector<double> t, v;
-    for (size_t j = 0; j < m->trace.y.size(); ++j) {
-      const double tj = m->trace.dt * static_cast<double>(j);
-      if (tj > t_end) break;
-      t.push_back(tj);
-      v.push_back(step * m->trace.y[j]);
-      lo = std::min(lo, v.back());
-      hi = std::max(hi, v.back());
-    }
+    report::samples_xy(m->trace.y, m->trace.dt, t_end, step, t, v);
+    report::range_of(v, lo, hi);
     Style s;
     s.stroke = colour;
     s.width = i == 0 ? 2.0 : 1.5;

@@ -15,25 +15,8 @@ namespace pw {
 
 namespace {
 
-// Samples of `x` at k dt up to t_end, scaled by `scale`.
-void samples_xy(const std::vector<double>& x, double dt, double t_end, double scale, std::vector<double>& t,
-                std::vector<double>& v) {
-  t.clear();
-  v.clear();
-  for (size_t j = 0; j < x.size(); ++j) {
-    const double tj = dt * static_cast<double>(j);
-    if (tj > t_end) break;
-    t.push_back(tj);
-    v.push_back(scale * x[j]);
-  }
-}
-
-void widen(const std::vector<double>& v, double& lo, double& hi) {
-  for (double x : v) {
-    lo = std::min(lo, x);
-    hi = std::max(hi, x);
-  }
-}
+using report::range_of;
+using report::samples_xy;
 
 // One limited response per plant (null where none), y shifted by `offsets` (the operating point).
 struct Limited {
@@ -69,11 +52,20 @@ void draw_limited(Plot& py, Plot& pu, const ReportData& d, const Limited& l, con
     const std::string name = report::plant_name(d, i);
     samples_xy(r->y, r->dt, t_end, 1.0, t, v);
     for (double& x : v) x -= l.offset[i];
-    widen(v, ylo, yhi);
+    range_of(v, ylo, yhi);
     py.line(t, v, s, name + ", limited");
     samples_xy(r->u, r->dt, t_end, 1.0, t, v);
     pu.line(t, v, s, name + ", applied");
   }
+}
+
+// The nominal loop without limits, muted under the limited responses.
+Style linear_style() {
+  Style lin;
+  lin.stroke = colour::kMuted;
+  lin.width = 1.6;
+  lin.dash = "7 4";
+  return lin;
 }
 
 Style limit_style() {
@@ -127,16 +119,13 @@ std::string step_figures(const ReportData& d, const ReportDesign& rd) {
   std::vector<double> t, v;
   // The linear loop's response to the same step, muted, under the limited ones.
   const LoopEvaluation& nominal = rd.evaluation.plants.front();
-  Style lin;
-  lin.stroke = colour::kMuted;
-  lin.width = 1.6;
-  lin.dash = "7 4";
+  const Style lin = linear_style();
   if (nominal.step && !nominal.step->trace.y.empty()) {
     samples_xy(nominal.step->trace.y, nominal.step->trace.dt, t_end, step, t, v);
-    widen(v, ylo, yhi);
+    range_of(v, ylo, yhi);
     py.line(t, v, lin, "without limits (linear), nominal");
     samples_xy(nominal.step->trace.u, nominal.step->trace.dt, t_end, step, t, v);
-    widen(v, ulo, uhi);
+    range_of(v, ulo, uhi);
     pu.line(t, v, lin, "demand without limits (linear), nominal");
   }
   draw_limited(py, pu, d, l, colour, t_end, ylo, yhi);
@@ -144,7 +133,7 @@ std::string step_figures(const ReportData& d, const ReportDesign& rd) {
     const double target = nominal.saturated ? nominal.saturated->target : step;
     py.hline(target * (1.0 + *os / 100.0), limit_style(), "overshoot limit " + format_number(*os, 3) + " %",
              "requirement limits");
-    widen({target * (1.0 + *os / 100.0)}, ylo, yhi);
+    range_of({target * (1.0 + *os / 100.0)}, ylo, yhi);
   }
   if (auto ts = req.limit(MetricId::SaturatedSettlingTime, Sense::AtMost))
     py.vline(*ts, limit_style(), "settling limit " + format_number(*ts, 3) + " s", "", true);
@@ -183,19 +172,16 @@ std::string load_figures(const ReportData& d, const ReportDesign& rd) {
   std::vector<double> t, v;
   const LoopEvaluation& nominal = rd.evaluation.plants.front();
   if (nominal.load && !nominal.load->trace.y.empty()) {
-    Style lin;
-    lin.stroke = colour::kMuted;
-    lin.width = 1.6;
-    lin.dash = "7 4";
+    const Style lin = linear_style();
     samples_xy(nominal.load->trace.y, nominal.load->trace.dt, t_end, step, t, v);
-    widen(v, ylo, yhi);
+    range_of(v, ylo, yhi);
     py.line(t, v, lin, "without limits (linear), nominal");
   }
   draw_limited(py, pu, d, l, colour, t_end, ylo, yhi);
   if (auto pk = req.limit(MetricId::SaturatedLoadPeak, Sense::AtMost)) {
     py.hline(*pk, limit_style(), "peak limit +-" + format_number(*pk, 3), "requirement limits");
     py.hline(-*pk, limit_style(), "");
-    widen({*pk, -*pk}, ylo, yhi);
+    range_of({*pk, -*pk}, ylo, yhi);
   }
   if (auto tr = req.limit(MetricId::SaturatedLoadRecovery, Sense::AtMost))
     py.vline(*tr, limit_style(), "recovery limit " + format_number(*tr, 3) + " s", "", true);

@@ -67,21 +67,28 @@ void draw_step_bounds(Plot& p, const ReportData& d, double yf, double t_end) {
   }
 }
 
-void trace_xy(const StepTrace& tr, bool effort, double t_end, std::vector<double>& t, std::vector<double>& v) {
+void samples_xy(const std::vector<double>& x, double dt, double t_end, double scale, std::vector<double>& t,
+                std::vector<double>& v) {
   t.clear();
   v.clear();
-  const std::vector<double>& src = effort ? tr.u : tr.y;
-  for (size_t i = 0; i < src.size(); ++i) {
-    const double ti = tr.dt * static_cast<double>(i);
-    if (ti > t_end * 1.0001 && i > 0) {
-      // One point past the end keeps the line running to the frame.
-      t.push_back(ti);
-      v.push_back(src[i]);
-      break;
-    }
+  for (size_t i = 0; i < x.size(); ++i) {
+    const double ti = dt * static_cast<double>(i);
     t.push_back(ti);
-    v.push_back(src[i]);
+    v.push_back(scale * x[i]);
+    if (ti > t_end * 1.0001 && i > 0) break;  // one point past the end keeps the line to the frame
   }
+}
+
+void trace_xy(const StepTrace& tr, bool effort, double t_end, std::vector<double>& t, std::vector<double>& v) {
+  samples_xy(effort ? tr.u : tr.y, tr.dt, t_end, 1.0, t, v);
+}
+
+void range_of(const std::vector<double>& v, double& lo, double& hi) {
+  for (double x : v)
+    if (std::isfinite(x)) {
+      lo = std::min(lo, x);
+      hi = std::max(hi, x);
+    }
 }
 
 }  // namespace report
@@ -95,14 +102,6 @@ std::optional<double> first_crossing(const StepTrace& tr, double level, double s
     if (a < 0.0 && b >= 0.0) return tr.dt * (static_cast<double>(i - 1) + a / (a - b));
   }
   return std::nullopt;
-}
-
-void range_of(const std::vector<double>& v, double& lo, double& hi) {
-  for (double x : v)
-    if (std::isfinite(x)) {
-      lo = std::min(lo, x);
-      hi = std::max(hi, x);
-    }
 }
 
 }  // namespace
@@ -133,10 +132,10 @@ std::string report_time_section(const ReportData& d) {
     s.dash = variant_dash(static_cast<int>(i));
     const std::string name = report::plant_name(d, i);
     report::trace_xy(e.step->trace, false, t_end, t, v);
-    range_of(v, ylo, yhi);
+    report::range_of(v, ylo, yhi);
     py.line(t, v, s, name);
     report::trace_xy(e.step->trace, true, t_end, t, v);
-    range_of(v, ulo, uhi);
+    report::range_of(v, ulo, uhi);
     pu.line(t, v, s, name);
   }
   if (!any) return "<p class=\"pw-bad\">No step response: the nominal closed loop is unstable or not well posed.</p>\n";
@@ -146,10 +145,10 @@ std::string report_time_section(const ReportData& d) {
     if (old.step && !old.step->trace.y.empty()) {
       const Style s = report::previous_style();
       report::trace_xy(old.step->trace, false, t_end, t, v);
-      range_of(v, ylo, yhi);
+      report::range_of(v, ylo, yhi);
       py.line(t, v, s, "old design (in service), nominal");
       report::trace_xy(old.step->trace, true, t_end, t, v);
-      range_of(v, ulo, uhi);
+      report::range_of(v, ulo, uhi);
       pu.line(t, v, s, "old design (in service), nominal");
     }
   }

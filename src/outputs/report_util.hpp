@@ -99,7 +99,15 @@ double step_plot_end(const ReportData& d);
 // settling limit onward, for a loop with final value yf.
 void draw_step_bounds(Plot& p, const ReportData& d, double yf, double t_end);
 
-// Time samples of a trace, cut at t_end.
+// Samples x[k] at t = k dt, times `scale`, up to t_end and one point past it (so the line runs
+// to the frame).
+void samples_xy(const std::vector<double>& x, double dt, double t_end, double scale, std::vector<double>& t,
+                std::vector<double>& v);
+
+// Time samples of a trace (y, or u with `effort`), cut at t_end as samples_xy.
 void trace_xy(const StepTrace& tr, bool effort, double t_end, std::vector<double>& t, std::vector<double>& v);
+
+// Widens [lo, hi] to take in the finite values of v.
+void range_of(const std::vector<double>& v, double& lo, double& hi);
 
 }  // namespace pw::report
