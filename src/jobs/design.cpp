@@ -609,10 +609,14 @@ DesignReport run_design(const Spec& spec, const DesignOptions& o) {
           if (x.requirement.metric == out.requirement.metric && x.requirement.sense == out.requirement.sense) mine = &x;
           else rest = rest && x.met;
         }
-        if (!rest || !mine || !mine->worst.value) return;
-        const double v = *mine->worst.value;
-        const bool improves = !b.best_value.value ||
-                              (out.requirement.sense == Sense::AtMost ? v < *b.best_value.value : v > *b.best_value.value);
+        // An unbounded value (a recovery the actuator cannot make, an infinite margin) counts too:
+        // the worst an at-most bound can see, the best an at-least one can.
+        if (!rest || !mine || !(mine->worst.value || mine->worst.infinite)) return;
+        auto key = [](const MetricValue& m) { return m.value ? *m.value : INFINITY; };
+        const double v = key(mine->worst);
+        const bool none = !b.best_value.value && !b.best_value.infinite;
+        const bool improves =
+            none || (out.requirement.sense == Sense::AtMost ? v < key(b.best_value) : v > key(b.best_value));
         if (improves) {
           b.best_value = mine->worst;
           b.best_design = c.compensator;

@@ -148,6 +148,7 @@ nlohmann::json design_report_json(const DesignReport& r, bool include_timing) {
                        {"bound", b.requirement.sense == Sense::AtMost ? "max" : "min"},
                        {"limit", json_number(b.requirement.limit)},
                        {"best_value_when_relaxed", json_number(b.best_value)},
+                       {"best_value_unbounded", b.best_value.infinite && !b.best_value.value},
                        {"relaxing_it_meets_the_rest", b.relaxing_meets_the_rest},
                        {"design_when_relaxed", b.best_design ? json_compensator(*b.best_design) : nlohmann::json(nullptr)}});
   j["binding"] = binding;

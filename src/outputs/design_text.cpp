@@ -116,7 +116,9 @@ std::string design_report_text(const DesignReport& r) {
     out += "\nnothing meets every requirement.\n";
     for (const BindingRequirement& b : r.binding)
       out += "  binding: " + std::string(metric_info(b.requirement.metric).key) + " (limit " + fmt_number(b.requirement.limit) +
-             "): best reachable with it relaxed " + (b.best_value.value ? fmt_number(*b.best_value.value) : std::string("n/a")) +
+             "): best reachable with it relaxed " +
+             (b.best_value.value ? fmt_number(*b.best_value.value)
+                                 : std::string(b.best_value.infinite ? "unbounded (every design tried)" : "n/a")) +
              (b.relaxing_meets_the_rest ? ", and then everything else is met" : "") + "\n";
   }
   bool any_limit = false;

@@ -27,6 +27,8 @@ std::string report_diagnosis_html(const ReportData& d) {
         }
       const std::string u = unit.empty() ? "" : " " + unit;
       auto with_unit = [&](const char* k) {
+        if (!std::strcmp(k, "best_value_when_relaxed") && b.value("best_value_unbounded", false))
+          return std::string("unbounded (every design tried)");
         const std::string v = num(k);
         return v == "n/a" ? v : v + u;
       };

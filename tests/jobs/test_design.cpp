@@ -86,6 +86,32 @@ TEST_CASE("a right-half-plane zero against a fast settling limit ends not met, n
   CHECK(j.at("search").at("phases").at(0).at("name") == "first pass");
 }
 
+TEST_CASE("a load beyond the actuator's headroom: binding actuator_range, its recovery unbounded for every design", "[jobs][design][actuator]") {
+  // Holding 0.5 on G(0) = 2.5 takes u0 = 0.2; a load of 0.3 then needs u = -0.1, below the
+  // minimum 0 (final-value theorem, by hand), so no compensator returns y: the diagnosis must say
+  // the relaxed recovery is unbounded, not that nothing was found. Dosing pump: demo data.
+  const Spec spec = spec_of(R"({"plant": {"gain": 3.125, "poles": [-1.25]},
+    "requirements": {"phase_margin_deg": {"min": 50}, "disturbance_step": 0.3, "saturated_load_recovery_s": {"max": 2.5}},
+    "actuator": {"min": 0, "max": 1, "anti_windup": "conditional", "operating_reference": 0.5},
+    "stages": {"integrator": true, "frequency_range_rad_s": [0.1, 100]}, "search": {"time_limit_s": 2}})");
+  DesignOptions o = DesignOptions::FromSpec(spec);
+  o.threads = 1;
+  const DesignReport r = run_design(spec, o);
+  CHECK_FALSE(r.met());
+  bool named = false;
+  for (const PlantLimit& l : r.limits)
+    named = named || (l.kind == "actuator_range" && l.binding && l.requirement == "saturated_load_recovery_s");
+  CHECK(named);
+  REQUIRE_FALSE(r.binding.empty());
+  const BindingRequirement& b = r.binding.front();
+  CHECK(b.requirement.metric == MetricId::SaturatedLoadRecovery);
+  CHECK(b.best_value.infinite);
+  CHECK_FALSE(b.best_value.value);
+  CHECK(b.relaxing_meets_the_rest);
+  CHECK(design_report_json(r).at("binding").at(0).at("best_value_unbounded") == true);
+  CHECK_THAT(design_report_text(r), Catch::Contains("best reachable with it relaxed unbounded (every design tried)"));
+}
+
 TEST_CASE("design output is byte-identical on 1 and 2 threads", "[jobs][design]") {
   const Spec spec = parse_spec(read_json_file(std::string(POLEWRIGHT_SOURCE_DIR) + "/specs/magnetic-bearing.json"));
   std::string out[2];

@@ -254,6 +254,10 @@ TEST_CASE("the diagnosis of a binding requirement with no value reached says n/a
   const std::string h = report_diagnosis_html(prepare_report(parse_result(doc)));
   CHECK(h.find("best reachable with it relaxed n/a</li>") != std::string::npos);
   CHECK(h.find("n/a s") == std::string::npos);
+  // Every design tried leaves the metric unbounded (a recovery the limits cannot make): said so.
+  doc["binding"][0]["best_value_unbounded"] = true;
+  const std::string u = report_diagnosis_html(prepare_report(parse_result(doc)));
+  CHECK(u.find("best reachable with it relaxed unbounded (every design tried)</li>") != std::string::npos);
 }
 
 TEST_CASE("with an implementation block every candidate of the report is judged on the sampled loop", "[outputs][report][implementation]") {
