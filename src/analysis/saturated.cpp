@@ -399,33 +399,36 @@ struct RestPoint {
   double y = 0.0;
 };
 
-RestPoint rest_point(const Zpk& compensator, const StateSpace& plant, const ActuatorLimits& limits, double r0) {
-  SaturatedInputs held;
-  held.reference = r0;
-  Loop loop(compensator, plant, limits, held);
-  const int n = loop.states();
+bool within_limits(const ActuatorLimits& limits, double u) {
+  const double u_tol = 1e-9 * std::max({std::abs(limits.minimum), std::abs(limits.maximum), std::abs(u)});
+  return u >= limits.minimum - u_tol && u <= limits.maximum + u_tol;
+}
+
+// `n`: the states of the loop that starts there (its layout is the held loop's). With r0 = 0 all
+// states and u are zero at t = 0- (u held at the nearer limit if 0 is outside) and no loop is built.
+RestPoint rest_point(const Zpk& compensator, const StateSpace& plant, const ActuatorLimits& limits, double r0, int n) {
   RestPoint rp;
   rp.z = Vec::Zero(n);
-  if (r0 != 0.0) {
-    const Mode& lin = loop.mode(ActuatorMode::Linear, false);
-    const int k = limits.rate_limit ? n - 1 : n;  // the ramp state comes last and is fixed below
-    const Mat A = lin.A.topLeftCorner(k, k);
-    const Eigen::FullPivLU<Eigen::MatrixXd> lu{Eigen::MatrixXd(A)};
-    if (lu.rank() < k || lu.rcond() < 1e-13)
-      throw std::invalid_argument("the loop has no unique equilibrium at the operating reference");
-    rp.z.head(k) = lu.solve(Eigen::VectorXd(-lin.b.head(k)));
-  }
-  if (r0 == 0.0) {  // all states and u zero at t = 0- (u held at the nearest limit if 0 is outside)
+  if (r0 == 0.0) {
     rp.u = std::clamp(0.0, limits.minimum, limits.maximum);
     return rp;
   }
-  const double u_tol = 1e-9 * std::max({std::abs(limits.minimum), std::abs(limits.maximum), 1e-300});
+  SaturatedInputs held;
+  held.reference = r0;
+  Loop loop(compensator, plant, limits, held);
+  const Mode& lin = loop.mode(ActuatorMode::Linear, false);
+  const int k = limits.rate_limit ? n - 1 : n;  // the ramp state comes last and is fixed below
+  const Mat A = lin.A.topLeftCorner(k, k);
+  const Eigen::FullPivLU<Eigen::MatrixXd> lu{Eigen::MatrixXd(A)};
+  if (lu.rank() < k || lu.rcond() < 1e-13)
+    throw std::invalid_argument("the loop has no unique equilibrium at the operating reference");
+  rp.z.head(k) = lu.solve(Eigen::VectorXd(-lin.b.head(k)));
   rp.u = loop.v(rp.z);
-  if (rp.u < limits.minimum - u_tol || rp.u > limits.maximum + u_tol)
+  if (!within_limits(limits, rp.u))
     throw std::invalid_argument("the loop cannot hold the operating reference within the actuator limits");
   rp.u = std::clamp(rp.u, limits.minimum, limits.maximum);
   if (limits.rate_limit) rp.z(n - 1) = rp.u;
-  rp.y = loop.mode(ActuatorMode::Linear, false).y.at(rp.z);
+  rp.y = lin.y.at(rp.z);
   return rp;
 }
 
@@ -644,19 +647,14 @@ class ExactTrace {
   const SaturatedResponse& r_;
 };
 
-bool within_limits(const ActuatorLimits& limits, double u) {
-  const double u_tol = 1e-9 * std::max({std::abs(limits.minimum), std::abs(limits.maximum), std::abs(u)});
-  return u >= limits.minimum - u_tol && u <= limits.maximum + u_tol;
-}
-
 }  // namespace
 
 SaturatedResponse simulate_saturated(const Zpk& compensator, const StateSpace& plant, const ActuatorLimits& limits,
                                      const SaturatedInputs& inputs, const SaturatedOptions& options) {
   std::string why;
   if (!limits.IsValid(&why) || !options.IsValid(&why)) throw std::invalid_argument(why);
-  const RestPoint start = rest_point(compensator, plant, limits, inputs.initial_reference);
   Loop loop(compensator, plant, limits, inputs);
+  const RestPoint start = rest_point(compensator, plant, limits, inputs.initial_reference, loop.states());
   return run(loop, limits, options, nullptr, start);
 }
 
@@ -666,8 +664,8 @@ SaturatedStepFigures saturated_step_figures(const Zpk& compensator, const StateS
                                             double band) {
   std::string why;
   if (!limits.IsValid(&why) || !options.IsValid(&why)) throw std::invalid_argument(why);
-  const RestPoint start = rest_point(compensator, plant, limits, inputs.initial_reference);
   Loop loop(compensator, plant, limits, inputs);
+  const RestPoint start = rest_point(compensator, plant, limits, inputs.initial_reference, loop.states());
   Trajectory tr;
   SaturatedStepFigures f;
   f.response = run(loop, limits, options, &tr, start);
@@ -703,8 +701,8 @@ SaturatedDisturbanceFigures saturated_disturbance_figures(const Zpk& compensator
   if (!limits.IsValid(&why) || !options.IsValid(&why)) throw std::invalid_argument(why);
   if (inputs.reference != inputs.initial_reference)
     throw std::invalid_argument("a disturbance response holds the reference: reference must equal initial_reference");
-  const RestPoint start = rest_point(compensator, plant, limits, inputs.initial_reference);
   Loop loop(compensator, plant, limits, inputs);
+  const RestPoint start = rest_point(compensator, plant, limits, inputs.initial_reference, loop.states());
   Trajectory tr;
   SaturatedDisturbanceFigures f;
   f.response = run(loop, limits, options, &tr, start);

@@ -22,6 +22,9 @@ MetricValue infinite() {
   return m;
 }
 
+// A time that may never come (y outside the band at the horizon, or unable to get there): unbounded.
+MetricValue time_or_unbounded(const std::optional<double>& t) { return t ? number(t) : infinite(); }
+
 double limit_scale(const Requirement& r) { return std::abs(r.limit) > 0.0 ? std::abs(r.limit) : 1.0; }
 
 bool needs_any(const RequirementSet& req, std::initializer_list<MetricId> ids) {
@@ -117,9 +120,7 @@ void set_noise_metrics(MetricValues& v, const NoiseMetrics& n) {
 void set_saturated_metrics(MetricValues& v, const SaturatedStepFigures& s) {
   auto at = [&](MetricId id) -> MetricValue& { return v[static_cast<size_t>(id)]; };
   at(MetricId::SaturatedOvershoot) = number(s.overshoot_pct);
-  MetricValue settle = number(s.settling_time_s);
-  if (!s.settling_time_s) settle.infinite = true;
-  at(MetricId::SaturatedSettlingTime) = settle;
+  at(MetricId::SaturatedSettlingTime) = time_or_unbounded(s.settling_time_s);
   at(MetricId::SaturatedRiseTime) = number(s.rise_time_s);
 }
 
@@ -148,9 +149,7 @@ SaturatedOptions limited_horizon(double linear_horizon_s, int linear_samples, do
 
 void set_saturated_load_metrics(MetricValues& v, const SaturatedDisturbanceFigures& d) {
   v[static_cast<size_t>(MetricId::SaturatedLoadPeak)] = number(d.peak);
-  MetricValue rec = number(d.recovery_time_s);
-  if (!d.recovery_time_s) rec.infinite = true;
-  v[static_cast<size_t>(MetricId::SaturatedLoadRecovery)] = rec;
+  v[static_cast<size_t>(MetricId::SaturatedLoadRecovery)] = time_or_unbounded(d.recovery_time_s);
 }
 
 std::optional<SaturatedDisturbanceFigures> saturated_load(const LoopParts& parts, const DisturbanceMetrics& linear,
@@ -299,9 +298,10 @@ LoopEvaluation evaluate_loop(const Zpk& comp, const Plant& plant, const Requirem
   // when a requirement names it; screening runs it only for loops whose other figures (the linear
   // step's included) nearly meet their requirements, as the step itself is gated.
   // The same holds for the limited load step, after the linear one.
-  const bool near = all || violation_except(req, v, [](MetricId id) {
-                             return is_actuator_metric(id) || id == MetricId::GainTolerance;
-                           }) <= needs.step_gate;
+  const bool near = req.actuator && req.needs_actuator() &&
+                    (all || violation_except(req, v, [](MetricId id) {
+                       return is_actuator_metric(id) || id == MetricId::GainTolerance;
+                     }) <= needs.step_gate);
   if (near && saturated && e.step) {
     e.saturated = saturated_step(parts, e.poles, *e.step, req);
     if (e.saturated) set_saturated_metrics(v, *e.saturated);
